@@ -1,0 +1,438 @@
+package designs
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"strconv"
+
+	"enough/power"
+)
+
+// roundTol absorbs floating-point noise before rounding up, so that a size
+// that is mathematically whole (e.g. 100 computed as 100.00000000001) is not
+// pushed to the next participant.
+const roundTol = 1e-9
+
+// ceilTol rounds x up to a whole number, ignoring noise below roundTol.
+func ceilTol(x float64) int {
+	return int(math.Ceil(x - roundTol*math.Max(1, math.Abs(x))))
+}
+
+// floorTol rounds x down to a whole number, ignoring noise below roundTol.
+func floorTol(x float64) int {
+	return int(math.Floor(x + roundTol*math.Max(1, math.Abs(x))))
+}
+
+// PlanError is a failure to compute a plan from a valid specification (for
+// example a target that no sample size reaches).
+type PlanError struct {
+	File string
+	Msg  string
+	Err  error
+}
+
+func (e *PlanError) Error() string { return e.File + ": " + e.Msg }
+func (e *PlanError) Unwrap() error { return e.Err }
+
+// Plan computes the answer a specification asks for.
+func Plan(s *Spec) (*Result, error) {
+	m := MethodByID(s.Method)
+	res := &Result{
+		Tool: Tool, Version: Version,
+		SpecFile: s.File, SpecSHA256: s.SHA256, Overrides: s.Overrides,
+		Title: s.Title, Design: s.Design, Goal: s.Goal, Outcome: s.Outcome,
+		Solve: s.Solve, Method: s.Method, MethodName: m.Name, Citation: m.Citation,
+		Test: s.Test, TestName: TestName(s.Test),
+		Attrition: s.Attrition, DesignEff: s.DesignEffect,
+		Alternatives: []Alternative{}, Notes: []string{}, Warnings: append([]string{}, s.Ignored...),
+		Cautions: Cautions, Spec: s,
+	}
+	if s.Solve != "power" && s.Goal != "precision" {
+		res.Power = ptr(s.Power)
+	}
+	res.Assumptions = assumptions(s)
+	if s.Goal == "precision" {
+		return res, planPrecision(s, res)
+	}
+	res.Alpha, res.Sides, res.Ratio = ptr(s.Alpha), s.Sides, ptr(s.Ratio)
+	ro := roles[s.Design]
+	res.FirstGroup, res.SecondGroup = orDefault(s.FirstGroup, ro.first), orDefault(s.SecondGroup, ro.second)
+	return res, planComparison(s, res, m)
+}
+
+func orDefault(s, def string) string {
+	if s == "" {
+		return def
+	}
+	return s
+}
+
+func ptr[T any](x T) *T { return &x }
+
+// assumptions lists the numeric inputs with their sources, in file order.
+func assumptions(s *Spec) []Assumption {
+	var out []Assumption
+	skip := map[string]bool{"version": true, "title": true, "design": true, "outcome": true,
+		"solve": true, "method": true, "test": true, "goal": true, "primary_outcome": true,
+		"first_group": true, "second_group": true}
+	for _, g := range s.Given {
+		if skip[g.Key] {
+			continue
+		}
+		out = append(out, Assumption{Key: g.Key, Value: g.Value, Source: s.Sources[g.Key]})
+	}
+	return out
+}
+
+// sizes holds the group sizes of a two-group plan.
+type sizes struct {
+	n, enrol []int
+	// eff are the effective sizes (analysable / design effect) at which
+	// power is evaluated.
+	eff [2]float64
+}
+
+// sizesFromNStar applies the documented rounding and inflation order to the
+// unrounded first-group size: n = ceil(n* × deff) per group, then
+// enrolment = ceil(n / (1 − attrition)).
+func sizesFromNStar(s *Spec, nstar float64) sizes {
+	n1 := ceilTol(nstar * s.DesignEffect)
+	n2 := ceilTol(s.Ratio * nstar * s.DesignEffect)
+	return sizes{
+		n:     []int{n1, n2},
+		enrol: []int{ceilTol(float64(n1) / (1 - s.Attrition)), ceilTol(float64(n2) / (1 - s.Attrition))},
+		eff:   [2]float64{float64(n1) / s.DesignEffect, float64(n2) / s.DesignEffect},
+	}
+}
+
+// sizesFromEnrolment turns the specification's enrolment into analysable
+// and effective sizes: analysable = floor(enrolment × (1 − attrition)).
+func sizesFromEnrolment(s *Spec) (sizes, error) {
+	var sz sizes
+	if s.Design == "cross-sectional" {
+		e := s.ExposurePrevalence
+		a := floorTol(float64(s.Total) * (1 - s.Attrition))
+		first := int(math.Round(e * float64(a)))
+		efirst := int(math.Round(e * float64(s.Total)))
+		sz = sizes{
+			n:     []int{first, a - first},
+			enrol: []int{efirst, s.Total - efirst},
+			eff:   [2]float64{e * float64(a) / s.DesignEffect, (1 - e) * float64(a) / s.DesignEffect},
+		}
+	} else {
+		e1, e2 := s.N, ceilTol(s.Ratio*float64(s.N))
+		a1, a2 := floorTol(float64(e1)*(1-s.Attrition)), floorTol(float64(e2)*(1-s.Attrition))
+		sz = sizes{
+			n:     []int{a1, a2},
+			enrol: []int{e1, e2},
+			eff:   [2]float64{float64(a1) / s.DesignEffect, float64(a2) / s.DesignEffect},
+		}
+	}
+	if !(sz.eff[0] >= 1 && sz.eff[1] >= 1) {
+		key := "n"
+		if s.Design == "cross-sectional" {
+			key = "total"
+		}
+		return sz, &PlanError{File: s.File, Msg: fmt.Sprintf("%s: after attrition, design effect and allocation a group has fewer than one analysable participant (%s); allowed: a larger %s", key, fmtSizes(sz.n), key)}
+	}
+	return sz, nil
+}
+
+func fmtSizes(n []int) string {
+	if len(n) == 2 {
+		return strconv.Itoa(n[0]) + " and " + strconv.Itoa(n[1])
+	}
+	return fmt.Sprint(n)
+}
+
+func sum(xs []int) int {
+	t := 0
+	for _, x := range xs {
+		t += x
+	}
+	return t
+}
+
+func planComparison(s *Spec, res *Result, m *MethodInfo) error {
+	tp := power.TwoProportions{P1: s.P1, P2: s.P2, Alpha: s.Alpha, Sides: s.Sides}
+	others := []*MethodInfo{}
+	for i := range Methods {
+		o := &Methods[i]
+		if o.ID != m.ID && o.serves(s.Design, s.Goal) {
+			others = append(others, o)
+		}
+	}
+	ans := &res.Result
+	switch s.Solve {
+	case "n":
+		nstar, err := m.engine.N(tp, s.Ratio, s.Power)
+		if err != nil {
+			return solveError(s, err)
+		}
+		sz := sizesFromNStar(s, nstar)
+		ans.NStar = nstar
+		fillSizes(ans, sz)
+		ans.AchievedPower = ptr(m.engine.Power(tp, sz.eff[0], sz.eff[1]))
+		ans.Effect = effectOf(s.Design, s.P1, s.P2)
+		var differ []string
+		for _, o := range others {
+			ns, err := o.engine.N(tp, s.Ratio, s.Power)
+			if err != nil {
+				continue
+			}
+			osz := sizesFromNStar(s, ns)
+			res.Alternatives = append(res.Alternatives, Alternative{
+				Method: o.ID, Name: o.Name, Citation: o.Citation,
+				N: osz.n, Total: sum(osz.n), EnrolTotal: sum(osz.enrol),
+				AchievedPower: ptr(o.engine.Power(tp, osz.eff[0], osz.eff[1])),
+			})
+			if abs(osz.n[0]-sz.n[0]) > 1 || abs(osz.n[1]-sz.n[1]) > 1 {
+				differ = append(differ, fmt.Sprintf("%s asks for %s", o.Name, fmtSizes(osz.n)))
+			}
+		}
+		if len(differ) > 0 {
+			res.Warnings = append(res.Warnings, fmt.Sprintf(
+				"The choice of formula matters here: %s asks for %s (%s and %s), while %s. The difference exceeds one participant per group.",
+				m.Name, fmtSizes(sz.n), res.FirstGroup, res.SecondGroup, andList(differ)))
+		}
+		smallCells(s, res, sz)
+	case "power":
+		sz, err := sizesFromEnrolment(s)
+		if err != nil {
+			return err
+		}
+		fillSizes(ans, sz)
+		ans.AchievedPower = ptr(m.engine.Power(tp, sz.eff[0], sz.eff[1]))
+		ans.Effect = effectOf(s.Design, s.P1, s.P2)
+		for _, o := range others {
+			res.Alternatives = append(res.Alternatives, Alternative{
+				Method: o.ID, Name: o.Name, Citation: o.Citation,
+				AchievedPower: ptr(o.engine.Power(tp, sz.eff[0], sz.eff[1])),
+			})
+		}
+		smallCells(s, res, sz)
+	case "effect":
+		sz, err := sizesFromEnrolment(s)
+		if err != nil {
+			return err
+		}
+		fillSizes(ans, sz)
+		ans.Detectable = detectable(s, m.engine, sz)
+		for _, o := range others {
+			res.Alternatives = append(res.Alternatives, Alternative{
+				Method: o.ID, Name: o.Name, Citation: o.Citation,
+				Detectable: detectable(s, o.engine, sz),
+			})
+		}
+		for _, side := range []struct {
+			v    *float64
+			what string
+		}{{ans.Detectable.Lower, "below"}, {ans.Detectable.Upper, "above"}} {
+			if side.v == nil {
+				res.Warnings = append(res.Warnings, fmt.Sprintf(
+					"No effect %s no difference reaches %.0f%% power with these sizes: the risk in the %s would have to pass %s.",
+					side.what, 100*s.Power, res.FirstGroup, map[string]string{"below": "0", "above": "1"}[side.what]))
+			}
+		}
+	}
+	methodTestNotes(s, res)
+	commonNotes(s, res)
+	return nil
+}
+
+func fillSizes(ans *Answer, sz sizes) {
+	ans.N, ans.Total = sz.n, sum(sz.n)
+	ans.Enrol, ans.EnrolTotal = sz.enrol, sum(sz.enrol)
+}
+
+func abs(x int) int {
+	if x < 0 {
+		return -x
+	}
+	return x
+}
+
+func andList(words []string) string {
+	switch len(words) {
+	case 0:
+		return ""
+	case 1:
+		return words[0]
+	}
+	out := ""
+	for i, w := range words {
+		switch {
+		case i == 0:
+			out = w
+		case i == len(words)-1:
+			out += " and " + w
+		default:
+			out += ", " + w
+		}
+	}
+	return out
+}
+
+func solveError(s *Spec, err error) error {
+	switch {
+	case errors.Is(err, power.ErrNothingToDetect):
+		return &PlanError{File: s.File, Msg: s.EffectKey + ": nothing to detect: the groups have the same risk", Err: err}
+	case errors.Is(err, power.ErrUnreachable):
+		return &PlanError{File: s.File, Msg: fmt.Sprintf("power: %g is so close to alpha that the formula reaches it with no participants; allowed: a target power well above alpha (e.g. 0.8)", s.Power), Err: err}
+	}
+	return &PlanError{File: s.File, Msg: err.Error(), Err: err}
+}
+
+// effectOf restates the effect p1 against p2 for the design.
+func effectOf(design string, p1, p2 float64) *Effect {
+	or := power.OddsRatio(p1, p2)
+	if design == "case-control" {
+		return &Effect{
+			OddsRatio:       or,
+			CaseExposure:    ptr(p1),
+			ControlExposure: ptr(p2),
+			CaseOdds:        ptr(p1 / (1 - p1)),
+			ControlOdds:     ptr(p2 / (1 - p2)),
+		}
+	}
+	rd := p1 - p2
+	e := &Effect{
+		FirstRisk: ptr(p1), SecondRisk: ptr(p2),
+		RiskRatio: ptr(p1 / p2), RiskDifference: ptr(rd), OddsRatio: or,
+	}
+	if math.Abs(rd) > 1e-12 {
+		e.NNT = ptr(ceilTol(1 / math.Abs(rd)))
+	}
+	return e
+}
+
+// scaleValue expresses p1 against p2 on the scale of the effect key.
+func scaleValue(key string, p1, p2 float64) float64 {
+	switch scaleOf(key) {
+	case ScaleRatio:
+		return p1 / p2
+	case ScaleOdds:
+		return power.OddsRatio(p1, p2)
+	case ScaleDifference:
+		return p1 - p2
+	}
+	return p1
+}
+
+// detectable finds the smallest detectable effect in both directions.
+func detectable(s *Spec, method power.Method, sz sizes) *Detectable {
+	tp := power.TwoProportions{P2: s.P2, Alpha: s.Alpha, Sides: s.Sides}
+	d := &Detectable{Scale: s.EffectKey}
+	for _, dir := range []int{-1, 1} {
+		p1, err := method.Detectable(tp, sz.eff[0], sz.eff[1], s.Power, dir)
+		if err != nil {
+			continue
+		}
+		v, e := ptr(scaleValue(s.EffectKey, p1, s.P2)), effectOf(s.Design, p1, s.P2)
+		if dir < 0 {
+			d.Lower, d.LowerEffect = v, e
+		} else {
+			d.Upper, d.UpperEffect = v, e
+		}
+	}
+	return d
+}
+
+// smallCells warns when an expected cell count is small.
+func smallCells(s *Spec, res *Result, sz sizes) {
+	p1 := s.P1
+	minCell := math.Min(math.Min(sz.eff[0]*p1, sz.eff[0]*(1-p1)), math.Min(sz.eff[1]*s.P2, sz.eff[1]*(1-s.P2)))
+	if minCell < 5 {
+		res.Warnings = append(res.Warnings, fmt.Sprintf(
+			"An expected cell count is %.1f, below 5: the normal approximation behind the formula is doubtful here; plan for Fisher's exact test and check the power by exact enumeration or simulation.", minCell))
+	}
+}
+
+// methodTestNotes notes a mismatch between the formula and the planned test.
+func methodTestNotes(s *Spec, res *Result) {
+	corrected := s.Method == "fleiss-cc"
+	switch {
+	case corrected && s.Test == "chi-square":
+		res.Notes = append(res.Notes, "The formula includes a continuity correction but the planned test does not; the uncorrected formula (fleiss) matches that test more closely and asks for fewer participants.")
+	case !corrected && (s.Test == "chi-square-yates" || s.Test == "fisher"):
+		res.Notes = append(res.Notes, "The planned test is conservative (continuity-corrected or exact) but the formula has no correction; fleiss-cc matches that test more closely and asks for more participants.")
+	}
+}
+
+// commonNotes adds notes on interpretation.
+func commonNotes(s *Spec, res *Result) {
+	if s.Design != "case-control" {
+		res.Notes = append(res.Notes, "The odds ratio approximates the risk ratio only when the outcome is rare (below about 10% in both groups).")
+	}
+	res.Notes = append(res.Notes, "The closed-form power counts rejections in the direction of the planned effect only, as Fleiss does; for a two-sided test the other direction adds at most alpha/2.")
+	if s.DesignEffect > 1 {
+		res.Notes = append(res.Notes, fmt.Sprintf("The design effect of %g inflates each group's size; power is evaluated at the effective sizes (analysable participants divided by the design effect).", s.DesignEffect))
+	}
+	res.Order = []string{
+		"n* = the unrounded size of the first group from the formula; the second group has ratio x n*",
+		"analysable per group = ceil(n* x design_effect), the second group ceil(ratio x n* x design_effect)",
+		"enrolment per group = ceil(analysable / (1 - attrition))",
+		"totals are the sums of the groups; achieved power is evaluated at analysable / design_effect",
+	}
+	if s.Solve != "n" {
+		res.Order = []string{
+			"enrolment: the first group as given, the second ceil(ratio x n) (cross-sectional: the total split by exposure_prevalence)",
+			"analysable per group = floor(enrolment x (1 - attrition))",
+			"effective size = analysable / design_effect, at which power is evaluated",
+		}
+	}
+}
+
+// planPrecision sizes a survey that estimates one prevalence.
+func planPrecision(s *Spec, res *Result) error {
+	pr := power.Precision{P: s.ExpectedPrevalence, Confidence: s.Confidence,
+		DesignEffect: s.DesignEffect, Population: float64(s.Population)}
+	ans := &res.Result
+	switch s.Solve {
+	case "n":
+		n0, n := power.PrecisionN(pr, s.Margin)
+		a := ceilTol(n)
+		ans.N0, ans.NStar = n0, n
+		ans.N, ans.Total = []int{a}, a
+		ans.Enrol = []int{ceilTol(float64(a) / (1 - s.Attrition))}
+		ans.EnrolTotal = ans.Enrol[0]
+		ans.Margin = ptr(s.Margin)
+		if s.Population > 0 && ans.EnrolTotal > s.Population {
+			res.Warnings = append(res.Warnings, fmt.Sprintf("The enrolment of %d exceeds the population of %d: survey everyone and report the achieved margin.", ans.EnrolTotal, s.Population))
+		}
+	case "effect":
+		a := floorTol(float64(s.Total) * (1 - s.Attrition))
+		if a < 1 {
+			return &PlanError{File: s.File, Msg: "total: after non-response no respondent is left; allowed: a larger total"}
+		}
+		ans.N, ans.Total = []int{a}, a
+		ans.Enrol, ans.EnrolTotal = []int{s.Total}, s.Total
+		ans.Margin = ptr(power.PrecisionMargin(pr, float64(a)))
+	}
+	p, d := s.ExpectedPrevalence, *ans.Margin
+	if d >= p || d >= 1-p {
+		res.Warnings = append(res.Warnings, fmt.Sprintf("The margin (%.3g) is not smaller than the expected prevalence or its complement: the Wald interval would cross 0 or 1; an exact (Clopper-Pearson) or Wilson interval suits better.", d))
+	}
+	if eff := float64(ans.Total) / s.DesignEffect; eff*math.Min(p, 1-p) < 10 {
+		res.Warnings = append(res.Warnings, "Fewer than 10 expected cases (or non-cases) among the effective respondents: the Wald interval is unreliable here.")
+	}
+	if s.DesignEffect > 1 {
+		res.Notes = append(res.Notes, fmt.Sprintf("The design effect of %g multiplies the simple-random-sampling size.", s.DesignEffect))
+	}
+	res.Order = []string{
+		"n0 = z^2 p (1 - p) / margin^2 (simple random sampling)",
+		"times design_effect",
+		"finite population correction n / (1 + (n - 1) / population), when population is given",
+		"rounded up: the respondents needed",
+		"divided by (1 - attrition) for non-response and rounded up: the number to invite",
+	}
+	if s.Solve == "effect" {
+		res.Order = []string{
+			"respondents = floor(total x (1 - attrition))",
+			"undo the finite population correction and the design effect",
+			"margin = z sqrt(p (1 - p) / n0)",
+		}
+	}
+	return nil
+}

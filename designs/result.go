@@ -1,0 +1,124 @@
+package designs
+
+// Tool and Version identify this program in every output.
+const (
+	Tool    = "enough"
+	Version = "0.1.0"
+)
+
+// Cautions are printed with every plan.
+var Cautions = []string{
+	"A sample size is a planning aid: the answer is only as good as the assumptions behind it (the reference risk, the effect, the attrition). Vary them and see how much the number moves.",
+	"Have the plan reviewed by a qualified statistician before it is relied on.",
+	"The ethics committee, the regulators and local rules decide what is acceptable; an under-powered study can expose participants to risk without answering its question, and an oversized one exposes more people than needed.",
+}
+
+// Result is a computed plan: everything every output format shows. Its JSON
+// form is a stable contract for scripts.
+type Result struct {
+	Tool        string   `json:"tool"`
+	Version     string   `json:"version"`
+	SpecFile    string   `json:"spec_file"`
+	SpecSHA256  string   `json:"spec_sha256"`
+	Overrides   []string `json:"overrides,omitempty"`
+	Title       string   `json:"title"`
+	Design      string   `json:"design"`
+	Goal        string   `json:"goal,omitempty"`
+	Outcome     string   `json:"outcome"`
+	Solve       string   `json:"solve"`
+	Method      string   `json:"method"`
+	MethodName  string   `json:"method_name"`
+	Citation    string   `json:"citation"`
+	Test        string   `json:"test,omitempty"`
+	TestName    string   `json:"test_name,omitempty"`
+	Alpha       *float64 `json:"alpha,omitempty"`
+	Sides       int      `json:"sides,omitempty"`
+	Power       *float64 `json:"power"`
+	Ratio       *float64 `json:"ratio,omitempty"`
+	Attrition   float64  `json:"attrition"`
+	DesignEff   float64  `json:"design_effect"`
+	FirstGroup  string   `json:"first_group,omitempty"`
+	SecondGroup string   `json:"second_group,omitempty"`
+
+	Assumptions  []Assumption  `json:"assumptions"`
+	Result       Answer        `json:"result"`
+	Alternatives []Alternative `json:"alternatives"`
+	Order        []string      `json:"inflation_order"`
+	Notes        []string      `json:"notes"`
+	Warnings     []string      `json:"warnings"`
+	Cautions     []string      `json:"cautions"`
+
+	// Spec is the validated specification behind the result.
+	Spec *Spec `json:"-"`
+}
+
+// Assumption is one input of the plan with where it came from.
+type Assumption struct {
+	Key    string `json:"key"`
+	Value  string `json:"value"`
+	Source string `json:"source,omitempty"`
+}
+
+// Answer is the computed answer.
+type Answer struct {
+	// NStar is the unrounded size of the first group (solving n; for a
+	// precision survey, the size after design effect and finite population
+	// correction).
+	NStar float64 `json:"n_star,omitempty"`
+	// N is the analysable size per group [first, second] (one element for a
+	// precision survey).
+	N []int `json:"n"`
+	// Total is the sum of N.
+	Total int `json:"total"`
+	// AchievedPower is the power at the analysable sizes (two-group plans).
+	AchievedPower *float64 `json:"achieved_power,omitempty"`
+	// Enrol is the enrolment per group, inflated for attrition.
+	Enrol      []int `json:"enrol"`
+	EnrolTotal int   `json:"enrol_total"`
+	// Effect restates the planned effect (solving n or power).
+	Effect *Effect `json:"effect,omitempty"`
+	// Detectable is the smallest detectable effect (solving effect).
+	Detectable *Detectable `json:"detectable,omitempty"`
+
+	// Precision surveys.
+	N0     float64  `json:"n0,omitempty"`
+	Margin *float64 `json:"margin,omitempty"`
+}
+
+// Effect restates an effect on every meaningful scale. Risk-based measures
+// are absent for a case-control study, which samples on the outcome.
+type Effect struct {
+	FirstRisk      *float64 `json:"first_risk,omitempty"`
+	SecondRisk     *float64 `json:"second_risk,omitempty"`
+	RiskRatio      *float64 `json:"risk_ratio,omitempty"`
+	RiskDifference *float64 `json:"risk_difference,omitempty"`
+	NNT            *int     `json:"nnt,omitempty"`
+	OddsRatio      float64  `json:"odds_ratio"`
+
+	CaseExposure    *float64 `json:"case_exposure,omitempty"`
+	ControlExposure *float64 `json:"control_exposure,omitempty"`
+	CaseOdds        *float64 `json:"case_odds,omitempty"`
+	ControlOdds     *float64 `json:"control_odds,omitempty"`
+}
+
+// Detectable is the smallest effect detectable in each direction, on the
+// scale of the specification's effect key. A nil side cannot be reached.
+type Detectable struct {
+	Scale       string   `json:"scale"`
+	Lower       *float64 `json:"lower"`
+	Upper       *float64 `json:"upper"`
+	LowerEffect *Effect  `json:"lower_effect,omitempty"`
+	UpperEffect *Effect  `json:"upper_effect,omitempty"`
+}
+
+// Alternative is another applicable method's answer to the same question.
+type Alternative struct {
+	Method        string      `json:"method"`
+	Name          string      `json:"name"`
+	Citation      string      `json:"citation"`
+	N             []int       `json:"n,omitempty"`
+	Total         int         `json:"total,omitempty"`
+	EnrolTotal    int         `json:"enrol_total,omitempty"`
+	AchievedPower *float64    `json:"achieved_power,omitempty"`
+	Detectable    *Detectable `json:"detectable,omitempty"`
+}

@@ -1,0 +1,410 @@
+package designs
+
+import (
+	"bytes"
+	"crypto/sha256"
+	"encoding/hex"
+	"fmt"
+	"math"
+	"regexp"
+	"sort"
+	"strconv"
+	"strings"
+
+	"gopkg.in/yaml.v3"
+)
+
+// MaxSpecBytes is the largest specification file accepted (1 MiB).
+const MaxSpecBytes = 1 << 20
+
+// Spec is a validated study specification (version 1).
+type Spec struct {
+	// File is where the specification came from, for messages.
+	File string
+	// SHA256 is the hex SHA-256 digest of the specification's bytes as read.
+	SHA256 string
+	// Overrides lists the --set assignments applied, in order.
+	Overrides []string
+
+	Title          string
+	Design         string // cohort, case-control, trial, cross-sectional
+	Goal           string // comparison or precision (cross-sectional only)
+	Outcome        string // binary
+	Solve          string // n, power or effect
+	Method         string
+	Test           string // planned analysis; "" for a precision survey
+	Alpha          float64
+	Sides          int
+	Power          float64 // target power; 0 when solving power
+	N              int     // enrolment of the first group, when solving power or effect
+	Total          int     // enrolment of a cross-sectional survey, when solving power or effect
+	Ratio          float64 // second group per member of the first
+	Attrition      float64
+	DesignEffect   float64
+	Sources        map[string]string
+	PrimaryOutcome string
+	FirstGroup     string
+	SecondGroup    string
+
+	// Two-group comparisons.
+
+	// P2 is the risk (or exposure prevalence) in the second group.
+	P2 float64
+	// ReferenceKey is the key that gave P2.
+	ReferenceKey string
+	// EffectKey is the key that gave the effect; EffectValue its value.
+	EffectKey   string
+	EffectValue float64
+	// P1 is the risk in the first group implied by the effect (unused when
+	// solving effect, where EffectKey only names the scale).
+	P1 float64
+	// ExposurePrevalence splits a cross-sectional total into groups.
+	ExposurePrevalence float64
+
+	// Precision surveys.
+	ExpectedPrevalence float64
+	Margin             float64
+	Confidence         float64
+	Population         int
+
+	// Given lists the keys the specification set (after overrides), in file
+	// order, with the values as written.
+	Given []Given
+
+	// Ignored lists keys given but not used by this solve, with the reason.
+	Ignored []string
+
+	lines map[string]int
+}
+
+// Given is one key of the specification as written.
+type Given struct {
+	Key   string
+	Value string
+}
+
+// entry is one raw key of the specification.
+type entry struct {
+	key    string
+	node   *yaml.Node
+	file   string // file name or "--set k=v"
+	line   int
+	keyPos int // order in the document
+}
+
+type reader struct {
+	file    string
+	entries map[string]*entry
+	order   []*entry
+	sources map[string]*entry
+}
+
+func (r *reader) errAt(e *entry, format string, args ...any) *SpecError {
+	return &SpecError{File: e.file, Line: e.line, Key: e.key, Msg: fmt.Sprintf(format, args...)}
+}
+
+func (r *reader) errFile(key, format string, args ...any) *SpecError {
+	return &SpecError{File: r.file, Key: key, Msg: fmt.Sprintf(format, args...)}
+}
+
+var yamlLine = regexp.MustCompile(`^yaml: line (\d+): (.*)$`)
+
+// Parse reads a specification from data. file names it in messages; sets
+// are "key=value" overrides applied before validation (dotted keys such as
+// sources.control_risk reach nested maps). Every problem is a *SpecError.
+func Parse(file string, data []byte, sets []string) (*Spec, error) {
+	if len(data) > MaxSpecBytes {
+		return nil, &SpecError{File: file, Msg: fmt.Sprintf("file is %d bytes; allowed: at most 1 MiB (%d bytes)", len(data), MaxSpecBytes)}
+	}
+	sum := sha256.Sum256(data)
+	if len(bytes.TrimSpace(data)) == 0 {
+		return nil, &SpecError{File: file, Msg: "file is empty; allowed: a YAML study specification (start from `enough new trial`)"}
+	}
+	var doc yaml.Node
+	if err := yaml.Unmarshal(data, &doc); err != nil {
+		msg := err.Error()
+		if m := yamlLine.FindStringSubmatch(strings.SplitN(msg, "\n", 2)[0]); m != nil {
+			line, _ := strconv.Atoi(m[1])
+			return nil, &SpecError{File: file, Line: line, Msg: "YAML syntax error: " + m[2]}
+		}
+		msg = strings.TrimPrefix(strings.ReplaceAll(msg, "\n", "; "), "yaml: ")
+		return nil, &SpecError{File: file, Msg: "YAML syntax error: " + msg}
+	}
+	if len(doc.Content) == 0 {
+		return nil, &SpecError{File: file, Msg: "file has no content; allowed: a YAML study specification (start from `enough new trial`)"}
+	}
+	root := doc.Content[0]
+	if root.Kind != yaml.MappingNode {
+		return nil, &SpecError{File: file, Line: root.Line, Msg: "the top level must be a map of keys to values, such as `design: cohort`"}
+	}
+	r := &reader{file: file, entries: map[string]*entry{}}
+	if err := r.collect(root, file); err != nil {
+		return nil, err
+	}
+	for _, s := range sets {
+		if err := r.applySet(s); err != nil {
+			return nil, err
+		}
+	}
+	spec, err := r.build()
+	if err != nil {
+		return nil, err
+	}
+	spec.File = file
+	spec.SHA256 = hex.EncodeToString(sum[:])
+	spec.Overrides = append([]string(nil), sets...)
+	return spec, nil
+}
+
+// collect records the top-level keys of root, rejecting unknown and repeated
+// keys.
+func (r *reader) collect(root *yaml.Node, file string) error {
+	for i := 0; i+1 < len(root.Content); i += 2 {
+		k, v := root.Content[i], root.Content[i+1]
+		e := &entry{key: k.Value, node: v, file: file, line: k.Line, keyPos: len(r.order)}
+		if k.Kind != yaml.ScalarNode {
+			return &SpecError{File: file, Line: k.Line, Msg: "a key must be a plain word, such as `alpha`"}
+		}
+		if err := r.add(e); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+func (r *reader) add(e *entry) error {
+	if _, ok := specKeys[e.key]; !ok {
+		if s, ok := nearest(e.key, allKeys()); ok {
+			return r.errAt(e, "unknown key; did you mean %q?", s)
+		}
+		return r.errAt(e, "unknown key; allowed keys are listed in the README (or start from `enough new DESIGN`)")
+	}
+	if prev, ok := r.entries[e.key]; ok && prev.file == e.file {
+		return r.errAt(e, "given twice (first at line %d); allowed: each key once", prev.line)
+	}
+	if prev, ok := r.entries[e.key]; ok {
+		e.keyPos = prev.keyPos
+		r.order[prev.keyPos] = e
+	} else {
+		r.order = append(r.order, e)
+	}
+	r.entries[e.key] = e
+	if e.key == "sources" {
+		return r.collectSources(e)
+	}
+	return nil
+}
+
+func (r *reader) collectSources(e *entry) error {
+	r.sources = map[string]*entry{}
+	if e.node.Kind == yaml.ScalarNode && e.node.Tag == "!!null" {
+		return nil
+	}
+	if e.node.Kind != yaml.MappingNode {
+		return r.errAt(e, "is not a map; allowed: %s, e.g. `control_risk: \"hospital audit 2024\"`", specKeys["sources"].allowed)
+	}
+	for i := 0; i+1 < len(e.node.Content); i += 2 {
+		k, v := e.node.Content[i], e.node.Content[i+1]
+		se := &entry{key: "sources." + k.Value, node: v, file: e.file, line: k.Line}
+		if e.file != r.file {
+			se.line = 0
+		}
+		if _, dup := r.sources[k.Value]; dup {
+			return r.errAt(se, "given twice; allowed: each key once")
+		}
+		if v.Kind != yaml.ScalarNode || v.Tag == "!!null" {
+			return r.errAt(se, "is not text; allowed: a line saying where the value came from")
+		}
+		r.sources[k.Value] = se
+	}
+	return nil
+}
+
+// applySet applies one --set key=value override.
+func (r *reader) applySet(s string) error {
+	origin := "--set " + s
+	key, val, ok := strings.Cut(s, "=")
+	key = strings.TrimSpace(key)
+	if !ok || key == "" {
+		return &SpecError{File: origin, Msg: "is not of the form key=value (e.g. --set alpha=0.01)"}
+	}
+	var doc yaml.Node
+	if err := yaml.Unmarshal([]byte(val), &doc); err != nil {
+		return &SpecError{File: origin, Key: key, Msg: "value is not valid YAML: " + strings.TrimPrefix(err.Error(), "yaml: ")}
+	}
+	node := &yaml.Node{Kind: yaml.ScalarNode, Tag: "!!null", Value: ""}
+	if len(doc.Content) > 0 {
+		node = doc.Content[0]
+	}
+	head, rest, nested := strings.Cut(key, ".")
+	if !nested {
+		return r.add(&entry{key: key, node: node, file: origin})
+	}
+	if head != "sources" {
+		if _, ok := specKeys[head]; !ok {
+			return r.add(&entry{key: head, node: node, file: origin})
+		}
+		return &SpecError{File: origin, Key: head, Msg: "has no nested keys; allowed dotted keys: sources.KEY"}
+	}
+	if r.sources == nil {
+		r.sources = map[string]*entry{}
+		if _, ok := r.entries["sources"]; !ok {
+			e := &entry{key: "sources", node: &yaml.Node{Kind: yaml.MappingNode}, file: origin, keyPos: len(r.order)}
+			r.order = append(r.order, e)
+			r.entries["sources"] = e
+		}
+	}
+	if node.Kind != yaml.ScalarNode || node.Tag == "!!null" {
+		return &SpecError{File: origin, Key: key, Msg: "is not text; allowed: a line saying where the value came from"}
+	}
+	r.sources[rest] = &entry{key: key, node: node, file: origin}
+	return nil
+}
+
+// get returns the entry for key, or nil when absent or null.
+func (r *reader) get(key string) *entry {
+	e := r.entries[key]
+	if e == nil || (e.node.Kind == yaml.ScalarNode && e.node.Tag == "!!null") {
+		return nil
+	}
+	return e
+}
+
+var percentLike = regexp.MustCompile(`^\s*-?[0-9.]+\s*%\s*$`)
+
+// number reads a numeric key; ok is false when the key is absent.
+func (r *reader) number(key string) (v float64, e *entry, err error) {
+	e = r.get(key)
+	if e == nil {
+		if raw := r.entries[key]; raw != nil {
+			return 0, raw, r.errAt(raw, "has no value; allowed: %s", specKeys[key].allowed)
+		}
+		return 0, nil, nil
+	}
+	n := e.node
+	if n.Kind != yaml.ScalarNode || (n.Tag != "!!int" && n.Tag != "!!float") {
+		if n.Kind == yaml.ScalarNode && percentLike.MatchString(n.Value) {
+			return 0, e, r.errAt(e, "%q is a percentage; allowed: %s (write 0.05 for 5%%)", n.Value, specKeys[key].allowed)
+		}
+		return 0, e, r.errAt(e, "%s is not a number; allowed: %s", show(n), specKeys[key].allowed)
+	}
+	f, perr := strconv.ParseFloat(strings.ReplaceAll(n.Value, "_", ""), 64)
+	if perr != nil || math.IsNaN(f) || math.IsInf(f, 0) {
+		if n.Tag == "!!int" {
+			if i, ierr := strconv.ParseInt(n.Value, 0, 64); ierr == nil {
+				return float64(i), e, nil
+			}
+		}
+		return 0, e, r.errAt(e, "%s is not a finite number; allowed: %s", show(n), specKeys[key].allowed)
+	}
+	return f, e, nil
+}
+
+// whole reads a whole-number key.
+func (r *reader) whole(key string) (int, *entry, error) {
+	f, e, err := r.number(key)
+	if err != nil || e == nil {
+		if err != nil && strings.Contains(err.Error(), "is not a number") {
+			err = r.errAt(e, "%s is not a whole number; allowed: %s", show(e.node), specKeys[key].allowed)
+		}
+		return 0, e, err
+	}
+	if f != math.Trunc(f) || math.Abs(f) > 1e12 {
+		return 0, e, r.errAt(e, "%s is not a whole number; allowed: %s", show(e.node), specKeys[key].allowed)
+	}
+	return int(f), e, nil
+}
+
+// text reads a text key.
+func (r *reader) text(key string) (string, *entry, error) {
+	e := r.get(key)
+	if e == nil {
+		if raw := r.entries[key]; raw != nil {
+			return "", raw, r.errAt(raw, "has no value; allowed: %s", specKeys[key].allowed)
+		}
+		return "", nil, nil
+	}
+	if e.node.Kind != yaml.ScalarNode {
+		return "", e, r.errAt(e, "is not a single value; allowed: %s", specKeys[key].allowed)
+	}
+	return strings.TrimSpace(e.node.Value), e, nil
+}
+
+// choice reads a text key that must be one of the allowed words.
+func (r *reader) choice(key, def string, allowed ...string) (string, *entry, error) {
+	v, e, err := r.text(key)
+	if err != nil {
+		return "", e, err
+	}
+	if e == nil {
+		return def, nil, nil
+	}
+	for _, a := range allowed {
+		if v == a {
+			return v, e, nil
+		}
+	}
+	msg := fmt.Sprintf("%s is not allowed; allowed: %s", show(e.node), orList(allowed))
+	if s, ok := nearest(v, allowed); ok {
+		msg += fmt.Sprintf(" (did you mean %q?)", s)
+	}
+	return "", e, r.errAt(e, "%s", msg)
+}
+
+// show renders a YAML value for a message.
+func show(n *yaml.Node) string {
+	if n == nil {
+		return "(nothing)"
+	}
+	switch n.Kind {
+	case yaml.MappingNode:
+		return "a map"
+	case yaml.SequenceNode:
+		return "a list"
+	}
+	if n.Tag == "!!str" {
+		return strconv.Quote(n.Value)
+	}
+	return n.Value
+}
+
+func orList(words []string) string {
+	switch len(words) {
+	case 0:
+		return ""
+	case 1:
+		return words[0]
+	}
+	return strings.Join(words[:len(words)-1], ", ") + " or " + words[len(words)-1]
+}
+
+// given returns the keys the specification sets, in document order.
+func (r *reader) given() []Given {
+	var out []Given
+	for _, e := range r.order {
+		if e.key == "sources" || e.node.Kind != yaml.ScalarNode {
+			continue
+		}
+		out = append(out, Given{Key: e.key, Value: e.node.Value})
+	}
+	return out
+}
+
+// sourceMap returns the sources as plain text.
+func (r *reader) sourceMap() map[string]string {
+	out := map[string]string{}
+	for k, e := range r.sources {
+		out[k] = strings.TrimSpace(e.node.Value)
+	}
+	return out
+}
+
+// sortedSourceKeys returns the source keys in order.
+func (r *reader) sortedSourceKeys() []string {
+	keys := make([]string, 0, len(r.sources))
+	for k := range r.sources {
+		keys = append(keys, k)
+	}
+	sort.Strings(keys)
+	return keys
+}

@@ -1,0 +1,457 @@
+package designs
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+)
+
+// Designs lists the study designs of specification version 1.
+var Designs = []string{"cohort", "case-control", "trial", "cross-sectional"}
+
+// testsBinary lists the planned analyses of a two-group binary comparison.
+var testsBinary = []string{"chi-square", "chi-square-yates", "fisher", "z-unpooled"}
+
+// build validates the collected keys into a Spec.
+func (r *reader) build() (*Spec, error) {
+	s := &Spec{Sources: r.sourceMap()}
+
+	// version
+	v, ve, err := r.whole("version")
+	if err != nil {
+		return nil, err
+	}
+	if ve == nil {
+		return nil, r.errFile("version", "missing; allowed: 1 (add the line `version: 1`)")
+	}
+	if v != 1 {
+		return nil, r.errAt(ve, "%d is not supported; allowed: 1", v)
+	}
+
+	// design and goal
+	design, de, err := r.choice("design", "", Designs...)
+	if err != nil {
+		return nil, err
+	}
+	if de == nil {
+		return nil, r.errFile("design", "missing; allowed: %s", orList(Designs))
+	}
+	s.Design = design
+	goal, ge, err := r.choice("goal", "comparison", "comparison", "precision")
+	if err != nil {
+		return nil, err
+	}
+	if ge != nil && design != "cross-sectional" {
+		return nil, r.errAt(ge, "applies only to design cross-sectional; a %s study always compares two groups", design)
+	}
+	if design == "cross-sectional" {
+		s.Goal = goal
+	}
+	precision := s.Goal == "precision"
+
+	// keys that do not belong to this design
+	allowed := keysFor(design, goal)
+	for _, e := range r.order {
+		if allowed[e.key] {
+			continue
+		}
+		var names []string
+		for k := range allowed {
+			names = append(names, k)
+		}
+		sort.Strings(names)
+		what := "design " + design
+		if design == "cross-sectional" {
+			what += " with goal " + goal
+		}
+		msg := fmt.Sprintf("does not apply to %s", what)
+		if sug, ok := nearest(e.key, names); ok {
+			msg += fmt.Sprintf("; did you mean %q?", sug)
+		} else if precision && (e.key == "alpha" || e.key == "power" || e.key == "sides") {
+			msg += "; a precision survey is set by margin and confidence"
+		} else if e.key == "ratio" && design == "cross-sectional" {
+			msg += "; the split between groups follows from exposure_prevalence"
+		}
+		return nil, r.errAt(e, "%s", msg)
+	}
+
+	// outcome
+	s.Outcome, _, err = r.choice("outcome", "binary", "binary")
+	if err != nil {
+		if e := r.get("outcome"); e != nil && (e.node.Value == "continuous" || e.node.Value == "time-to-event") {
+			return nil, r.errAt(e, "%q is not supported yet; allowed: binary", e.node.Value)
+		}
+		return nil, err
+	}
+
+	// solve
+	solves := []string{"n", "power", "effect"}
+	if precision {
+		solves = []string{"n", "effect"}
+	}
+	var se *entry
+	s.Solve, se, err = r.choice("solve", "n", solves...)
+	if err != nil {
+		if e := r.get("solve"); precision && e != nil && e.node.Value == "power" {
+			return nil, r.errAt(e, "power does not apply to a precision survey; allowed: n (the size for a margin) or effect (the margin for a size)")
+		}
+		return nil, err
+	}
+	_ = se
+
+	// text
+	if s.Title, _, err = r.text("title"); err != nil {
+		return nil, err
+	}
+	if s.Title == "" {
+		s.Title = "Untitled study"
+	}
+	if s.PrimaryOutcome, _, err = r.text("primary_outcome"); err != nil {
+		return nil, err
+	}
+	if s.FirstGroup, _, err = r.text("first_group"); err != nil {
+		return nil, err
+	}
+	if s.SecondGroup, _, err = r.text("second_group"); err != nil {
+		return nil, err
+	}
+
+	// inflation
+	if s.Attrition, err = r.rangeNum("attrition", 0, func(x float64) bool { return x >= 0 && x < 1 }); err != nil {
+		return nil, err
+	}
+	if s.DesignEffect, err = r.rangeNum("design_effect", 1, func(x float64) bool { return x >= 1 }); err != nil {
+		return nil, err
+	}
+
+	if precision {
+		err = r.buildPrecision(s)
+	} else {
+		err = r.buildComparison(s)
+	}
+	if err != nil {
+		return nil, err
+	}
+
+	// sources must name keys of this specification
+	for _, k := range r.sortedSourceKeys() {
+		e := r.sources[k]
+		if r.get(k) != nil {
+			continue
+		}
+		var present []string
+		for _, g := range r.order {
+			if g.key != "sources" {
+				present = append(present, g.key)
+			}
+		}
+		msg := "names no key of this specification; allowed: a key the specification sets"
+		if sug, ok := nearest(k, present); ok {
+			msg += fmt.Sprintf(" (did you mean %q?)", sug)
+		}
+		return nil, r.errAt(e, "%s", msg)
+	}
+	s.Given = r.given()
+	return s, nil
+}
+
+// rangeNum reads an optional number with a default and a range check.
+func (r *reader) rangeNum(key string, def float64, ok func(float64) bool) (float64, error) {
+	x, e, err := r.number(key)
+	if err != nil {
+		return 0, err
+	}
+	if e == nil {
+		return def, nil
+	}
+	if !ok(x) {
+		return 0, r.errAt(e, "%s is out of range; allowed: %s", e.node.Value, specKeys[key].allowed)
+	}
+	return x, nil
+}
+
+// probability reads a required probability in (0, 1).
+func (r *reader) probability(key, why string) (float64, error) {
+	x, e, err := r.number(key)
+	if err != nil {
+		return 0, err
+	}
+	if e == nil {
+		return 0, r.errFile(key, "missing; %s, a probability in (0, 1)", why)
+	}
+	if !(x > 0 && x < 1) {
+		return 0, r.errAt(e, "%s is out of range; allowed: a probability strictly between 0 and 1", e.node.Value)
+	}
+	return x, nil
+}
+
+func (r *reader) buildPrecision(s *Spec) error {
+	var err error
+	s.Method, _, err = r.choice("method", "wald", "wald")
+	if err != nil {
+		return r.methodError(s)
+	}
+	if s.ExpectedPrevalence, err = r.probability("expected_prevalence", "required: the prevalence you expect to estimate"); err != nil {
+		return err
+	}
+	if s.Confidence, err = r.rangeNum("confidence", 0.95, func(x float64) bool { return x > 0 && x < 1 }); err != nil {
+		return err
+	}
+	pop, pe, err := r.whole("population")
+	if err != nil {
+		return err
+	}
+	if pe != nil && pop < 2 {
+		return r.errAt(pe, "%d is out of range; allowed: %s", pop, specKeys["population"].allowed)
+	}
+	s.Population = pop
+	switch s.Solve {
+	case "n":
+		m, me, err := r.number("margin")
+		if err != nil {
+			return err
+		}
+		if me == nil {
+			return r.errFile("margin", "missing; required when solving n: the half-width of the confidence interval, in (0, 0.5)")
+		}
+		if !(m > 0 && m < 0.5) {
+			return r.errAt(me, "%s is out of range; allowed: %s", me.node.Value, specKeys["margin"].allowed)
+		}
+		s.Margin = m
+		if e := r.get("total"); e != nil {
+			s.Ignored = append(s.Ignored, "total is ignored when solving n")
+		}
+	case "effect":
+		if err := r.size(s, "total", "required when solving effect: the number of people to be surveyed"); err != nil {
+			return err
+		}
+		if r.get("margin") != nil {
+			s.Ignored = append(s.Ignored, "margin is ignored when solving effect (the margin is what is solved)")
+		}
+		if s.Population > 0 && s.Total > s.Population {
+			e := r.get("total")
+			return r.errAt(e, "%d is more than the population of %d; allowed: at most the population", s.Total, s.Population)
+		}
+	}
+	return nil
+}
+
+func (r *reader) methodError(s *Spec) error {
+	e := r.get("method")
+	name := strings.TrimSpace(e.node.Value)
+	var fits []string
+	for _, m := range Methods {
+		if m.serves(s.Design, s.Goal) {
+			fits = append(fits, m.ID)
+		}
+	}
+	what := "design " + s.Design
+	if s.Design == "cross-sectional" {
+		what += " with goal " + s.Goal
+	}
+	for _, m := range Methods {
+		if m.ID == name {
+			return r.errAt(e, "%s does not fit %s; allowed: %s", name, what, orList(fits))
+		}
+	}
+	msg := fmt.Sprintf("%s is not a method; allowed for %s: %s", show(e.node), what, orList(fits))
+	var all []string
+	for _, m := range Methods {
+		all = append(all, m.ID)
+	}
+	if sug, ok := nearest(name, all); ok {
+		msg += fmt.Sprintf(" (did you mean %q?)", sug)
+	}
+	return r.errAt(e, "%s", msg)
+}
+
+// size reads the required group or survey size key.
+func (r *reader) size(s *Spec, key, why string) error {
+	x, e, err := r.whole(key)
+	if err != nil {
+		return err
+	}
+	if e == nil {
+		return r.errFile(key, "missing; %s, a whole number of at least 2", why)
+	}
+	if x < 2 {
+		return r.errAt(e, "%d is out of range; allowed: %s", x, specKeys[key].allowed)
+	}
+	if key == "n" {
+		s.N = x
+	} else {
+		s.Total = x
+	}
+	return nil
+}
+
+func (r *reader) buildComparison(s *Spec) error {
+	ro := roles[s.Design]
+	var err error
+
+	// method and test
+	var fits []string
+	for _, m := range Methods {
+		if m.serves(s.Design, s.Goal) {
+			fits = append(fits, m.ID)
+		}
+	}
+	if s.Method, _, err = r.choice("method", "fleiss-cc", fits...); err != nil {
+		return r.methodError(s)
+	}
+	def := MethodByID(s.Method).DefaultTest
+	if s.Test, _, err = r.choice("test", def, testsBinary...); err != nil {
+		return err
+	}
+
+	// alpha, sides, power
+	if s.Alpha, err = r.rangeNum("alpha", 0.05, func(x float64) bool { return x > 0 && x <= 0.5 }); err != nil {
+		return err
+	}
+	sides, sde, err := r.whole("sides")
+	if err != nil {
+		return err
+	}
+	s.Sides = 2
+	if sde != nil {
+		if sides != 1 && sides != 2 {
+			return r.errAt(sde, "%d is not allowed; allowed: 1 or 2", sides)
+		}
+		s.Sides = sides
+	}
+	pw, pe, err := r.number("power")
+	if err != nil {
+		return err
+	}
+	switch {
+	case s.Solve == "power":
+		if pe != nil {
+			s.Ignored = append(s.Ignored, "power is ignored when solving power (the power is what is solved)")
+		}
+	case pe == nil:
+		return r.errFile("power", "missing; required when solving %s: the target power, a number above alpha and below 1 (e.g. 0.8)", s.Solve)
+	case !(pw > s.Alpha && pw < 1):
+		if pw > 0 && pw <= s.Alpha {
+			return r.errAt(pe, "%s is not above alpha (%g); allowed: a number above alpha and below 1", pe.node.Value, s.Alpha)
+		}
+		return r.errAt(pe, "%s is out of range; allowed: a number above alpha (%g) and below 1", pe.node.Value, s.Alpha)
+	default:
+		s.Power = pw
+	}
+
+	// sizes
+	if s.Solve != "n" {
+		if err := r.size(s, ro.size, "required when solving "+s.Solve+": the number enrolled"); err != nil {
+			return err
+		}
+	} else if r.get(ro.size) != nil {
+		s.Ignored = append(s.Ignored, ro.size+" is ignored when solving n")
+	}
+	if s.Design == "cross-sectional" {
+		if s.ExposurePrevalence, err = r.probability("exposure_prevalence", "required: the fraction of the surveyed population that is exposed"); err != nil {
+			return err
+		}
+		s.Ratio = (1 - s.ExposurePrevalence) / s.ExposurePrevalence
+	} else {
+		if s.Ratio, err = r.rangeNum("ratio", 1, func(x float64) bool { return x > 0 && !math.IsInf(x, 0) }); err != nil {
+			return err
+		}
+	}
+
+	// reference and effect
+	s.ReferenceKey = ro.reference
+	if s.P2, err = r.probability(ro.reference, "required: the risk in the "+ro.second); err != nil {
+		return err
+	}
+	var effect *entry
+	for _, k := range ro.effects {
+		e := r.get(k)
+		if e == nil {
+			if raw := r.entries[k]; raw != nil {
+				return r.errAt(raw, "has no value; allowed: %s", specKeys[k].allowed)
+			}
+			continue
+		}
+		if effect != nil {
+			first, second := effect, e
+			if second.keyPos < first.keyPos {
+				first, second = second, first
+			}
+			return r.errAt(second, "a second effect key besides %s; allowed: exactly one of %s", first.key, orList(ro.effects))
+		}
+		effect = e
+	}
+	if effect == nil {
+		return r.errFile("", "no effect given; allowed: exactly one of %s", orList(ro.effects))
+	}
+	s.EffectKey = effect.key
+	if s.EffectValue, _, err = r.number(effect.key); err != nil {
+		return err
+	}
+	return r.effectToP1(s, effect)
+}
+
+// effectToP1 checks the effect value and converts it to the first group's
+// risk.
+func (r *reader) effectToP1(s *Spec, e *entry) error {
+	x, p2 := s.EffectValue, s.P2
+	var p1 float64
+	switch scaleOf(s.EffectKey) {
+	case ScaleRatio, ScaleOdds:
+		if !(x > 0) {
+			return r.errAt(e, "%s is out of range; allowed: a number above 0", e.node.Value)
+		}
+		if scaleOf(s.EffectKey) == ScaleRatio {
+			p1 = x * p2
+		} else {
+			p1 = x * p2 / (1 + p2*(x-1))
+		}
+	case ScaleDifference:
+		if !(x > -1 && x < 1) {
+			return r.errAt(e, "%s is out of range; allowed: a number in (-1, 1)", e.node.Value)
+		}
+		p1 = p2 + x
+	case ScaleRisk:
+		if !(x > 0 && x < 1) {
+			return r.errAt(e, "%s is out of range; allowed: a probability strictly between 0 and 1", e.node.Value)
+		}
+		p1 = x
+	}
+	if s.Solve == "effect" {
+		// The value only names the scale.
+		return nil
+	}
+	ro := roles[s.Design]
+	if !(p1 > 0 && p1 < 1) {
+		return r.errAt(e, "%s with %s %g gives a risk of %.4g in the %s; allowed: an effect that keeps the risk strictly between 0 and 1", e.node.Value, s.ReferenceKey, p2, p1, ro.first)
+	}
+	if math.Abs(p1-p2) < 1e-12 {
+		return r.errAt(e, "%s means no difference between the groups: nothing to detect; allowed: an effect other than no difference (or solve: effect)", e.node.Value)
+	}
+	s.P1 = p1
+	return nil
+}
+
+// Scale is the scale on which an effect is stated.
+type Scale int
+
+// Effect scales.
+const (
+	ScaleRisk       Scale = iota // the first group's risk itself
+	ScaleRatio                   // risk (prevalence) ratio
+	ScaleOdds                    // odds ratio
+	ScaleDifference              // risk (prevalence) difference
+)
+
+func scaleOf(key string) Scale {
+	switch {
+	case strings.HasSuffix(key, "_ratio") && key != "odds_ratio":
+		return ScaleRatio
+	case key == "odds_ratio":
+		return ScaleOdds
+	case strings.HasSuffix(key, "_difference"):
+		return ScaleDifference
+	}
+	return ScaleRisk
+}

@@ -1,0 +1,149 @@
+package cli
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"io"
+	"io/fs"
+	"os"
+	"strings"
+
+	"github.com/spf13/cobra"
+
+	"enough/designs"
+	"enough/examples"
+	"enough/report"
+)
+
+// PlanOptions are the inputs of `enough plan`.
+type PlanOptions struct {
+	IO *IO
+
+	// Spec is the specification's path; "" plans the embedded demo and "-"
+	// reads standard input.
+	Spec   string
+	Format string
+	Output string
+	Sets   []string
+}
+
+// NewCmdPlan builds `enough plan`. runF replaces the run step in tests.
+func NewCmdPlan(streams *IO, runF func(*PlanOptions) error) *cobra.Command {
+	opts := &PlanOptions{IO: streams}
+	cmd := &cobra.Command{
+		Use:   "plan [SPEC.yaml]",
+		Short: "Compute the sample size, power or detectable effect of a study",
+		Long: `Compute what the specification asks (solve: n, power or effect) with the
+chosen closed-form method, and write a protocol-ready summary.
+
+Without a file, plans the embedded demonstration study. With "-", reads the
+specification from standard input.`,
+		Example: `  enough plan study.yaml
+  enough plan study.yaml --format json -o plan.json
+  enough plan study.yaml --set power=0.9 --set sources.power="funder's requirement"`,
+		Args: cobra.MaximumNArgs(1),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			if len(args) == 1 {
+				opts.Spec = args[0]
+			}
+			if !validFormat(opts.Format) {
+				return &inputError{msg: fmt.Sprintf("--format: %q is not a format; allowed: %s", opts.Format, strings.Join(report.Formats, ", "))}
+			}
+			if runF != nil {
+				return runF(opts)
+			}
+			return planRun(opts)
+		},
+	}
+	cmd.Flags().StringVarP(&opts.Format, "format", "f", "markdown", "output format: markdown, text or json")
+	cmd.Flags().StringVarP(&opts.Output, "output", "o", "", "write to this file (atomically) instead of standard output")
+	cmd.Flags().StringArrayVar(&opts.Sets, "set", nil, "override one key, key=value (repeatable; dotted keys such as sources.alpha reach nested keys)")
+	return cmd
+}
+
+func validFormat(f string) bool {
+	for _, x := range report.Formats {
+		if f == x {
+			return true
+		}
+	}
+	return false
+}
+
+func planRun(opts *PlanOptions) error {
+	name, data, err := loadSpec(opts.Spec, opts.IO.In)
+	if err != nil {
+		return err
+	}
+	spec, err := designs.Parse(name, data, opts.Sets)
+	if err != nil {
+		return err
+	}
+	res, err := designs.Plan(spec)
+	if err != nil {
+		return err
+	}
+	var buf bytes.Buffer
+	if err := report.Write(&buf, res, opts.Format); err != nil {
+		return err
+	}
+	return emit(opts.IO.Out, opts.Output, buf.Bytes())
+}
+
+// emit writes data to path atomically, or to out when path is empty.
+func emit(out io.Writer, path string, data []byte) error {
+	if path == "" {
+		_, err := out.Write(data)
+		return err
+	}
+	if err := writeAtomic(path, data); err != nil {
+		return fmt.Errorf("cannot write %s: %w", path, errors.Unwrap(err))
+	}
+	return nil
+}
+
+// loadSpec reads the specification named by path ("" for the embedded demo,
+// "-" for standard input), refusing files over designs.MaxSpecBytes.
+func loadSpec(path string, stdin io.Reader) (string, []byte, error) {
+	var r io.Reader
+	name := path
+	switch path {
+	case "":
+		data, err := examples.Files.ReadFile(examples.Demo)
+		if err != nil {
+			return "", nil, err
+		}
+		return "examples/" + examples.Demo + " (embedded demo)", data, nil
+	case "-":
+		name, r = "(standard input)", stdin
+	default:
+		f, err := os.Open(path)
+		if err != nil {
+			return "", nil, &designs.SpecError{File: path, Msg: "cannot be read: " + describe(err)}
+		}
+		defer f.Close()
+		if st, err := f.Stat(); err == nil && st.IsDir() {
+			return "", nil, &designs.SpecError{File: path, Msg: "is a directory; allowed: a YAML specification file"}
+		}
+		r = f
+	}
+	data, err := io.ReadAll(io.LimitReader(r, designs.MaxSpecBytes+1))
+	if err != nil {
+		return "", nil, &designs.SpecError{File: name, Msg: "cannot be read: " + describe(err)}
+	}
+	return name, data, nil
+}
+
+func describe(err error) string {
+	switch {
+	case errors.Is(err, fs.ErrNotExist):
+		return "no such file"
+	case errors.Is(err, fs.ErrPermission):
+		return "permission denied"
+	}
+	if pe, ok := err.(*fs.PathError); ok {
+		return pe.Err.Error()
+	}
+	return err.Error()
+}

@@ -1,0 +1,103 @@
+// Package cli builds the cobra commands of enough. Commands are thin: they
+// parse flags, call designs and report, and map errors to exit codes.
+package cli
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"strings"
+
+	"github.com/spf13/cobra"
+
+	"enough/designs"
+)
+
+// Exit codes of enough.
+const (
+	ExitOK      = 0 // success
+	ExitFailure = 1 // the plan could not be computed or written
+	ExitInput   = 2 // bad input: the specification, a flag or an argument
+)
+
+// IO holds the streams and the file system access of a command.
+type IO struct {
+	In     io.Reader
+	Out    io.Writer
+	ErrOut io.Writer
+}
+
+// inputError marks a usage problem (exit status 2).
+type inputError struct{ msg string }
+
+func (e *inputError) Error() string { return e.msg }
+
+// NewRootCmd builds the root command with all verbs.
+func NewRootCmd(streams *IO) *cobra.Command {
+	root := &cobra.Command{
+		Use:   "enough",
+		Short: "Plan and check the sample size and power of health studies",
+		Long: `enough plans and checks the sample size and power of health studies:
+cohort, case-control, randomised trial and cross-sectional designs. A study
+is a YAML specification; enough computes the sample size, the power or the
+smallest detectable effect with published closed-form methods and writes a
+protocol-ready summary.
+
+Exit status: 0 success; 1 the plan could not be computed or written;
+2 bad input (specification, flag or argument).`,
+		SilenceUsage:  true,
+		SilenceErrors: true,
+		Version:       designs.Version,
+	}
+	root.SetOut(streams.Out)
+	root.SetErr(streams.ErrOut)
+	root.SetFlagErrorFunc(func(_ *cobra.Command, err error) error {
+		return &inputError{msg: err.Error()}
+	})
+	root.AddCommand(NewCmdPlan(streams, nil), NewCmdNew(streams), NewCmdMethods(streams))
+	return root
+}
+
+// Execute runs the command line args and returns the exit status. Errors
+// are printed once, as one line on ErrOut.
+func Execute(args []string, streams *IO) int {
+	root := NewRootCmd(streams)
+	root.SetArgs(args)
+	err := root.Execute()
+	if err == nil {
+		return ExitOK
+	}
+	fmt.Fprintf(streams.ErrOut, "enough: %s\n", err)
+	return exitCode(err)
+}
+
+func exitCode(err error) int {
+	var se *designs.SpecError
+	var ie *inputError
+	switch {
+	case errors.As(err, &se), errors.As(err, &ie):
+		return ExitInput
+	}
+	if isCobraUsage(err) {
+		return ExitInput
+	}
+	return ExitFailure
+}
+
+// isCobraUsage recognises cobra's own argument errors ("unknown command",
+// "accepts at most 1 arg(s)").
+func isCobraUsage(err error) bool {
+	msg := err.Error()
+	for _, p := range []string{"unknown command", "accepts ", "requires ", "unknown flag", "unknown shorthand flag", "invalid argument"} {
+		if strings.Contains(msg, p) {
+			return true
+		}
+	}
+	return false
+}
+
+// DefaultIO returns the process's streams.
+func DefaultIO() *IO {
+	return &IO{In: os.Stdin, Out: os.Stdout, ErrOut: os.Stderr}
+}

@@ -1,0 +1,284 @@
+package report
+
+import (
+	"fmt"
+	"strings"
+
+	"enough/designs"
+)
+
+// label returns the human name of a specification key.
+var keyLabels = map[string]string{
+	"alpha": "alpha", "sides": "sides", "power": "target power", "n": "enrolment, first group",
+	"total": "enrolment, whole survey", "ratio": "allocation (second per first)",
+	"attrition": "attrition (fraction lost)", "design_effect": "design effect",
+	"unexposed_risk": "risk among the unexposed", "exposed_risk": "risk among the exposed",
+	"control_risk": "risk in the control arm", "intervention_risk": "risk in the intervention arm",
+	"control_exposure": "exposure among controls", "case_exposure": "exposure among cases",
+	"exposure_prevalence":  "share of the surveyed who are exposed",
+	"unexposed_prevalence": "prevalence among the unexposed", "exposed_prevalence": "prevalence among the exposed",
+	"expected_prevalence": "expected prevalence", "risk_ratio": "risk ratio",
+	"prevalence_ratio": "prevalence ratio", "odds_ratio": "odds ratio",
+	"risk_difference": "risk difference", "prevalence_difference": "prevalence difference",
+	"margin": "margin (half-width of the interval)", "confidence": "confidence level",
+	"population": "population size",
+}
+
+func keyLabel(k string) string {
+	if l, ok := keyLabels[k]; ok {
+		return l
+	}
+	return k
+}
+
+func sidesWord(sides int) string {
+	if sides == 1 {
+		return "one-sided"
+	}
+	return "two-sided"
+}
+
+// riskWord is "prevalence" for a cross-sectional study and "risk" otherwise.
+func riskWord(design string) string {
+	if design == "cross-sectional" {
+		return "prevalence"
+	}
+	return "risk"
+}
+
+// source returns " (source: ...)" for a key with a source.
+func source(r *designs.Result, key string) string {
+	if s := r.Spec.Sources[key]; s != "" {
+		return " (source: " + s + ")"
+	}
+	return ""
+}
+
+// citeShort returns "Author (year)" from a citation.
+func citeShort(c string) string {
+	if i := strings.Index(c, ")"); i > 0 {
+		return c[:i+1]
+	}
+	return c
+}
+
+// build turns a result into the document shared by Markdown and text.
+func build(r *designs.Result) *document {
+	d := &document{title: r.Title}
+	what := map[string]string{"cohort": "cohort study", "case-control": "unmatched case-control study",
+		"trial": "parallel-group randomised trial", "cross-sectional": "cross-sectional survey"}[r.Design]
+	solved := map[string]string{"n": "sample size", "power": "power", "effect": "smallest detectable effect"}[r.Solve]
+	if r.Goal == "precision" && r.Solve == "effect" {
+		solved = "achievable precision"
+	}
+	article := "a"
+	if strings.ContainsAny(what[:1], "aeiou") {
+		article = "an"
+	}
+	d.subtitle = fmt.Sprintf("%s plan for %s %s, %s outcome", capitalise(solved), article, what, r.Outcome)
+
+	d.sections = append(d.sections, section{heading: "Justification for the protocol", paras: []string{paragraph(r)}})
+	d.sections = append(d.sections, assumptionSection(r))
+	d.sections = append(d.sections, answerSection(r))
+	if e := effectSection(r); e != nil {
+		d.sections = append(d.sections, *e)
+	}
+	if len(r.Alternatives) > 0 {
+		d.sections = append(d.sections, alternativeSection(r))
+	}
+	if len(r.Warnings) > 0 {
+		d.sections = append(d.sections, section{heading: "Warnings", bullets: r.Warnings})
+	}
+	if len(r.Notes) > 0 {
+		d.sections = append(d.sections, section{heading: "Notes", bullets: r.Notes})
+	}
+	d.sections = append(d.sections, section{heading: "Rounding and inflation, in this order", bullets: r.Order, ordered: true})
+	d.sections = append(d.sections, section{heading: "Cautions", bullets: r.Cautions})
+
+	spec := r.SpecFile
+	d.footer = append(d.footer, fmt.Sprintf("%s %s · specification %s · SHA-256 %s", r.Tool, r.Version, spec, r.SpecSHA256))
+	if len(r.Overrides) > 0 {
+		d.footer = append(d.footer, "overridden on the command line: "+strings.Join(r.Overrides, ", "))
+	}
+	return d
+}
+
+func capitalise(s string) string {
+	if s == "" {
+		return s
+	}
+	return strings.ToUpper(s[:1]) + s[1:]
+}
+
+func assumptionSection(r *designs.Result) section {
+	rows := [][]string{{"Assumption", "Key", "Value", "Source"}}
+	for _, a := range r.Assumptions {
+		src := a.Source
+		if src == "" {
+			src = "not stated"
+		}
+		rows = append(rows, []string{keyLabel(a.Key), "`" + a.Key + "`", a.Value, src})
+	}
+	s := section{heading: "Assumptions", table: rows}
+	var defaults []string
+	has := map[string]bool{}
+	for _, a := range r.Assumptions {
+		has[a.Key] = true
+	}
+	if r.Alpha != nil && !has["alpha"] {
+		defaults = append(defaults, fmt.Sprintf("alpha %g", *r.Alpha))
+	}
+	if r.Sides != 0 && !has["sides"] {
+		defaults = append(defaults, sidesWord(r.Sides)+" test")
+	}
+	if r.Ratio != nil && !has["ratio"] && r.Design != "cross-sectional" {
+		defaults = append(defaults, "allocation "+allocation(*r.Ratio))
+	}
+	if !has["attrition"] {
+		defaults = append(defaults, "no attrition")
+	}
+	if !has["design_effect"] {
+		defaults = append(defaults, "design effect 1")
+	}
+	if r.Goal == "precision" && !has["confidence"] {
+		defaults = append(defaults, "95% confidence")
+	}
+	if len(defaults) > 0 {
+		s.after = append(s.after, "Defaults in force: "+strings.Join(defaults, "; ")+".")
+	}
+	return s
+}
+
+func answerSection(r *designs.Result) section {
+	a := r.Result
+	s := section{heading: "Answer"}
+	if r.Goal == "precision" {
+		if r.Solve == "n" {
+			s.bullets = append(s.bullets,
+				fmt.Sprintf("**Respondents needed: %s** (unrounded %.2f; %.2f before design effect and finite population correction)", count(a.Total), a.NStar, a.N0),
+				fmt.Sprintf("**People to invite: %s**, allowing for %s non-response", count(a.EnrolTotal), pct(r.Attrition)),
+				fmt.Sprintf("Margin: ±%s at %s confidence", strings.TrimSuffix(pct(*a.Margin), "%")+" percentage points", pct(r.Spec.Confidence)))
+		} else {
+			s.bullets = append(s.bullets,
+				fmt.Sprintf("**Achievable margin: ±%s percentage points** at %s confidence", strings.TrimSuffix(pct(*a.Margin), "%"), pct(r.Spec.Confidence)),
+				fmt.Sprintf("Invited: %s; expected respondents after %s non-response: %s", count(a.EnrolTotal), pct(r.Attrition), count(a.Total)))
+		}
+		return s
+	}
+	first, second := r.FirstGroup, r.SecondGroup
+	switch r.Solve {
+	case "n":
+		s.bullets = append(s.bullets,
+			fmt.Sprintf("**Analysable: %s and %s, %s in total**", members(a.N[0], first), members(a.N[1], second), count(a.Total)),
+			fmt.Sprintf("**Enrolment target: %s and %s, %s in total**", members(a.Enrol[0], first), members(a.Enrol[1], second), count(a.EnrolTotal)),
+			fmt.Sprintf("Achieved power at the analysable sizes: %s (target %s)", pct1(*a.AchievedPower), pct1(*r.Power)),
+			fmt.Sprintf("Unrounded size of the first group from the formula: %.2f", a.NStar))
+	case "power":
+		s.bullets = append(s.bullets,
+			fmt.Sprintf("**Power: %s**", pct1(*a.AchievedPower)),
+			fmt.Sprintf("Enrolled: %s and %s, %s in total", members(a.Enrol[0], first), members(a.Enrol[1], second), count(a.EnrolTotal)),
+			fmt.Sprintf("Analysable after %s attrition: %s and %s, %s in total", pct(r.Attrition), count(a.N[0]), count(a.N[1]), count(a.Total)))
+	case "effect":
+		det := a.Detectable
+		scale := keyLabel(det.Scale)
+		for _, side := range []struct {
+			v    *float64
+			e    *designs.Effect
+			name string
+		}{{det.Lower, det.LowerEffect, "below no difference"}, {det.Upper, det.UpperEffect, "above no difference"}} {
+			if side.v == nil {
+				s.bullets = append(s.bullets, fmt.Sprintf("%s: cannot be reached with these sizes", capitalise(side.name)))
+				continue
+			}
+			s.bullets = append(s.bullets, fmt.Sprintf("**%s: %s %s** (%s)", capitalise(side.name), scale, valueOn(det.Scale, *side.v), restateShort(r, side.e)))
+		}
+		s.bullets = append(s.bullets,
+			fmt.Sprintf("Power: %s; enrolled %s and %s; analysable %s and %s", pct1(*r.Power), count(a.Enrol[0]), count(a.Enrol[1]), count(a.N[0]), count(a.N[1])))
+	}
+	return s
+}
+
+// valueOn formats a value on the scale of an effect key.
+func valueOn(key string, v float64) string {
+	switch {
+	case strings.HasSuffix(key, "_difference"):
+		return pp(v)
+	case strings.HasSuffix(key, "_ratio"):
+		return num(v)
+	}
+	return pct(v)
+}
+
+// restateShort gives the two groups' risks (or exposures) of an effect.
+func restateShort(r *designs.Result, e *designs.Effect) string {
+	if e.CaseExposure != nil {
+		return fmt.Sprintf("%s of %s exposed against %s of %s", pct(*e.CaseExposure), r.FirstGroup, pct(*e.ControlExposure), r.SecondGroup)
+	}
+	return fmt.Sprintf("%s %s in the %s against %s in the %s", riskWord(r.Design), pct(*e.FirstRisk), r.FirstGroup, pct(*e.SecondRisk), r.SecondGroup)
+}
+
+func effectSection(r *designs.Result) *section {
+	e := r.Result.Effect
+	if e == nil {
+		return nil
+	}
+	s := &section{heading: "The planned effect on every scale"}
+	if e.CaseExposure != nil {
+		s.bullets = []string{
+			fmt.Sprintf("Exposure among %s: %s (odds %s)", r.FirstGroup, pct(*e.CaseExposure), num(*e.CaseOdds)),
+			fmt.Sprintf("Exposure among %s: %s (odds %s)", r.SecondGroup, pct(*e.ControlExposure), num(*e.ControlOdds)),
+			fmt.Sprintf("Odds ratio: %s", num(e.OddsRatio)),
+			"Risks, risk ratio, risk difference and number needed to treat are not estimable: a case-control study samples on the outcome.",
+		}
+		return s
+	}
+	rw := riskWord(r.Design)
+	s.bullets = []string{
+		fmt.Sprintf("%s in the %s: %s; in the %s: %s", capitalise(rw), r.FirstGroup, pct(*e.FirstRisk), r.SecondGroup, pct(*e.SecondRisk)),
+		fmt.Sprintf("%s ratio: %s", capitalise(rw), num(*e.RiskRatio)),
+		fmt.Sprintf("Odds ratio: %s", num(e.OddsRatio)),
+		fmt.Sprintf("%s difference: %s", capitalise(rw), pp(*e.RiskDifference)),
+	}
+	if e.NNT != nil {
+		var what string
+		switch {
+		case r.Design == "trial" && *e.RiskDifference < 0:
+			what = fmt.Sprintf("Number needed to treat: %s in the %s for one outcome event fewer", count(*e.NNT), r.FirstGroup)
+		case r.Design == "trial":
+			what = fmt.Sprintf("Number needed to treat (or to harm, if the outcome is adverse): %s in the %s for one outcome event more", count(*e.NNT), r.FirstGroup)
+		case *e.RiskDifference > 0:
+			what = fmt.Sprintf("Number needed to harm: %s exposed for one additional case", count(*e.NNT))
+		default:
+			what = fmt.Sprintf("Number needed to be exposed for one case fewer: %s", count(*e.NNT))
+		}
+		s.bullets = append(s.bullets, what+" (1/|difference|, rounded up)")
+	}
+	return s
+}
+
+func alternativeSection(r *designs.Result) section {
+	s := section{heading: "Other applicable methods"}
+	s.paras = []string{fmt.Sprintf("The chosen method is %s (%s). The same question answered by the other methods that serve this design:", r.MethodName, citeShort(r.Citation))}
+	for _, alt := range r.Alternatives {
+		var line string
+		switch r.Solve {
+		case "n":
+			line = fmt.Sprintf("%s (%s): %s and %s analysable, %s in total; %s to enrol; achieved power %s",
+				alt.Name, citeShort(alt.Citation), count(alt.N[0]), count(alt.N[1]), count(alt.Total), count(alt.EnrolTotal), pct1(*alt.AchievedPower))
+		case "power":
+			line = fmt.Sprintf("%s (%s): power %s", alt.Name, citeShort(alt.Citation), pct1(*alt.AchievedPower))
+		case "effect":
+			det := alt.Detectable
+			lo, hi := "not reachable", "not reachable"
+			if det.Lower != nil {
+				lo = valueOn(det.Scale, *det.Lower)
+			}
+			if det.Upper != nil {
+				hi = valueOn(det.Scale, *det.Upper)
+			}
+			line = fmt.Sprintf("%s (%s): %s %s below, %s above no difference", alt.Name, citeShort(alt.Citation), keyLabel(det.Scale), lo, hi)
+		}
+		s.bullets = append(s.bullets, line)
+	}
+	return s
+}
