@@ -1,6 +1,6 @@
 module enough
 
-go 1.24.0
+go 1.25
 
 require (
 	github.com/spf13/cobra v1.10.2
@@ -10,5 +10,8 @@ require (
 
 require (
 	github.com/inconshreveable/mousetrap v1.1.0 // indirect
+	github.com/rogpeppe/go-internal v1.16.0 // indirect
 	github.com/spf13/pflag v1.0.9 // indirect
+	golang.org/x/sys v0.30.0 // indirect
+	golang.org/x/tools v0.30.0 // indirect
 )

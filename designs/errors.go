@@ -34,33 +34,39 @@ func (e *SpecError) Error() string {
 	return b.String()
 }
 
-// levenshtein returns the edit distance between a and b.
-func levenshtein(a, b string) int {
-	prev := make([]int, len(b)+1)
-	cur := make([]int, len(b)+1)
-	for j := range prev {
-		prev[j] = j
+// editDistance returns the optimal-string-alignment distance between a and
+// b: insertions, deletions, substitutions and transpositions of adjacent
+// letters each count one (Damerau 1964).
+func editDistance(a, b string) int {
+	d := make([][]int, len(a)+1)
+	for i := range d {
+		d[i] = make([]int, len(b)+1)
+		d[i][0] = i
+	}
+	for j := range d[0] {
+		d[0][j] = j
 	}
 	for i := 1; i <= len(a); i++ {
-		cur[0] = i
 		for j := 1; j <= len(b); j++ {
 			cost := 1
 			if a[i-1] == b[j-1] {
 				cost = 0
 			}
-			cur[j] = min(prev[j]+1, cur[j-1]+1, prev[j-1]+cost)
+			d[i][j] = min(d[i-1][j]+1, d[i][j-1]+1, d[i-1][j-1]+cost)
+			if i > 1 && j > 1 && a[i-1] == b[j-2] && a[i-2] == b[j-1] {
+				d[i][j] = min(d[i][j], d[i-2][j-2]+1)
+			}
 		}
-		prev, cur = cur, prev
 	}
-	return prev[len(b)]
+	return d[len(a)][len(b)]
 }
 
 // nearest returns the candidate closest to s, if it is close enough to be a
-// plausible typo (at most a third of the word, and at most 3 edits).
+// plausible typo (at most 2 edits, or a third of a longer word, and at most 3).
 func nearest(s string, candidates []string) (string, bool) {
 	best, bestD := "", 1<<30
 	for _, c := range candidates {
-		d := levenshtein(s, c)
+		d := editDistance(s, c)
 		if strings.Contains(c, s) || strings.Contains(s, c) {
 			d = min(d, 2)
 		}
@@ -68,6 +74,6 @@ func nearest(s string, candidates []string) (string, bool) {
 			best, bestD = c, d
 		}
 	}
-	limit := min(3, max(1, len(s)/3))
+	limit := min(3, max(2, len(s)/3))
 	return best, bestD <= limit
 }

@@ -125,6 +125,11 @@ func Parse(file string, data []byte, sets []string) (*Spec, error) {
 		msg := err.Error()
 		if m := yamlLine.FindStringSubmatch(strings.SplitN(msg, "\n", 2)[0]); m != nil {
 			line, _ := strconv.Atoi(m[1])
+			if tl := tabLine(data, line); tl > 0 {
+				// yaml.v3 may report the line before the tab; point at it.
+				line = tl
+				return nil, &SpecError{File: file, Line: line, Msg: "YAML syntax error: a tab character in the indentation; allowed: spaces only"}
+			}
 			return nil, &SpecError{File: file, Line: line, Msg: "YAML syntax error: " + m[2]}
 		}
 		msg = strings.TrimPrefix(strings.ReplaceAll(msg, "\n", "; "), "yaml: ")
@@ -154,6 +159,22 @@ func Parse(file string, data []byte, sets []string) (*Spec, error) {
 	spec.SHA256 = hex.EncodeToString(sum[:])
 	spec.Overrides = append([]string(nil), sets...)
 	return spec, nil
+}
+
+// tabLine returns line or the line after it when its indentation holds a
+// tab, and 0 otherwise.
+func tabLine(data []byte, line int) int {
+	lines := strings.Split(string(data), "\n")
+	for _, n := range []int{line, line + 1} {
+		if n < 1 || n > len(lines) {
+			continue
+		}
+		l := lines[n-1]
+		if strings.Contains(l[:len(l)-len(strings.TrimLeft(l, " \t"))], "\t") {
+			return n
+		}
+	}
+	return 0
 }
 
 // collect records the top-level keys of root, rejecting unknown and repeated

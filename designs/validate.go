@@ -66,12 +66,12 @@ func (r *reader) build() (*Spec, error) {
 			what += " with goal " + goal
 		}
 		msg := fmt.Sprintf("does not apply to %s", what)
-		if sug, ok := nearest(e.key, names); ok {
-			msg += fmt.Sprintf("; did you mean %q?", sug)
-		} else if precision && (e.key == "alpha" || e.key == "power" || e.key == "sides") {
+		if precision && (e.key == "alpha" || e.key == "power" || e.key == "sides") {
 			msg += "; a precision survey is set by margin and confidence"
 		} else if e.key == "ratio" && design == "cross-sectional" {
 			msg += "; the split between groups follows from exposure_prevalence"
+		} else if sug, ok := nearest(e.key, names); ok {
+			msg += fmt.Sprintf("; did you mean %q?", sug)
 		}
 		return nil, r.errAt(e, "%s", msg)
 	}
