@@ -76,11 +76,24 @@ func assumptions(s *Spec) []Assumption {
 	skip := map[string]bool{"version": true, "title": true, "design": true, "outcome": true,
 		"solve": true, "method": true, "test": true, "goal": true, "primary_outcome": true,
 		"first_group": true, "second_group": true}
+	// Keys the solve ignores are left out (a warning names them).
+	switch s.Solve {
+	case "n":
+		skip["n"], skip["total"] = true, true
+	case "power":
+		skip["power"] = true
+	case "effect":
+		skip["margin"] = true
+	}
 	for _, g := range s.Given {
 		if skip[g.Key] {
 			continue
 		}
-		out = append(out, Assumption{Key: g.Key, Value: g.Value, Source: s.Sources[g.Key]})
+		v := g.Value
+		if s.Solve == "effect" && g.Key == s.EffectKey {
+			v = "solved (the key names the scale of the answer)"
+		}
+		out = append(out, Assumption{Key: g.Key, Value: v, Source: s.Sources[g.Key]})
 	}
 	return out
 }

@@ -195,6 +195,11 @@ func answerSection(r *designs.Result) section {
 		s.bullets = append(s.bullets,
 			fmt.Sprintf("Power: %s; enrolled %s and %s; analysable %s and %s", pct1(*r.Power), count(a.Enrol[0]), count(a.Enrol[1]), count(a.N[0]), count(a.N[1])))
 	}
+	line := fmt.Sprintf("Allocation %s:%s = %s", first, second, allocation(*r.Ratio))
+	if r.Design == "cross-sectional" {
+		line += fmt.Sprintf(" (follows from %s of those surveyed being exposed)", pct(r.Spec.ExposurePrevalence))
+	}
+	s.bullets = append(s.bullets, line)
 	return s
 }
 

@@ -123,6 +123,18 @@ func paragraph(r *designs.Result) string {
 // inflation describes the design effect and attrition steps.
 func inflation(b *strings.Builder, r *designs.Result) {
 	a := r.Result
+	if r.Design == "cross-sectional" {
+		if r.DesignEff > 1 {
+			fmt.Fprintf(b, "These numbers include a design effect of %g. ", r.DesignEff)
+		}
+		if r.Attrition > 0 {
+			fmt.Fprintf(b, "Allowing for %s non-response, we will invite %s people (about %s exposed and %s unexposed).",
+				pct(r.Attrition), count(a.EnrolTotal), count(a.Enrol[0]), count(a.Enrol[1]))
+		} else {
+			fmt.Fprintf(b, "No non-response is expected, so we will survey %s people.", count(a.EnrolTotal))
+		}
+		return
+	}
 	switch {
 	case r.DesignEff > 1 && r.Attrition > 0:
 		fmt.Fprintf(b, "These numbers include a design effect of %g; allowing further for %s attrition, we will enrol %s and %s, %s participants in total.",
