@@ -8,8 +8,9 @@ type MethodInfo struct {
 	ID string
 	// Name spells the method out for people.
 	Name string
-	// Citation is the published reference.
+	// Citation is the published reference; Short is its author-year form.
 	Citation string
+	Short    string
 	// Designs lists the designs the method serves; Goal, when set, restricts
 	// cross-sectional use to that goal.
 	Designs []string
@@ -27,7 +28,7 @@ type MethodInfo struct {
 // `enough methods`.
 var Methods = []MethodInfo{
 	{
-		ID: "fleiss-cc", Name: "Fleiss with continuity correction",
+		ID: "fleiss-cc", Short: "Fleiss, Tytun & Ury 1980", Name: "Fleiss with continuity correction",
 		Citation:    "Fleiss JL, Tytun A, Ury HK (1980). A simple approximation for calculating sample sizes for comparing independent proportions. Biometrics 36:343-346",
 		Designs:     []string{"cohort", "case-control", "trial", "cross-sectional"},
 		Goal:        "comparison",
@@ -36,7 +37,7 @@ var Methods = []MethodInfo{
 		engine:      power.FleissCC,
 	},
 	{
-		ID: "fleiss", Name: "Fleiss, no continuity correction",
+		ID: "fleiss", Short: "Fleiss, Levin & Paik 2003", Name: "Fleiss, no continuity correction",
 		Citation:    "Fleiss JL, Levin B, Paik MC (2003). Statistical Methods for Rates and Proportions, 3rd ed. Wiley, chapter 4",
 		Designs:     []string{"cohort", "case-control", "trial", "cross-sectional"},
 		Goal:        "comparison",
@@ -45,7 +46,7 @@ var Methods = []MethodInfo{
 		engine:      power.Fleiss,
 	},
 	{
-		ID: "kelsey", Name: "Kelsey",
+		ID: "kelsey", Short: "Kelsey et al. 1996", Name: "Kelsey",
 		Citation:    "Kelsey JL, Whittemore AS, Evans AS, Thompson WD (1996). Methods in Observational Epidemiology, 2nd ed. Oxford University Press",
 		Designs:     []string{"cohort", "case-control", "trial", "cross-sectional"},
 		Goal:        "comparison",
@@ -54,7 +55,7 @@ var Methods = []MethodInfo{
 		engine:      power.Kelsey,
 	},
 	{
-		ID: "schlesselman", Name: "Schlesselman",
+		ID: "schlesselman", Short: "Schlesselman 1982", Name: "Schlesselman",
 		Citation:    "Schlesselman JJ (1982). Case-Control Studies: Design, Conduct, Analysis. Oxford University Press, chapter 6",
 		Designs:     []string{"case-control"},
 		DefaultTest: "chi-square",
@@ -62,7 +63,7 @@ var Methods = []MethodInfo{
 		engine:      power.Schlesselman,
 	},
 	{
-		ID: "wald", Name: "Wald interval (normal approximation)",
+		ID: "wald", Short: "Cochran 1977", Name: "Wald interval (normal approximation)",
 		Citation:    "Cochran WG (1977). Sampling Techniques, 3rd ed. Wiley, chapter 4",
 		Designs:     []string{"cross-sectional"},
 		Goal:        "precision",

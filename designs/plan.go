@@ -42,7 +42,7 @@ func Plan(s *Spec) (*Result, error) {
 		Tool: Tool, Version: Version,
 		SpecFile: s.File, SpecSHA256: s.SHA256, Overrides: s.Overrides,
 		Title: s.Title, Design: s.Design, Goal: s.Goal, Outcome: s.Outcome,
-		Solve: s.Solve, Method: s.Method, MethodName: m.Name, Citation: m.Citation,
+		Solve: s.Solve, Method: s.Method, MethodName: m.Name, Citation: m.Citation, Short: m.Short,
 		Test: s.Test, TestName: TestName(s.Test),
 		Attrition: s.Attrition, DesignEff: s.DesignEffect,
 		Alternatives: []Alternative{}, Notes: []string{}, Warnings: append([]string{}, s.Ignored...),
@@ -196,7 +196,7 @@ func planComparison(s *Spec, res *Result, m *MethodInfo) error {
 			}
 			osz := sizesFromNStar(s, ns)
 			res.Alternatives = append(res.Alternatives, Alternative{
-				Method: o.ID, Name: o.Name, Citation: o.Citation,
+				Method: o.ID, Name: o.Name, Citation: o.Citation, Short: o.Short,
 				N: osz.n, Total: sum(osz.n), EnrolTotal: sum(osz.enrol),
 				AchievedPower: ptr(o.engine.Power(tp, osz.eff[0], osz.eff[1])),
 			})
@@ -220,7 +220,7 @@ func planComparison(s *Spec, res *Result, m *MethodInfo) error {
 		ans.Effect = effectOf(s.Design, s.P1, s.P2)
 		for _, o := range others {
 			res.Alternatives = append(res.Alternatives, Alternative{
-				Method: o.ID, Name: o.Name, Citation: o.Citation,
+				Method: o.ID, Name: o.Name, Citation: o.Citation, Short: o.Short,
 				AchievedPower: ptr(o.engine.Power(tp, sz.eff[0], sz.eff[1])),
 			})
 		}
@@ -234,7 +234,7 @@ func planComparison(s *Spec, res *Result, m *MethodInfo) error {
 		ans.Detectable = detectable(s, m.engine, sz)
 		for _, o := range others {
 			res.Alternatives = append(res.Alternatives, Alternative{
-				Method: o.ID, Name: o.Name, Citation: o.Citation,
+				Method: o.ID, Name: o.Name, Citation: o.Citation, Short: o.Short,
 				Detectable: detectable(s, o.engine, sz),
 			})
 		}

@@ -29,6 +29,7 @@ type Result struct {
 	Method      string   `json:"method"`
 	MethodName  string   `json:"method_name"`
 	Citation    string   `json:"citation"`
+	Short       string   `json:"-"`
 	Test        string   `json:"test,omitempty"`
 	TestName    string   `json:"test_name,omitempty"`
 	Alpha       *float64 `json:"alpha,omitempty"`
@@ -116,6 +117,7 @@ type Alternative struct {
 	Method        string      `json:"method"`
 	Name          string      `json:"name"`
 	Citation      string      `json:"citation"`
+	Short         string      `json:"-"`
 	N             []int       `json:"n,omitempty"`
 	Total         int         `json:"total,omitempty"`
 	EnrolTotal    int         `json:"enrol_total,omitempty"`

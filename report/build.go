@@ -54,14 +54,6 @@ func source(r *designs.Result, key string) string {
 	return ""
 }
 
-// citeShort returns "Author (year)" from a citation.
-func citeShort(c string) string {
-	if i := strings.Index(c, ")"); i > 0 {
-		return c[:i+1]
-	}
-	return c
-}
-
 // build turns a result into the document shared by Markdown and text.
 func build(r *designs.Result) *document {
 	d := &document{title: r.Title}
@@ -263,15 +255,15 @@ func effectSection(r *designs.Result) *section {
 
 func alternativeSection(r *designs.Result) section {
 	s := section{heading: "Other applicable methods"}
-	s.paras = []string{fmt.Sprintf("The chosen method is %s (%s). The same question answered by the other methods that serve this design:", r.MethodName, citeShort(r.Citation))}
+	s.paras = []string{fmt.Sprintf("The chosen method is %s (%s). The same question answered by the other methods that serve this design:", r.MethodName, r.Short)}
 	for _, alt := range r.Alternatives {
 		var line string
 		switch r.Solve {
 		case "n":
 			line = fmt.Sprintf("%s (%s): %s and %s analysable, %s in total; %s to enrol; achieved power %s",
-				alt.Name, citeShort(alt.Citation), count(alt.N[0]), count(alt.N[1]), count(alt.Total), count(alt.EnrolTotal), pct1(*alt.AchievedPower))
+				alt.Name, alt.Short, count(alt.N[0]), count(alt.N[1]), count(alt.Total), count(alt.EnrolTotal), pct1(*alt.AchievedPower))
 		case "power":
-			line = fmt.Sprintf("%s (%s): power %s", alt.Name, citeShort(alt.Citation), pct1(*alt.AchievedPower))
+			line = fmt.Sprintf("%s (%s): power %s", alt.Name, alt.Short, pct1(*alt.AchievedPower))
 		case "effect":
 			det := alt.Detectable
 			lo, hi := "not reachable", "not reachable"
@@ -281,7 +273,7 @@ func alternativeSection(r *designs.Result) section {
 			if det.Upper != nil {
 				hi = valueOn(det.Scale, *det.Upper)
 			}
-			line = fmt.Sprintf("%s (%s): %s %s below, %s above no difference", alt.Name, citeShort(alt.Citation), keyLabel(det.Scale), lo, hi)
+			line = fmt.Sprintf("%s (%s): %s %s below, %s above no difference", alt.Name, alt.Short, keyLabel(det.Scale), lo, hi)
 		}
 		s.bullets = append(s.bullets, line)
 	}

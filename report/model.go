@@ -130,7 +130,7 @@ func (d *document) text(w io.Writer) error {
 
 // plain strips the Markdown emphasis used in the document.
 func plain(s string) string {
-	return strings.NewReplacer("**", "", "`", "", "*", "").Replace(s)
+	return strings.NewReplacer("**", "", "`", "").Replace(s)
 }
 
 // wrap breaks s into lines of at most width runes; later lines get indent.

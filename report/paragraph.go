@@ -35,6 +35,7 @@ func paragraph(r *designs.Result) string {
 
 	// Assumptions.
 	ref := fmt.Sprintf("%s%s", pct(s.P2), source(r, s.ReferenceKey))
+	refSrc := source(r, s.ReferenceKey)
 	eff := source(r, s.EffectKey)
 	if r.Solve == "effect" {
 		switch r.Design {
@@ -43,7 +44,7 @@ func paragraph(r *designs.Result) string {
 		case "cross-sectional":
 			fmt.Fprintf(&b, "We expect %s of those surveyed to be exposed%s and a prevalence of %s among the unexposed. ", pct(s.ExposurePrevalence), source(r, "exposure_prevalence"), ref)
 		default:
-			fmt.Fprintf(&b, "We assume a %s of %s in the %s. ", riskWord(r.Design), ref, second)
+			fmt.Fprintf(&b, "We assume a %s of %s in the %s%s. ", riskWord(r.Design), pct(s.P2), second, refSrc)
 		}
 	} else {
 		e := r.Result.Effect
@@ -55,8 +56,8 @@ func paragraph(r *designs.Result) string {
 			fmt.Fprintf(&b, "We expect %s of those surveyed to be exposed%s, a prevalence of %s among the unexposed and of %s among the exposed%s: a prevalence ratio of %s (difference %s; odds ratio %s). ",
 				pct(s.ExposurePrevalence), source(r, "exposure_prevalence"), ref, pct(*e.FirstRisk), eff, num(*e.RiskRatio), pp(*e.RiskDifference), num(e.OddsRatio))
 		default:
-			fmt.Fprintf(&b, "We assume a risk of %s in the %s and plan for a risk of %s in the %s%s: a risk ratio of %s (risk difference %s; odds ratio %s). ",
-				ref, second, pct(*e.FirstRisk), first, eff, num(*e.RiskRatio), pp(*e.RiskDifference), num(e.OddsRatio))
+			fmt.Fprintf(&b, "We assume a risk of %s in the %s%s and plan for a risk of %s in the %s%s: a risk ratio of %s (risk difference %s; odds ratio %s). ",
+				pct(s.P2), second, refSrc, pct(*e.FirstRisk), first, eff, num(*e.RiskRatio), pp(*e.RiskDifference), num(e.OddsRatio))
 		}
 	}
 

@@ -98,7 +98,7 @@ func emit(out io.Writer, path string, data []byte) error {
 		return err
 	}
 	if err := writeAtomic(path, data); err != nil {
-		return fmt.Errorf("cannot write %s: %w", path, errors.Unwrap(err))
+		return fmt.Errorf("cannot write %s: %s", path, describe(err))
 	}
 	return nil
 }

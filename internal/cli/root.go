@@ -68,8 +68,23 @@ func Execute(args []string, streams *IO) int {
 	if err == nil {
 		return ExitOK
 	}
-	fmt.Fprintf(streams.ErrOut, "enough: %s\n", err)
+	fmt.Fprintf(streams.ErrOut, "enough: %s\n", oneLine(err.Error()))
 	return exitCode(err)
+}
+
+// oneLine folds a multi-line message (cobra's suggestions) onto one line.
+func oneLine(msg string) string {
+	var parts []string
+	for _, l := range strings.Split(msg, "\n") {
+		if l = strings.TrimSpace(l); l != "" {
+			parts = append(parts, l)
+		}
+	}
+	out := strings.Join(parts, "; ")
+	if i := strings.Index(out, "; Did you mean this?; "); i >= 0 {
+		out = out[:i] + "; did you mean " + strings.ReplaceAll(out[i+len("; Did you mean this?; "):], "; ", " or ") + "?"
+	}
+	return out
 }
 
 func exitCode(err error) int {
