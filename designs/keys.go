@@ -35,7 +35,7 @@ var specKeys = map[string]keyInfo{
 	"total":           {kindWhole, "a whole number of at least 2"},
 	"ratio":           {kindNumber, "a number above 0"},
 	"attrition":       {kindNumber, "a fraction in [0, 1)"},
-	"design_effect":   {kindNumber, "a number of at least 1"},
+	"design_effect":   {kindNumber, "a number from 1 to 1000"},
 	"sources":         {kindMap, "a map from an assumption's key to where its value came from"},
 	"primary_outcome": {kindText, "a line of text"},
 	"first_group":     {kindText, "a line of text"},
@@ -57,7 +57,7 @@ var specKeys = map[string]keyInfo{
 	"risk_difference":       {kindNumber, "a number in (-1, 1)"},
 	"prevalence_difference": {kindNumber, "a number in (-1, 1)"},
 	"margin":                {kindNumber, "a number in (0, 0.5)"},
-	"confidence":            {kindNumber, "a number in (0, 1)"},
+	"confidence":            {kindNumber, "a number in [0.5, 1)"},
 	"population":            {kindWhole, "a whole number of at least 2"},
 }
 

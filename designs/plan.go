@@ -106,17 +106,34 @@ type sizes struct {
 	eff [2]float64
 }
 
+// checkSizes refuses sizes that are not finite, exceed MaxSize or round to
+// no participant at all; they come from extreme assumptions.
+func checkSizes(s *Spec, xs ...float64) error {
+	for _, x := range xs {
+		switch {
+		case !(x <= MaxSize):
+			return &PlanError{File: s.File, Msg: fmt.Sprintf("the plan would need more than %s participants in a group; allowed: assumptions that give at most that (check alpha, the effect, ratio, design_effect and margin)", "1,000,000,000")}
+		case !(x > roundTol):
+			return &PlanError{File: s.File, Msg: "a group would have no participant at all; allowed: a ratio (or exposure_prevalence) that gives each group at least one participant"}
+		}
+	}
+	return nil
+}
+
 // sizesFromNStar applies the documented rounding and inflation order to the
 // unrounded first-group size: n = ceil(n* × deff) per group, then
 // enrolment = ceil(n / (1 − attrition)).
-func sizesFromNStar(s *Spec, nstar float64) sizes {
-	n1 := ceilTol(nstar * s.DesignEffect)
-	n2 := ceilTol(s.Ratio * nstar * s.DesignEffect)
+func sizesFromNStar(s *Spec, nstar float64) (sizes, error) {
+	f1, f2 := nstar*s.DesignEffect, s.Ratio*nstar*s.DesignEffect
+	if err := checkSizes(s, f1, f2, f1/(1-s.Attrition), f2/(1-s.Attrition)); err != nil {
+		return sizes{}, err
+	}
+	n1, n2 := ceilTol(f1), ceilTol(f2)
 	return sizes{
 		n:     []int{n1, n2},
 		enrol: []int{ceilTol(float64(n1) / (1 - s.Attrition)), ceilTol(float64(n2) / (1 - s.Attrition))},
 		eff:   [2]float64{float64(n1) / s.DesignEffect, float64(n2) / s.DesignEffect},
-	}
+	}, nil
 }
 
 // sizesFromEnrolment turns the specification's enrolment into analysable
@@ -134,6 +151,9 @@ func sizesFromEnrolment(s *Spec) (sizes, error) {
 			eff:   [2]float64{e * float64(a) / s.DesignEffect, (1 - e) * float64(a) / s.DesignEffect},
 		}
 	} else {
+		if err := checkSizes(s, s.Ratio*float64(s.N)); err != nil {
+			return sz, err
+		}
 		e1, e2 := s.N, ceilTol(s.Ratio*float64(s.N))
 		a1, a2 := floorTol(float64(e1)*(1-s.Attrition)), floorTol(float64(e2)*(1-s.Attrition))
 		sz = sizes{
@@ -183,7 +203,10 @@ func planComparison(s *Spec, res *Result, m *MethodInfo) error {
 		if err != nil {
 			return solveError(s, err)
 		}
-		sz := sizesFromNStar(s, nstar)
+		sz, err := sizesFromNStar(s, nstar)
+		if err != nil {
+			return err
+		}
 		ans.NStar = nstar
 		fillSizes(ans, sz)
 		ans.AchievedPower = ptr(m.engine.Power(tp, sz.eff[0], sz.eff[1]))
@@ -194,7 +217,10 @@ func planComparison(s *Spec, res *Result, m *MethodInfo) error {
 			if err != nil {
 				continue
 			}
-			osz := sizesFromNStar(s, ns)
+			osz, err := sizesFromNStar(s, ns)
+			if err != nil {
+				continue
+			}
 			res.Alternatives = append(res.Alternatives, Alternative{
 				Method: o.ID, Name: o.Name, Citation: o.Citation, Short: o.Short,
 				N: osz.n, Total: sum(osz.n), EnrolTotal: sum(osz.enrol),
@@ -405,6 +431,9 @@ func planPrecision(s *Spec, res *Result) error {
 	switch s.Solve {
 	case "n":
 		n0, n := power.PrecisionN(pr, s.Margin)
+		if err := checkSizes(s, n, n/(1-s.Attrition)); err != nil {
+			return err
+		}
 		a := ceilTol(n)
 		ans.N0, ans.NStar = n0, n
 		ans.N, ans.Total = []int{a}, a
@@ -422,6 +451,9 @@ func planPrecision(s *Spec, res *Result) error {
 		ans.N, ans.Total = []int{a}, a
 		ans.Enrol, ans.EnrolTotal = []int{s.Total}, s.Total
 		ans.Margin = ptr(power.PrecisionMargin(pr, float64(a)))
+		if *ans.Margin >= 0.5 {
+			res.Warnings = append(res.Warnings, "The achievable margin is wider than ±50 percentage points: this survey cannot estimate the prevalence usefully.")
+		}
 	}
 	p, d := s.ExpectedPrevalence, *ans.Margin
 	if d >= p || d >= 1-p {

@@ -4,7 +4,9 @@ import (
 	"bytes"
 	"crypto/sha256"
 	"encoding/hex"
+	"errors"
 	"fmt"
+	"io"
 	"math"
 	"regexp"
 	"sort"
@@ -16,6 +18,10 @@ import (
 
 // MaxSpecBytes is the largest specification file accepted (1 MiB).
 const MaxSpecBytes = 1 << 20
+
+// MaxSize bounds every size read or computed: a plan that needs more than a
+// billion participants in a group has assumptions to revisit.
+const MaxSize = 1_000_000_000
 
 // Spec is a validated study specification (version 1).
 type Spec struct {
@@ -89,7 +95,8 @@ type entry struct {
 	node   *yaml.Node
 	file   string // file name or "--set k=v"
 	line   int
-	keyPos int // order in the document
+	keyPos int  // order in the document
+	set    bool // from a --set override
 }
 
 type reader struct {
@@ -121,10 +128,26 @@ func Parse(file string, data []byte, sets []string) (*Spec, error) {
 		return nil, &SpecError{File: file, Msg: "file is empty; allowed: a YAML study specification (start from `enough new trial`)"}
 	}
 	var doc yaml.Node
-	if err := yaml.Unmarshal(data, &doc); err != nil {
+	dec := yaml.NewDecoder(bytes.NewReader(data))
+	err := dec.Decode(&doc)
+	if errors.Is(err, io.EOF) {
+		return nil, &SpecError{File: file, Msg: "file has no content; allowed: a YAML study specification (start from `enough new trial`)"}
+	}
+	if err == nil {
+		var second yaml.Node
+		if dec.Decode(&second) == nil {
+			return nil, &SpecError{File: file, Line: second.Line, Msg: "a second YAML document (after ---); allowed: one specification per file"}
+		}
+	}
+	if err != nil {
 		msg := err.Error()
 		if m := yamlLine.FindStringSubmatch(strings.SplitN(msg, "\n", 2)[0]); m != nil {
 			line, _ := strconv.Atoi(m[1])
+			if strings.HasPrefix(m[2], "did not find expected") {
+				// yaml.v3 reports a parser error at the 0-based line of the
+				// construct it was reading; make it 1-based.
+				line++
+			}
 			if tl := tabLine(data, line); tl > 0 {
 				// yaml.v3 may report the line before the tab; point at it.
 				line = tl
@@ -161,6 +184,14 @@ func Parse(file string, data []byte, sets []string) (*Spec, error) {
 	return spec, nil
 }
 
+// resolveAlias follows a YAML alias (*name) to the anchored node.
+func resolveAlias(n *yaml.Node) *yaml.Node {
+	for i := 0; n != nil && n.Kind == yaml.AliasNode && n.Alias != nil && i < 16; i++ {
+		n = n.Alias
+	}
+	return n
+}
+
 // tabLine returns line or the line after it when its indentation holds a
 // tab, and 0 otherwise.
 func tabLine(data []byte, line int) int {
@@ -181,8 +212,8 @@ func tabLine(data []byte, line int) int {
 // keys.
 func (r *reader) collect(root *yaml.Node, file string) error {
 	for i := 0; i+1 < len(root.Content); i += 2 {
-		k, v := root.Content[i], root.Content[i+1]
-		e := &entry{key: k.Value, node: v, file: file, line: k.Line, keyPos: len(r.order)}
+		k, v := root.Content[i], resolveAlias(root.Content[i+1])
+		e := &entry{key: k.Value, node: v, file: file, line: k.Line}
 		if k.Kind != yaml.ScalarNode {
 			return &SpecError{File: file, Line: k.Line, Msg: "a key must be a plain word, such as `alpha`"}
 		}
@@ -200,13 +231,15 @@ func (r *reader) add(e *entry) error {
 		}
 		return r.errAt(e, "unknown key; allowed keys are listed in the README (or start from `enough new DESIGN`)")
 	}
-	if prev, ok := r.entries[e.key]; ok && prev.file == e.file {
+	if prev, ok := r.entries[e.key]; ok && !e.set {
 		return r.errAt(e, "given twice (first at line %d); allowed: each key once", prev.line)
 	}
 	if prev, ok := r.entries[e.key]; ok {
+		// A --set override replaces the value in place.
 		e.keyPos = prev.keyPos
 		r.order[prev.keyPos] = e
 	} else {
+		e.keyPos = len(r.order)
 		r.order = append(r.order, e)
 	}
 	r.entries[e.key] = e
@@ -225,7 +258,7 @@ func (r *reader) collectSources(e *entry) error {
 		return r.errAt(e, "is not a map; allowed: %s, e.g. `control_risk: \"hospital audit 2024\"`", specKeys["sources"].allowed)
 	}
 	for i := 0; i+1 < len(e.node.Content); i += 2 {
-		k, v := e.node.Content[i], e.node.Content[i+1]
+		k, v := e.node.Content[i], resolveAlias(e.node.Content[i+1])
 		se := &entry{key: "sources." + k.Value, node: v, file: e.file, line: k.Line}
 		if e.file != r.file {
 			se.line = 0
@@ -259,18 +292,18 @@ func (r *reader) applySet(s string) error {
 	}
 	head, rest, nested := strings.Cut(key, ".")
 	if !nested {
-		return r.add(&entry{key: key, node: node, file: origin})
+		return r.add(&entry{key: key, node: node, file: origin, set: true})
 	}
 	if head != "sources" {
 		if _, ok := specKeys[head]; !ok {
-			return r.add(&entry{key: head, node: node, file: origin})
+			return r.add(&entry{key: head, node: node, file: origin, set: true})
 		}
 		return &SpecError{File: origin, Key: head, Msg: "has no nested keys; allowed dotted keys: sources.KEY"}
 	}
 	if r.sources == nil {
 		r.sources = map[string]*entry{}
 		if _, ok := r.entries["sources"]; !ok {
-			e := &entry{key: "sources", node: &yaml.Node{Kind: yaml.MappingNode}, file: origin, keyPos: len(r.order)}
+			e := &entry{key: "sources", node: &yaml.Node{Kind: yaml.MappingNode}, file: origin, keyPos: len(r.order), set: true}
 			r.order = append(r.order, e)
 			r.entries["sources"] = e
 		}
@@ -278,7 +311,7 @@ func (r *reader) applySet(s string) error {
 	if node.Kind != yaml.ScalarNode || node.Tag == "!!null" {
 		return &SpecError{File: origin, Key: key, Msg: "is not text; allowed: a line saying where the value came from"}
 	}
-	r.sources[rest] = &entry{key: key, node: node, file: origin}
+	r.sources[rest] = &entry{key: key, node: node, file: origin, set: true}
 	return nil
 }
 
@@ -330,8 +363,11 @@ func (r *reader) whole(key string) (int, *entry, error) {
 		}
 		return 0, e, err
 	}
-	if f != math.Trunc(f) || math.Abs(f) > 1e12 {
+	if f != math.Trunc(f) {
 		return 0, e, r.errAt(e, "%s is not a whole number; allowed: %s", show(e.node), specKeys[key].allowed)
+	}
+	if math.Abs(f) > MaxSize {
+		return 0, e, r.errAt(e, "%s is too large; allowed: %s, at most %.0e", show(e.node), specKeys[key].allowed, float64(MaxSize))
 	}
 	return int(f), e, nil
 }

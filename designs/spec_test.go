@@ -49,7 +49,7 @@ func TestParseErrors(t *testing.T) {
 		{"ratio zero", trialBase + "ratio: 0\n", nil, 6, "ratio", "above 0"},
 		{"ratio negative", trialBase + "ratio: -1\n", nil, 6, "ratio", "above 0"},
 		{"attrition 1", trialBase + "attrition: 1\n", nil, 6, "attrition", "[0, 1)"},
-		{"design effect below 1", trialBase + "design_effect: 0.9\n", nil, 6, "design_effect", "at least 1"},
+		{"design effect below 1", trialBase + "design_effect: 0.9\n", nil, 6, "design_effect", "a number from 1 to 1000"},
 		{"n below 2", "version: 1\ndesign: trial\nsolve: power\nn: 1\ncontrol_risk: 0.3\nrisk_ratio: 0.75\n", nil, 4, "n", "at least 2"},
 		{"n not whole", "version: 1\ndesign: trial\nsolve: power\nn: 10.5\ncontrol_risk: 0.3\nrisk_ratio: 0.75\n", nil, 4, "n", "not a whole number"},
 		{"method misfit", trialBase + "method: schlesselman\n", nil, 6, "method", "does not fit design trial"},

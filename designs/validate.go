@@ -70,6 +70,8 @@ func (r *reader) build() (*Spec, error) {
 			msg += "; a precision survey is set by margin and confidence"
 		} else if e.key == "ratio" && design == "cross-sectional" {
 			msg += "; the split between groups follows from exposure_prevalence"
+		} else if sug, ok := counterpart(e.key, design); ok && allowed[sug] {
+			msg += fmt.Sprintf("; did you mean %q?", sug)
 		} else if sug, ok := nearest(e.key, names); ok {
 			msg += fmt.Sprintf("; did you mean %q?", sug)
 		}
@@ -121,7 +123,7 @@ func (r *reader) build() (*Spec, error) {
 	if s.Attrition, err = r.rangeNum("attrition", 0, func(x float64) bool { return x >= 0 && x < 1 }); err != nil {
 		return nil, err
 	}
-	if s.DesignEffect, err = r.rangeNum("design_effect", 1, func(x float64) bool { return x >= 1 }); err != nil {
+	if s.DesignEffect, err = r.rangeNum("design_effect", 1, func(x float64) bool { return x >= 1 && x <= 1000 }); err != nil {
 		return nil, err
 	}
 
@@ -154,6 +156,32 @@ func (r *reader) build() (*Spec, error) {
 	}
 	s.Given = r.given()
 	return s, nil
+}
+
+// counterpart maps a key of another design to the key that plays the same
+// role in this design: control_risk in a cohort is unexposed_risk.
+func counterpart(key, design string) (string, bool) {
+	ro, ok := roles[design]
+	if !ok {
+		return "", false
+	}
+	for _, other := range roles {
+		if key == other.reference {
+			return ro.reference, true
+		}
+		// The last effect key of each design is the first group's risk.
+		if key == other.effects[len(other.effects)-1] {
+			return ro.effects[len(ro.effects)-1], true
+		}
+	}
+	if sc := scaleOf(key); sc != ScaleRisk {
+		for _, k := range ro.effects {
+			if scaleOf(k) == sc {
+				return k, true
+			}
+		}
+	}
+	return "", false
 }
 
 // rangeNum reads an optional number with a default and a range check.
@@ -195,7 +223,7 @@ func (r *reader) buildPrecision(s *Spec) error {
 	if s.ExpectedPrevalence, err = r.probability("expected_prevalence", "required: the prevalence you expect to estimate"); err != nil {
 		return err
 	}
-	if s.Confidence, err = r.rangeNum("confidence", 0.95, func(x float64) bool { return x > 0 && x < 1 }); err != nil {
+	if s.Confidence, err = r.rangeNum("confidence", 0.95, func(x float64) bool { return x >= 0.5 && x < 1 }); err != nil {
 		return err
 	}
 	pop, pe, err := r.whole("population")

@@ -16,7 +16,8 @@ func ZAlpha(alpha float64, sides int) float64 {
 	if sides != 1 && sides != 2 {
 		panic("power: sides must be 1 or 2")
 	}
-	return distuv.UnitNormal.Quantile(1 - alpha/float64(sides))
+	// The upper quantile as minus the lower one keeps tiny alphas exact.
+	return -distuv.UnitNormal.Quantile(alpha / float64(sides))
 }
 
 // ZPower returns Φ⁻¹(power), the normal deviate for the target power.

@@ -97,6 +97,9 @@ func emit(out io.Writer, path string, data []byte) error {
 		_, err := out.Write(data)
 		return err
 	}
+	if st, err := os.Stat(path); err == nil && st.IsDir() {
+		return fmt.Errorf("cannot write %s: it is a directory; allowed: a file name", path)
+	}
 	if err := writeAtomic(path, data); err != nil {
 		return fmt.Errorf("cannot write %s: %s", path, describe(err))
 	}

@@ -6,6 +6,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
@@ -43,6 +44,7 @@ func TestScripts(t *testing.T) {
 //
 //	exitcode 2 enough plan bad.yaml
 //
+// A comma-separated list accepts any of the statuses listed (exitcode 1,2).
 // The program's stdout and stderr stay available to the stdout and stderr
 // commands that follow, as after exec. (`! exec` only checks that the status
 // is not zero; a Go panic also exits with 2, which is why the scripts check
@@ -54,9 +56,13 @@ func cmdExitcode(ts *testscript.TestScript, neg bool, args []string) {
 	if len(args) < 2 {
 		ts.Fatalf("usage: exitcode STATUS program [args...]")
 	}
-	want, err := strconv.Atoi(args[0])
-	if err != nil {
-		ts.Fatalf("exitcode: %q is not a status", args[0])
+	var want []int
+	for _, f := range strings.Split(args[0], ",") {
+		n, err := strconv.Atoi(f)
+		if err != nil {
+			ts.Fatalf("exitcode: %q is not a status", f)
+		}
+		want = append(want, n)
 	}
 	got := 0
 	if err := ts.Exec(args[1], args[2:]...); err != nil {
@@ -66,8 +72,8 @@ func cmdExitcode(ts *testscript.TestScript, neg bool, args []string) {
 		}
 		got = ee.ExitCode()
 	}
-	if got != want {
-		ts.Fatalf("%s exited with status %d; want %d", args[1], got, want)
+	if !slices.Contains(want, got) {
+		ts.Fatalf("%s exited with status %d; want %s", args[1], got, args[0])
 	}
 }
 
@@ -91,18 +97,20 @@ func cmdOneline(ts *testscript.TestScript, neg bool, args []string) {
 // glob patterns, such as the temporary file an atomic write leaves behind:
 //
 //	noglob '.out.md.tmp-*'
+//
+// `! noglob PATTERN` checks that some file matches.
 func cmdNoglob(ts *testscript.TestScript, neg bool, args []string) {
-	if neg {
-		ts.Fatalf("unsupported: ! noglob")
-	}
 	if len(args) == 0 {
 		ts.Fatalf("usage: noglob pattern...")
 	}
 	for _, p := range args {
 		matches, err := filepath.Glob(ts.MkAbs(p))
 		ts.Check(err)
-		if len(matches) > 0 {
+		switch {
+		case len(matches) > 0 && !neg:
 			ts.Fatalf("files left behind matching %s: %v", p, matches)
+		case len(matches) == 0 && neg:
+			ts.Fatalf("no file matches %s", p)
 		}
 	}
 }
