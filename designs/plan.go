@@ -292,27 +292,6 @@ func abs(x int) int {
 	return x
 }
 
-func andList(words []string) string {
-	switch len(words) {
-	case 0:
-		return ""
-	case 1:
-		return words[0]
-	}
-	out := ""
-	for i, w := range words {
-		switch {
-		case i == 0:
-			out = w
-		case i == len(words)-1:
-			out += " and " + w
-		default:
-			out += ", " + w
-		}
-	}
-	return out
-}
-
 func solveError(s *Spec, err error) error {
 	switch {
 	case errors.Is(err, power.ErrNothingToDetect):

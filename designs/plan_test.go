@@ -1,42 +1,14 @@
 package designs
 
 import (
-	"bufio"
 	"fmt"
 	"math"
-	"os"
-	"path/filepath"
 	"strconv"
 	"strings"
 	"testing"
-)
 
-// loadRef reads a tab-separated table from testdata/reference (computed
-// outside this project: R and statsmodels; see its README.md).
-func loadRef(t *testing.T, name string) []map[string]string {
-	t.Helper()
-	f, err := os.Open(filepath.Join("..", "testdata", "reference", name))
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
-	sc := bufio.NewScanner(f)
-	var header []string
-	var rows []map[string]string
-	for sc.Scan() {
-		fields := strings.Split(sc.Text(), "\t")
-		if header == nil {
-			header = fields
-			continue
-		}
-		row := map[string]string{}
-		for i, h := range header {
-			row[h] = fields[i]
-		}
-		rows = append(rows, row)
-	}
-	return rows
-}
+	"enough/internal/reftable"
+)
 
 func num(t *testing.T, s string) float64 {
 	t.Helper()
@@ -68,7 +40,7 @@ func mustPlan(t *testing.T, spec string, sets ...string) *Result {
 // second = ceil(ratio × n*), with n* from the reference (R; the call or
 // formula is in each row's source).
 func TestPlanAgainstReference(t *testing.T) {
-	for _, row := range loadRef(t, "binary_n.tsv") {
+	for _, row := range reftable.Load(t, "binary_n.tsv") {
 		var spec string
 		if row["method"] == "schlesselman" {
 			spec = fmt.Sprintf("version: 1\ndesign: case-control\ncontrol_exposure: %s\ncase_exposure: %s\n", row["p2"], row["p1"])
@@ -129,7 +101,7 @@ attrition: 0.15
 // TestPrecisionAgainstReference checks every row of precision.tsv
 // (independent R implementation of Cochran 1977) through a specification.
 func TestPrecisionAgainstReference(t *testing.T) {
-	for _, row := range loadRef(t, "precision.tsv") {
+	for _, row := range reftable.Load(t, "precision.tsv") {
 		spec := fmt.Sprintf("version: 1\ndesign: cross-sectional\ngoal: precision\nexpected_prevalence: %s\nmargin: %s\nconfidence: %s\ndesign_effect: %s\nattrition: %s\n",
 			row["p"], row["margin"], row["confidence"], row["deff"], row["nonresponse"])
 		if row["population"] != "Inf" {

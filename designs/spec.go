@@ -425,14 +425,17 @@ func show(n *yaml.Node) string {
 	return n.Value
 }
 
-func orList(words []string) string {
-	switch len(words) {
-	case 0:
-		return ""
-	case 1:
-		return words[0]
+// orList joins words as "a, b or c".
+func orList(words []string) string { return joinWords(words, "or") }
+
+// andList joins words as "a, b and c".
+func andList(words []string) string { return joinWords(words, "and") }
+
+func joinWords(words []string, conj string) string {
+	if len(words) <= 1 {
+		return strings.Join(words, "")
 	}
-	return strings.Join(words[:len(words)-1], ", ") + " or " + words[len(words)-1]
+	return strings.Join(words[:len(words)-1], ", ") + " " + conj + " " + words[len(words)-1]
 }
 
 // given returns the keys the specification sets, in document order.

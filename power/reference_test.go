@@ -1,75 +1,12 @@
 package power
 
 import (
-	"bufio"
 	"math"
-	"os"
-	"path/filepath"
-	"strconv"
 	"strings"
 	"testing"
+
+	"enough/internal/reftable"
 )
-
-// refRow is one row of a reference table under testdata/reference, keyed by
-// column name. Every table there was computed outside this project (R and
-// statsmodels; see testdata/reference/README.md), and every row names its
-// source in the column "source".
-type refRow map[string]string
-
-func loadRef(t *testing.T, name string) []refRow {
-	t.Helper()
-	f, err := os.Open(filepath.Join("..", "testdata", "reference", name))
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
-	sc := bufio.NewScanner(f)
-	sc.Buffer(make([]byte, 1<<16), 1<<20)
-	var header []string
-	var rows []refRow
-	for sc.Scan() {
-		fields := strings.Split(sc.Text(), "\t")
-		if header == nil {
-			header = fields
-			continue
-		}
-		row := refRow{}
-		for i, h := range header {
-			if i < len(fields) {
-				row[h] = fields[i]
-			}
-		}
-		rows = append(rows, row)
-	}
-	if err := sc.Err(); err != nil {
-		t.Fatal(err)
-	}
-	if len(rows) == 0 {
-		t.Fatalf("%s: no rows", name)
-	}
-	return rows
-}
-
-func (r refRow) f(t *testing.T, col string) float64 {
-	t.Helper()
-	v := r[col]
-	switch v {
-	case "NA":
-		return math.NaN()
-	case "Inf":
-		return math.Inf(1)
-	}
-	x, err := strconv.ParseFloat(v, 64)
-	if err != nil {
-		t.Fatalf("%s: column %s: %v", r["id"], col, err)
-	}
-	return x
-}
-
-func (r refRow) i(t *testing.T, col string) int {
-	t.Helper()
-	return int(r.f(t, col))
-}
 
 func methodOf(t *testing.T, id string) Method {
 	t.Helper()
@@ -92,11 +29,11 @@ func relClose(got, want, tol float64) bool {
 // formulas and R stats::power.prop.test (the call is in each row's source).
 func TestNReference(t *testing.T) {
 	const tol = 1e-9 // the references print 15 significant digits
-	for _, row := range loadRef(t, "binary_n.tsv") {
+	for _, row := range reftable.Load(t, "binary_n.tsv") {
 		m := methodOf(t, row["method"])
-		tp := TwoProportions{P1: row.f(t, "p1"), P2: row.f(t, "p2"), Alpha: row.f(t, "alpha"), Sides: row.i(t, "sides")}
-		got, err := m.N(tp, row.f(t, "ratio"), row.f(t, "power"))
-		want := row.f(t, "n_star")
+		tp := TwoProportions{P1: row.F(t, "p1"), P2: row.F(t, "p2"), Alpha: row.F(t, "alpha"), Sides: row.I(t, "sides")}
+		got, err := m.N(tp, row.F(t, "ratio"), row.F(t, "power"))
+		want := row.F(t, "n_star")
 		if err != nil || !relClose(got, want, tol) {
 			t.Errorf("%s: %v.N = %.10g, %v; want %.10g (%s)", row["id"], m, got, err, want, row["source"])
 		}
@@ -112,11 +49,11 @@ func TestNReference(t *testing.T) {
 // small-n region where the continuity-corrected inversion is held at n' = 0.
 func TestPowerReference(t *testing.T) {
 	const tol = 1e-10
-	for _, row := range loadRef(t, "binary_power.tsv") {
+	for _, row := range reftable.Load(t, "binary_power.tsv") {
 		m := methodOf(t, row["method"])
-		tp := TwoProportions{P1: row.f(t, "p1"), P2: row.f(t, "p2"), Alpha: row.f(t, "alpha"), Sides: row.i(t, "sides")}
-		got := m.Power(tp, row.f(t, "n1"), row.f(t, "n2"))
-		want := row.f(t, "power")
+		tp := TwoProportions{P1: row.F(t, "p1"), P2: row.F(t, "p2"), Alpha: row.F(t, "alpha"), Sides: row.I(t, "sides")}
+		got := m.Power(tp, row.F(t, "n1"), row.F(t, "n2"))
+		want := row.F(t, "power")
 		if math.Abs(got-want) > tol {
 			t.Errorf("%s: %v.Power = %.12g, want %.12g (%s)", row["id"], m, got, want, row["source"])
 		}
@@ -128,17 +65,17 @@ func TestPowerReference(t *testing.T) {
 // NA there means unreachable.
 func TestDetectableReference(t *testing.T) {
 	const tol = 1e-9
-	for _, row := range loadRef(t, "binary_effect.tsv") {
+	for _, row := range reftable.Load(t, "binary_effect.tsv") {
 		m := methodOf(t, row["method"])
-		tp := TwoProportions{P2: row.f(t, "p2"), Alpha: row.f(t, "alpha"), Sides: row.i(t, "sides")}
-		n1 := row.f(t, "n1")
-		n2 := n1 * row.f(t, "ratio")
+		tp := TwoProportions{P2: row.F(t, "p2"), Alpha: row.F(t, "alpha"), Sides: row.I(t, "sides")}
+		n1 := row.F(t, "n1")
+		n2 := n1 * row.F(t, "ratio")
 		for _, c := range []struct {
 			dir int
 			col string
 		}{{-1, "p1_lower"}, {1, "p1_upper"}} {
-			want := row.f(t, c.col)
-			got, err := m.Detectable(tp, n1, n2, row.f(t, "power"), c.dir)
+			want := row.F(t, c.col)
+			got, err := m.Detectable(tp, n1, n2, row.F(t, "power"), c.dir)
 			switch {
 			case math.IsNaN(want):
 				if err != ErrUnreachable {
@@ -157,19 +94,19 @@ func TestDetectableReference(t *testing.T) {
 // tail; the exact calls are in statsmodels_binary.tsv). The alpha column is
 // the one-tail level passed, so the comparison uses sides = 1.
 func TestStatsmodelsReference(t *testing.T) {
-	for _, row := range loadRef(t, "statsmodels_binary.tsv") {
-		tp := TwoProportions{P1: row.f(t, "p1"), P2: row.f(t, "p2"), Alpha: row.f(t, "alpha"), Sides: 1}
-		r := row.f(t, "ratio")
+	for _, row := range reftable.Load(t, "statsmodels_binary.tsv") {
+		tp := TwoProportions{P1: row.F(t, "p1"), P2: row.F(t, "p2"), Alpha: row.F(t, "alpha"), Sides: 1}
+		r := row.F(t, "ratio")
 		if strings.HasPrefix(row["id"], "sm_n_") {
-			got, err := Fleiss.N(tp, r, row.f(t, "power"))
-			if want := row.f(t, "n_star"); err != nil || !relClose(got, want, 1e-9) {
+			got, err := Fleiss.N(tp, r, row.F(t, "power"))
+			if want := row.F(t, "n_star"); err != nil || !relClose(got, want, 1e-9) {
 				t.Errorf("%s: N = %.10g, %v; want %.10g (%s)", row["id"], got, err, want, row["source"])
 			}
 			continue
 		}
-		n1 := row.f(t, "n_star")
+		n1 := row.F(t, "n_star")
 		got := Fleiss.Power(tp, n1, r*n1)
-		if want := row.f(t, "power"); math.Abs(got-want) > 1e-10 {
+		if want := row.F(t, "power"); math.Abs(got-want) > 1e-10 {
 			t.Errorf("%s: Power = %.12g, want %.12g (%s)", row["id"], got, want, row["source"])
 		}
 	}
@@ -179,20 +116,20 @@ func TestStatsmodelsReference(t *testing.T) {
 // effect and finite population correction against precision.tsv
 // (independent R implementation of Cochran 1977).
 func TestPrecisionReference(t *testing.T) {
-	for _, row := range loadRef(t, "precision.tsv") {
-		pr := Precision{P: row.f(t, "p"), Confidence: row.f(t, "confidence"),
-			DesignEffect: row.f(t, "deff"), Population: row.f(t, "population")}
-		n0, n := PrecisionN(pr, row.f(t, "margin"))
-		if want := row.f(t, "n0"); !relClose(n0, want, 1e-9) {
+	for _, row := range reftable.Load(t, "precision.tsv") {
+		pr := Precision{P: row.F(t, "p"), Confidence: row.F(t, "confidence"),
+			DesignEffect: row.F(t, "deff"), Population: row.F(t, "population")}
+		n0, n := PrecisionN(pr, row.F(t, "margin"))
+		if want := row.F(t, "n0"); !relClose(n0, want, 1e-9) {
 			t.Errorf("%s: n0 = %.10g, want %.10g (%s)", row["id"], n0, want, row["source"])
 		}
 		// n_final = ceil(ceil(n)/(1 - nonresponse)) per the reference script.
-		final := math.Ceil(math.Ceil(n) / (1 - row.f(t, "nonresponse")))
-		if want := row.f(t, "n_final"); final != want {
+		final := math.Ceil(math.Ceil(n) / (1 - row.F(t, "nonresponse")))
+		if want := row.F(t, "n_final"); final != want {
 			t.Errorf("%s: final = %v, want %v (%s)", row["id"], final, want, row["source"])
 		}
 		// Round trip: the margin achieved by the unrounded n is the margin.
-		if m := PrecisionMargin(pr, n); !relClose(m, row.f(t, "margin"), 1e-9) {
+		if m := PrecisionMargin(pr, n); !relClose(m, row.F(t, "margin"), 1e-9) {
 			t.Errorf("%s: margin round trip = %.12g, want %v", row["id"], m, row["margin"])
 		}
 	}
