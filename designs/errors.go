@@ -67,7 +67,7 @@ func nearest(s string, candidates []string) (string, bool) {
 	best, bestD := "", 1<<30
 	for _, c := range candidates {
 		d := editDistance(s, c)
-		if strings.Contains(c, s) || strings.Contains(s, c) {
+		if min(len(s), len(c)) >= 3 && (strings.Contains(c, s) || strings.Contains(s, c)) {
 			d = min(d, 2)
 		}
 		if d < bestD || (d == bestD && c < best) {

@@ -10,6 +10,7 @@ const (
 	kindWhole
 	kindText
 	kindMap
+	kindBool
 )
 
 // keyInfo describes one specification key.
@@ -59,6 +60,42 @@ var specKeys = map[string]keyInfo{
 	"margin":                {kindNumber, "a number in (0, 0.5)"},
 	"confidence":            {kindNumber, "a number in [0.5, 1)"},
 	"population":            {kindWhole, "a whole number of at least 2"},
+
+	// Trials and continuous and time-to-event outcomes.
+	"hypothesis":           {kindText, "superiority, non-inferiority or equivalence"},
+	"higher_is_better":     {kindBool, "true or false"},
+	"mean_difference":      {kindNumber, "a number (first group minus second)"},
+	"intervention_mean":    {kindNumber, "a number"},
+	"control_mean":         {kindNumber, "a number"},
+	"exposed_mean":         {kindNumber, "a number"},
+	"unexposed_mean":       {kindNumber, "a number"},
+	"sd":                   {kindNumber, "a number above 0"},
+	"sd_first":             {kindNumber, "a number above 0"},
+	"sd_second":            {kindNumber, "a number above 0"},
+	"sd_difference":        {kindNumber, "a number above 0"},
+	"within_correlation":   {kindNumber, "a number in (-1, 1)"},
+	"baseline_correlation": {kindNumber, "a number in [0, 1)"},
+	"pairing":              {kindText, "paired or crossover"},
+	"hazard_ratio":         {kindNumber, "a number above 0"},
+	"control_median":       {kindNumber, "a time above 0"},
+	"control_survival":     {kindNumber, "a probability in (0, 1)"},
+	"time":                 {kindNumber, "a time above 0"},
+	"accrual":              {kindNumber, "a time of at least 0"},
+	"follow_up":            {kindNumber, "a time above 0"},
+	"dropout":              {kindNumber, "a fraction in [0, 1) lost per time unit"},
+	"time_unit":            {kindText, "a word such as months or years"},
+	"cluster":              {kindMap, "a map with size (mean cluster size, at least 2), icc (in [0, 1)) and optionally size_cv (at least 0)"},
+	"non_adherence":        {kindNumber, "a fraction in [0, 1)"},
+	"contamination":        {kindNumber, "a fraction in [0, 1)"},
+	"arms":                 {kindWhole, "a whole number from 2 to 20"},
+	"comparisons":          {kindText, "each-vs-control or all-pairs"},
+}
+
+// clusterKeys are the keys of the cluster map.
+var clusterKeys = map[string]string{
+	"size":    "the mean number of participants per cluster, at least 2",
+	"icc":     "the intracluster correlation coefficient, in [0, 1)",
+	"size_cv": "the coefficient of variation of cluster sizes, at least 0",
 }
 
 // allKeys returns the specification keys in sorted order.
@@ -79,7 +116,7 @@ var commonKeys = []string{"version", "title", "design", "outcome", "solve", "met
 var comparisonKeys = []string{"test", "alpha", "sides", "power", "first_group", "second_group"}
 
 // designRoles names, for each two-group design, the reference-group key and
-// the effect keys, in the order they are documented.
+// the effect keys of a binary outcome, in the order they are documented.
 type designRoles struct {
 	reference string   // risk (or exposure) in the second group
 	effects   []string // exactly one of these gives the effect
@@ -87,6 +124,9 @@ type designRoles struct {
 	second    string   // default label of the second group
 	size      string   // "n" or "total"
 	extra     []string // further keys of this design
+	// means names the first and second groups' mean keys ("" where a
+	// continuous outcome does not apply).
+	means [2]string
 }
 
 var roles = map[string]designRoles{
@@ -95,6 +135,7 @@ var roles = map[string]designRoles{
 		effects:   []string{"risk_ratio", "risk_difference", "odds_ratio", "exposed_risk"},
 		first:     "exposed", second: "unexposed", size: "n",
 		extra: []string{"ratio"},
+		means: [2]string{"exposed_mean", "unexposed_mean"},
 	},
 	"case-control": {
 		reference: "control_exposure",
@@ -107,12 +148,14 @@ var roles = map[string]designRoles{
 		effects:   []string{"risk_ratio", "risk_difference", "odds_ratio", "intervention_risk"},
 		first:     "intervention arm", second: "control arm", size: "n",
 		extra: []string{"ratio"},
+		means: [2]string{"intervention_mean", "control_mean"},
 	},
 	"cross-sectional": {
 		reference: "unexposed_prevalence",
 		effects:   []string{"prevalence_ratio", "prevalence_difference", "odds_ratio", "exposed_prevalence"},
 		first:     "exposed", second: "unexposed", size: "total",
 		extra: []string{"goal", "exposure_prevalence"},
+		means: [2]string{"exposed_mean", "unexposed_mean"},
 	},
 }
 
@@ -120,8 +163,14 @@ var roles = map[string]designRoles{
 // prevalence.
 var precisionKeys = []string{"goal", "total", "expected_prevalence", "margin", "confidence", "population"}
 
-// keysFor returns the keys allowed for a design (and goal).
-func keysFor(design, goal string) map[string]bool {
+// selector is what decides which keys a specification may use.
+type selector struct {
+	design, goal, outcome, pairing, hypothesis string
+}
+
+// keysFor returns the keys allowed for a selection of design, goal,
+// outcome, pairing and hypothesis.
+func keysFor(sel selector) map[string]bool {
 	ok := map[string]bool{}
 	add := func(ks ...string) {
 		for _, k := range ks {
@@ -129,14 +178,46 @@ func keysFor(design, goal string) map[string]bool {
 		}
 	}
 	add(commonKeys...)
-	if design == "cross-sectional" && goal == "precision" {
+	if sel.design == "cross-sectional" && sel.goal == "precision" {
 		add(precisionKeys...)
 		return ok
 	}
-	r := roles[design]
+	r := roles[sel.design]
 	add(comparisonKeys...)
-	add(r.reference, r.size)
-	add(r.effects...)
+	add(r.size)
 	add(r.extra...)
+	if sel.design == "trial" {
+		add("hypothesis", "non_adherence", "contamination", "arms", "comparisons")
+		if sel.hypothesis == "non-inferiority" || sel.hypothesis == "equivalence" {
+			add("margin", "higher_is_better")
+		}
+	}
+	switch sel.outcome {
+	case "binary":
+		add(r.reference)
+		add(r.effects...)
+		if sel.design == "trial" {
+			add("cluster")
+		}
+	case "continuous":
+		add("mean_difference")
+		add(r.means[0], r.means[1])
+		if sel.design == "trial" || sel.design == "cohort" {
+			add("pairing")
+		}
+		if sel.design == "trial" && sel.pairing == "" {
+			add("cluster")
+		}
+		switch sel.pairing {
+		case "":
+			add("sd", "sd_first", "sd_second", "baseline_correlation")
+		default:
+			add("sd", "sd_difference", "within_correlation")
+		}
+	case "time-to-event":
+		add("hazard_ratio", "control_median", "control_survival", "time",
+			"accrual", "follow_up", "dropout", "time_unit")
+		delete(ok, "attrition")
+	}
 	return ok
 }

@@ -15,6 +15,10 @@ type MethodInfo struct {
 	// cross-sectional use to that goal.
 	Designs []string
 	Goal    string
+	// Outcome is the outcome the method serves ("" means binary).
+	Outcome string
+	// Hypotheses lists the hypotheses it serves (nil means superiority).
+	Hypotheses []string
 	// DefaultTest is the planned analysis assumed unless `test:` says
 	// otherwise ("" when there is no test).
 	DefaultTest string
@@ -22,6 +26,9 @@ type MethodInfo struct {
 	Note string
 
 	engine power.Method
+	margin power.MarginMethod
+	means  power.MeansMethod
+	events power.EventsMethod
 }
 
 // Methods is the catalogue of closed-form methods, in the order listed by
@@ -63,6 +70,64 @@ var Methods = []MethodInfo{
 		engine:      power.Schlesselman,
 	},
 	{
+		ID: "farrington-manning", Short: "Farrington & Manning 1990", Name: "Farrington-Manning score method",
+		Citation:    "Farrington CP, Manning G (1990). Test statistics and sample size formulae for comparative binomial trials with null hypothesis of non-zero risk difference or non-unity relative risk. Stat Med 9:1447-1454",
+		Designs:     []string{"trial"},
+		Hypotheses:  []string{"non-inferiority", "equivalence"},
+		DefaultTest: "score",
+		Note:        "non-inferiority and equivalence of two risks; variance under the margin from the restricted maximum-likelihood risks",
+		margin:      power.FarringtonManning,
+	},
+	{
+		ID: "blackwelder", Short: "Blackwelder 1982", Name: "Blackwelder (Wald)",
+		Citation:    "Blackwelder WC (1982). \"Proving the null hypothesis\" in clinical trials. Control Clin Trials 3:345-353",
+		Designs:     []string{"trial"},
+		Hypotheses:  []string{"non-inferiority", "equivalence"},
+		DefaultTest: "z-unpooled",
+		Note:        "non-inferiority and equivalence of two risks with the unpooled (Wald) variance",
+		margin:      power.Blackwelder,
+	},
+	{
+		ID: "t", Short: "noncentral t", Name: "t test, exact power from the noncentral t distribution",
+		Citation:    "Owen DB (1965). A special case of a bivariate non-central t-distribution. Biometrika 52:437-446; Lenth RV (1989). Algorithm AS 243: cumulative distribution function of the non-central t distribution. Appl Stat 38:185-189",
+		Designs:     []string{"cohort", "trial", "cross-sectional"},
+		Goal:        "comparison",
+		Outcome:     "continuous",
+		Hypotheses:  []string{"superiority", "non-inferiority", "equivalence"},
+		DefaultTest: "t-student",
+		Note:        "the default for means; both tails of a two-sided test; two one-sided tests integrated exactly for equivalence",
+		means:       power.T,
+	},
+	{
+		ID: "z", Short: "normal approximation", Name: "normal approximation for means",
+		Citation:    "Chow SC, Shao J, Wang H (2008). Sample Size Calculations in Clinical Research, 2nd ed. Chapman & Hall, chapter 3",
+		Designs:     []string{"cohort", "trial", "cross-sectional"},
+		Goal:        "comparison",
+		Outcome:     "continuous",
+		Hypotheses:  []string{"superiority", "non-inferiority", "equivalence"},
+		DefaultTest: "t-student",
+		Note:        "z in place of t: slightly smaller than the t answer at small sizes",
+		means:       power.Z,
+	},
+	{
+		ID: "schoenfeld", Short: "Schoenfeld 1983", Name: "Schoenfeld",
+		Citation:    "Schoenfeld DA (1983). Sample-size formula for the proportional-hazards regression model. Biometrics 39:499-503",
+		Designs:     []string{"trial"},
+		Outcome:     "time-to-event",
+		DefaultTest: "log-rank",
+		Note:        "events for a hazard ratio under proportional hazards; the default for time-to-event outcomes",
+		events:      power.Schoenfeld,
+	},
+	{
+		ID: "freedman", Short: "Freedman 1982", Name: "Freedman",
+		Citation:    "Freedman LS (1982). Tables of the number of patients required in clinical trials using the logrank test. Stat Med 1:121-129",
+		Designs:     []string{"trial"},
+		Outcome:     "time-to-event",
+		DefaultTest: "log-rank",
+		Note:        "events from the expected log-rank statistic; a few more than Schoenfeld",
+		events:      power.Freedman,
+	},
+	{
 		ID: "wald", Short: "Cochran 1977", Name: "Wald interval (normal approximation)",
 		Citation:    "Cochran WG (1977). Sampling Techniques, 3rd ed. Wiley, chapter 4",
 		Designs:     []string{"cross-sectional"},
@@ -72,11 +137,25 @@ var Methods = []MethodInfo{
 	},
 }
 
-func (m MethodInfo) serves(design, goal string) bool {
+func (m MethodInfo) serves(design, goal, outcome, hypothesis string) bool {
 	if m.Goal != "" && design == "cross-sectional" && goal != m.Goal {
 		return false
 	}
 	if m.Goal == "precision" && design != "cross-sectional" {
+		return false
+	}
+	if orDefault(m.Outcome, "binary") != orDefault(outcome, "binary") {
+		return false
+	}
+	hyps := m.Hypotheses
+	if hyps == nil {
+		hyps = []string{"superiority"}
+	}
+	ok := false
+	for _, h := range hyps {
+		ok = ok || h == orDefault(hypothesis, "superiority")
+	}
+	if !ok {
 		return false
 	}
 	for _, d := range m.Designs {
@@ -108,6 +187,18 @@ func TestName(test string) string {
 		return "Fisher's exact test"
 	case "z-unpooled":
 		return "the z test with unpooled variance"
+	case "score":
+		return "the Farrington-Manning score test"
+	case "t-student":
+		return "Student's t test"
+	case "t-welch":
+		return "Welch's t test"
+	case "t-paired":
+		return "the paired t test"
+	case "log-rank":
+		return "the log-rank test"
+	case "cluster-t":
+		return "a t test on cluster summaries"
 	}
 	return test
 }

@@ -129,6 +129,17 @@ func sizesFromNStar(s *Spec, nstar float64) (sizes, error) {
 		return sizes{}, err
 	}
 	n1, n2 := ceilTol(f1), ceilTol(f2)
+	if s.Outcome == "continuous" {
+		// A t test needs at least two observations per group.
+		n1, n2 = max(n1, 2), max(n2, 2)
+	}
+	if s.Pairing == "paired" {
+		return sizes{
+			n:     []int{n1},
+			enrol: []int{ceilTol(float64(n1) / (1 - s.Attrition))},
+			eff:   [2]float64{float64(n1) / s.DesignEffect, float64(n1) / s.DesignEffect},
+		}, nil
+	}
 	return sizes{
 		n:     []int{n1, n2},
 		enrol: []int{ceilTol(float64(n1) / (1 - s.Attrition)), ceilTol(float64(n2) / (1 - s.Attrition))},
@@ -150,6 +161,9 @@ func sizesFromEnrolment(s *Spec) (sizes, error) {
 			enrol: []int{efirst, s.Total - efirst},
 			eff:   [2]float64{e * float64(a) / s.DesignEffect, (1 - e) * float64(a) / s.DesignEffect},
 		}
+	} else if s.Pairing == "paired" {
+		a := floorTol(float64(s.N) * (1 - s.Attrition))
+		sz = sizes{n: []int{a}, enrol: []int{s.N}, eff: [2]float64{float64(a) / s.DesignEffect, float64(a) / s.DesignEffect}}
 	} else {
 		if err := checkSizes(s, s.Ratio*float64(s.N)); err != nil {
 			return sz, err
@@ -162,12 +176,16 @@ func sizesFromEnrolment(s *Spec) (sizes, error) {
 			eff:   [2]float64{float64(a1) / s.DesignEffect, float64(a2) / s.DesignEffect},
 		}
 	}
-	if !(sz.eff[0] >= 1 && sz.eff[1] >= 1) {
+	least := 1.0
+	if s.Outcome == "continuous" {
+		least = 2
+	}
+	if !(sz.eff[0] >= least && sz.eff[1] >= least) {
 		key := "n"
 		if s.Design == "cross-sectional" {
 			key = "total"
 		}
-		return sz, &PlanError{File: s.File, Msg: fmt.Sprintf("%s: after attrition, design effect and allocation a group has fewer than one analysable participant (%s); allowed: a larger %s", key, fmtSizes(sz.n), key)}
+		return sz, &PlanError{File: s.File, Msg: fmt.Sprintf("%s: after attrition, design effect and allocation a group has fewer than %g analysable participants (%s); allowed: a larger %s", key, least, fmtSizes(sz.n), key)}
 	}
 	return sz, nil
 }
@@ -187,102 +205,272 @@ func sum(xs []int) int {
 	return t
 }
 
+// solved is one method's answer at the rounded sizes.
+type solved struct {
+	nstar float64
+	sz    sizes
+	calc  calculator
+	e     effects
+}
+
+// solveN finds the sizes for the target power: the formula's n*, the
+// documented rounding and inflation, and for a cluster design whole clusters
+// with a cluster-level t test on 2(k − 1) degrees of freedom, adding
+// clusters until the target is reached.
+func solveN(s *Spec, m *MethodInfo, e effects) (solved, error) {
+	calc := newCalculator(s, m, e)
+	nstar, err := calc.nStar(s.Power)
+	if err != nil {
+		return solved{}, solveError(s, err)
+	}
+	sz, err := sizesFromNStar(s, nstar)
+	if err != nil {
+		return solved{}, err
+	}
+	if s.Cluster == nil {
+		return solved{nstar, sz, calc, e}, nil
+	}
+	m1 := s.Cluster.Size
+	k := [2]int{ceilTol(float64(sz.n[0]) / m1), ceilTol(float64(sz.n[1]) / m1)}
+	for iter := 0; ; iter++ {
+		e.clusterK = [2]int{max(k[0], 2), max(k[1], 2)}
+		if k[0] < 2 || k[1] < 2 {
+			// A cluster-level test needs at least two clusters per arm.
+			k = e.clusterK
+			sz = clusterSizes(s, k)
+		}
+		calc = newCalculator(s, m, e)
+		if calc.power(sz.eff[0], sz.eff[1]) >= s.Power || iter > 100000 {
+			return solved{nstar, sz, calc, e}, nil
+		}
+		k[0]++
+		k[1] = max(k[1], ceilTol(s.Ratio*float64(k[0])))
+		sz = clusterSizes(s, k)
+	}
+}
+
+// clusterSizes returns the sizes that k whole clusters per arm bring.
+func clusterSizes(s *Spec, k [2]int) sizes {
+	n1, n2 := ceilTol(float64(k[0])*s.Cluster.Size), ceilTol(float64(k[1])*s.Cluster.Size)
+	return sizes{
+		n:     []int{n1, n2},
+		enrol: []int{ceilTol(float64(n1) / (1 - s.Attrition)), ceilTol(float64(n2) / (1 - s.Attrition))},
+		eff:   [2]float64{float64(n1) / s.DesignEffect, float64(n2) / s.DesignEffect},
+	}
+}
+
+// atEnrolment builds the calculator for sizes given by the specification
+// (solving power or effect), with the clusters those sizes make.
+func atEnrolment(s *Spec, m *MethodInfo, e effects) (sizes, calculator, effects, error) {
+	sz, err := sizesFromEnrolment(s)
+	if err != nil {
+		return sz, nil, e, err
+	}
+	if s.Cluster != nil {
+		e.clusterK = [2]int{ceilTol(float64(sz.n[0]) / s.Cluster.Size), ceilTol(float64(sz.n[1]) / s.Cluster.Size)}
+		if e.clusterK[0] < 2 || e.clusterK[1] < 2 {
+			return sz, nil, e, &PlanError{File: s.File, Msg: fmt.Sprintf("n: %s analysable participants make fewer than two clusters of %g in an arm; allowed: at least two clusters per arm", fmtSizes(sz.n), s.Cluster.Size)}
+		}
+	}
+	return sz, newCalculator(s, m, e), e, nil
+}
+
 func planComparison(s *Spec, res *Result, m *MethodInfo) error {
-	tp := power.TwoProportions{P1: s.P1, P2: s.P2, Alpha: s.Alpha, Sides: s.Sides}
 	others := []*MethodInfo{}
 	for i := range Methods {
 		o := &Methods[i]
-		if o.ID != m.ID && o.serves(s.Design, s.Goal) {
+		if o.ID != m.ID && o.serves(s.Design, s.Goal, s.Outcome, s.Hypothesis) {
 			others = append(others, o)
 		}
 	}
+	e := plannedEffects(s)
 	ans := &res.Result
+	var main solved
 	switch s.Solve {
 	case "n":
-		nstar, err := m.engine.N(tp, s.Ratio, s.Power)
-		if err != nil {
-			return solveError(s, err)
-		}
-		sz, err := sizesFromNStar(s, nstar)
-		if err != nil {
+		var err error
+		if main, err = solveN(s, m, e); err != nil {
 			return err
 		}
-		ans.NStar = nstar
-		fillSizes(ans, sz)
-		ans.AchievedPower = ptr(m.engine.Power(tp, sz.eff[0], sz.eff[1]))
-		ans.Effect = effectOf(s.Design, s.P1, s.P2)
+		ans.NStar = main.nstar
+		fillSizes(s, ans, main.sz)
+		ans.AchievedPower = ptr(main.calc.power(main.sz.eff[0], main.sz.eff[1]))
 		var differ []string
 		for _, o := range others {
-			ns, err := o.engine.N(tp, s.Ratio, s.Power)
+			alt, err := solveN(s, o, e)
 			if err != nil {
 				continue
 			}
-			osz, err := sizesFromNStar(s, ns)
-			if err != nil {
-				continue
-			}
-			res.Alternatives = append(res.Alternatives, Alternative{
+			a := Alternative{
 				Method: o.ID, Name: o.Name, Citation: o.Citation, Short: o.Short,
-				N: osz.n, Total: sum(osz.n), EnrolTotal: sum(osz.enrol),
-				AchievedPower: ptr(o.engine.Power(tp, osz.eff[0], osz.eff[1])),
-			})
-			if abs(osz.n[0]-sz.n[0]) > 1 || abs(osz.n[1]-sz.n[1]) > 1 {
-				differ = append(differ, fmt.Sprintf("%s asks for %s", o.Name, fmtSizes(osz.n)))
+				N: alt.sz.n, Total: totalOf(s, alt.sz.n), EnrolTotal: totalOf(s, alt.sz.enrol),
+				AchievedPower: ptr(alt.calc.power(alt.sz.eff[0], alt.sz.eff[1])),
+			}
+			res.Alternatives = append(res.Alternatives, a)
+			for i := range alt.sz.n {
+				if abs(alt.sz.n[i]-main.sz.n[i]) > 1 {
+					differ = append(differ, fmt.Sprintf("%s asks for %s", o.Name, fmtSizes(alt.sz.n)))
+					break
+				}
 			}
 		}
 		if len(differ) > 0 {
 			res.Warnings = append(res.Warnings, fmt.Sprintf(
-				"The choice of formula matters here: %s asks for %s (%s and %s), while %s. The difference exceeds one participant per group.",
-				m.Name, fmtSizes(sz.n), res.FirstGroup, res.SecondGroup, andList(differ)))
+				"The choice of formula matters here: %s asks for %s (%s), while %s. The difference exceeds one participant per group.",
+				m.Name, fmtSizes(main.sz.n), groupsPhrase(s, res), andList(differ)))
 		}
-		smallCells(s, res, sz)
-	case "power":
-		sz, err := sizesFromEnrolment(s)
-		if err != nil {
-			return err
-		}
-		fillSizes(ans, sz)
-		ans.AchievedPower = ptr(m.engine.Power(tp, sz.eff[0], sz.eff[1]))
-		ans.Effect = effectOf(s.Design, s.P1, s.P2)
-		for _, o := range others {
-			res.Alternatives = append(res.Alternatives, Alternative{
-				Method: o.ID, Name: o.Name, Citation: o.Citation, Short: o.Short,
-				AchievedPower: ptr(o.engine.Power(tp, sz.eff[0], sz.eff[1])),
-			})
-		}
-		smallCells(s, res, sz)
-	case "effect":
-		sz, err := sizesFromEnrolment(s)
-		if err != nil {
-			return err
-		}
-		fillSizes(ans, sz)
-		ans.Detectable = detectable(s, m.engine, sz)
-		for _, o := range others {
-			res.Alternatives = append(res.Alternatives, Alternative{
-				Method: o.ID, Name: o.Name, Citation: o.Citation, Short: o.Short,
-				Detectable: detectable(s, o.engine, sz),
-			})
-		}
-		for _, side := range []struct {
-			v    *float64
-			what string
-		}{{ans.Detectable.Lower, "below"}, {ans.Detectable.Upper, "above"}} {
-			if side.v == nil {
-				res.Warnings = append(res.Warnings, fmt.Sprintf(
-					"No effect %s no difference reaches %.0f%% power with these sizes: the risk in the %s would have to pass %s.",
-					side.what, 100*s.Power, res.FirstGroup, map[string]string{"below": "0", "above": "1"}[side.what]))
+		if e.diluted {
+			// What the dilution costs: the same plan without it.
+			plain := e
+			plain.p1, plain.p2, plain.diff, plain.hr = s.P1, s.P2, s.MeanDiff, s.HazardRatio
+			if u, err := solveN(s, m, plain); err == nil {
+				ans.UndilutedN = u.sz.n
 			}
 		}
+	case "power", "effect":
+		sz, calc, e2, err := atEnrolment(s, m, e)
+		if err != nil {
+			return err
+		}
+		main = solved{sz: sz, calc: calc, e: e2}
+		fillSizes(s, ans, sz)
+		if s.Solve == "power" {
+			ans.AchievedPower = ptr(calc.power(sz.eff[0], sz.eff[1]))
+		} else {
+			ans.Detectable = detectable(s, calc, sz)
+		}
+		for _, o := range others {
+			_, oc, _, err := atEnrolment(s, o, e)
+			if err != nil {
+				continue
+			}
+			a := Alternative{Method: o.ID, Name: o.Name, Citation: o.Citation, Short: o.Short}
+			if s.Solve == "power" {
+				a.AchievedPower = ptr(oc.power(sz.eff[0], sz.eff[1]))
+			} else {
+				a.Detectable = detectable(s, oc, sz)
+			}
+			res.Alternatives = append(res.Alternatives, a)
+		}
+		if s.Solve == "effect" {
+			for _, side := range []struct {
+				v    *float64
+				what string
+			}{{ans.Detectable.Lower, "below"}, {ans.Detectable.Upper, "above"}} {
+				if side.v == nil {
+					res.Warnings = append(res.Warnings, fmt.Sprintf(
+						"No effect %s no difference reaches %.0f%% power with these sizes%s.",
+						side.what, 100*s.Power, unreachableWhy(s, res, side.what)))
+				}
+			}
+		}
+	}
+	if s.Solve != "effect" {
+		ans.Effect = plannedEffect(s)
+		if e.diluted {
+			ans.DilutedEffect = dilutedEffect(s, main.e)
+		}
+	}
+	describeDesign(s, res, main)
+	if s.Outcome == "binary" && s.Solve != "effect" {
+		smallCells(s, res, main.sz)
 	}
 	methodTestNotes(s, res)
 	commonNotes(s, res)
 	return nil
 }
 
-func fillSizes(ans *Answer, sz sizes) {
-	ans.N, ans.Total = sz.n, sum(sz.n)
-	ans.Enrol, ans.EnrolTotal = sz.enrol, sum(sz.enrol)
+// unreachableWhy explains an unreachable direction.
+func unreachableWhy(s *Spec, res *Result, side string) string {
+	if s.Outcome != "binary" {
+		return ""
+	}
+	return fmt.Sprintf(": the risk in the %s would have to pass %s", res.FirstGroup, map[string]string{"below": "0", "above": "1"}[side])
+}
+
+// groupsPhrase names the two groups for messages.
+func groupsPhrase(s *Spec, res *Result) string {
+	if s.Pairing == "paired" {
+		return "pairs"
+	}
+	return res.FirstGroup + " and " + res.SecondGroup
+}
+
+// plannedEffect restates the planned (undiluted) effect.
+func plannedEffect(s *Spec) *Effect {
+	switch s.Outcome {
+	case "continuous":
+		if s.Hypothesis != "superiority" && s.EffectKey == "" {
+			return meansEffect(s, 0)
+		}
+		return meansEffect(s, s.MeanDiff)
+	case "time-to-event":
+		return &Effect{HazardRatio: ptr(s.HazardRatio)}
+	}
+	return effectOf(s.Design, s.P1, s.P2)
+}
+
+// dilutedEffect restates the effect an intention-to-treat analysis sees.
+func dilutedEffect(s *Spec, e effects) *Effect {
+	switch s.Outcome {
+	case "continuous":
+		return meansEffect(s, e.diff)
+	case "time-to-event":
+		return &Effect{HazardRatio: ptr(e.hr)}
+	}
+	return effectOf(s.Design, e.p1, e.p2)
+}
+
+// describeDesign fills the design-specific parts of the answer.
+func describeDesign(s *Spec, res *Result, sv solved) {
+	ans := &res.Result
+	if s.Pairing == "paired" {
+		ans.Pairs = ans.N[0]
+	}
+	if s.Outcome == "time-to-event" {
+		ans.Duration = ptr(s.Accrual + s.FollowUp)
+		if sc, ok := sv.calc.(survivalCalc); ok {
+			ans.ExpectedEvents = ptr(sc.expectedEvents(sv.sz.eff[0], sv.sz.eff[1]))
+			if s.Solve == "n" {
+				if d, err := sc.events(s.Power); err == nil {
+					ans.Events = ceilTol(d)
+				}
+			}
+		}
+	}
+	if s.Cluster != nil {
+		ans.DesignEffect = ptr(s.DesignEffect)
+		k := sv.e.clusterK
+		ans.Clusters = []int{k[0], k[1]}
+		ans.WholeClusters = []int{ceilTol(float64(k[0]) * s.Cluster.Size), ceilTol(float64(k[1]) * s.Cluster.Size)}
+		if k[0] < 6 || k[1] < 6 {
+			res.Warnings = append(res.Warnings, fmt.Sprintf("Only %d and %d clusters per arm: with fewer than about 6 clusters per arm the cluster-level analysis is fragile and the ICC poorly estimated.", k[0], k[1]))
+		}
+	}
+	if c := comparisons(s); s.Arms > 2 {
+		ans.Arms, ans.Comparisons = s.Arms, c
+		ans.AlphaPerComparison = ptr(sv.e.alpha)
+	}
+}
+
+func fillSizes(s *Spec, ans *Answer, sz sizes) {
+	ans.N, ans.Total = sz.n, totalOf(s, sz.n)
+	ans.Enrol, ans.EnrolTotal = sz.enrol, totalOf(s, sz.enrol)
+}
+
+// totalOf sums the groups, over every arm of a trial with several arms: each
+// intervention arm has the first group's size and the control arm the
+// second's (all-pairs: every arm the first's).
+func totalOf(s *Spec, n []int) int {
+	switch {
+	case len(n) == 1:
+		return n[0]
+	case s.Arms > 2 && s.Comparisons == "all-pairs":
+		return s.Arms * n[0]
+	case s.Arms > 2:
+		return (s.Arms-1)*n[0] + n[1]
+	}
+	return n[0] + n[1]
 }
 
 func abs(x int) int {
@@ -307,7 +495,7 @@ func effectOf(design string, p1, p2 float64) *Effect {
 	or := power.OddsRatio(p1, p2)
 	if design == "case-control" {
 		return &Effect{
-			OddsRatio:       or,
+			OddsRatio:       ptr(or),
 			CaseExposure:    ptr(p1),
 			ControlExposure: ptr(p2),
 			CaseOdds:        ptr(p1 / (1 - p1)),
@@ -317,7 +505,7 @@ func effectOf(design string, p1, p2 float64) *Effect {
 	rd := p1 - p2
 	e := &Effect{
 		FirstRisk: ptr(p1), SecondRisk: ptr(p2),
-		RiskRatio: ptr(p1 / p2), RiskDifference: ptr(rd), OddsRatio: or,
+		RiskRatio: ptr(p1 / p2), RiskDifference: ptr(rd), OddsRatio: ptr(or),
 	}
 	if math.Abs(rd) > 1e-12 {
 		e.NNT = ptr(ceilTol(1 / math.Abs(rd)))
@@ -339,19 +527,17 @@ func scaleValue(key string, p1, p2 float64) float64 {
 }
 
 // detectable finds the smallest detectable effect in both directions.
-func detectable(s *Spec, method power.Method, sz sizes) *Detectable {
-	tp := power.TwoProportions{P2: s.P2, Alpha: s.Alpha, Sides: s.Sides}
+func detectable(s *Spec, calc calculator, sz sizes) *Detectable {
 	d := &Detectable{Scale: s.EffectKey}
 	for _, dir := range []int{-1, 1} {
-		p1, err := method.Detectable(tp, sz.eff[0], sz.eff[1], s.Power, dir)
+		v, e, err := calc.detect(sz.eff[0], sz.eff[1], s.Power, dir)
 		if err != nil {
 			continue
 		}
-		v, e := ptr(scaleValue(s.EffectKey, p1, s.P2)), effectOf(s.Design, p1, s.P2)
 		if dir < 0 {
-			d.Lower, d.LowerEffect = v, e
+			d.Lower, d.LowerEffect = ptr(v), e
 		} else {
-			d.Upper, d.UpperEffect = v, e
+			d.Upper, d.UpperEffect = ptr(v), e
 		}
 	}
 	return d

@@ -187,7 +187,7 @@ func TestEffectRestatement(t *testing.T) {
 	// p1 = 0.15: RR = 0.6; OR = (0.15 × 0.75)/(0.25 × 0.85) = 0.1125/0.2125;
 	// NNT = 1/0.1 = 10.
 	if math.Abs(*e.FirstRisk-0.15) > 1e-15 || math.Abs(*e.RiskRatio-0.6) > 1e-12 ||
-		math.Abs(e.OddsRatio-0.1125/0.2125) > 1e-12 || *e.NNT != 10 {
+		math.Abs(*e.OddsRatio-0.1125/0.2125) > 1e-12 || *e.NNT != 10 {
 		t.Errorf("trial effect %+v", e)
 	}
 	// A case-control study restates exposure and odds only.
@@ -197,7 +197,7 @@ func TestEffectRestatement(t *testing.T) {
 		t.Errorf("case-control effect has risk measures: %+v", e)
 	}
 	// Case odds = (1/3)/(2/3) = 0.5; control odds = 0.25; OR = 2.
-	if math.Abs(*e.CaseOdds-0.5) > 1e-12 || math.Abs(*e.ControlOdds-0.25) > 1e-12 || math.Abs(e.OddsRatio-2) > 1e-12 {
+	if math.Abs(*e.CaseOdds-0.5) > 1e-12 || math.Abs(*e.ControlOdds-0.25) > 1e-12 || math.Abs(*e.OddsRatio-2) > 1e-12 {
 		t.Errorf("case-control odds %+v", e)
 	}
 	// NNT rounds up: RD = 0.03 gives 1/0.03 = 33.3, so 34.

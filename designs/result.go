@@ -84,6 +84,34 @@ type Answer struct {
 	// Precision surveys.
 	N0     float64  `json:"n0,omitempty"`
 	Margin *float64 `json:"margin,omitempty"`
+
+	// Time-to-event: the events required (solving n), the events expected
+	// at the analysable sizes, and the study's duration (accrual plus
+	// follow-up).
+	Events         int      `json:"events,omitempty"`
+	ExpectedEvents *float64 `json:"expected_events,omitempty"`
+	Duration       *float64 `json:"duration,omitempty"`
+
+	// Paired designs: the number of pairs.
+	Pairs int `json:"pairs,omitempty"`
+
+	// Cluster designs: the design effect, the clusters per arm and the
+	// participants whole clusters bring.
+	DesignEffect  *float64 `json:"design_effect,omitempty"`
+	Clusters      []int    `json:"clusters,omitempty"`
+	WholeClusters []int    `json:"whole_cluster_participants,omitempty"`
+
+	// Several arms: the number of arms, the comparisons and the alpha of
+	// each comparison (Bonferroni). N and Enrol are then per comparison
+	// (each intervention arm, control arm) and the totals cover all arms.
+	Arms               int      `json:"arms,omitempty"`
+	Comparisons        int      `json:"comparisons,omitempty"`
+	AlphaPerComparison *float64 `json:"alpha_per_comparison,omitempty"`
+
+	// Non-adherence and contamination: the effect an intention-to-treat
+	// analysis sees, and the analysable sizes without dilution.
+	DilutedEffect *Effect `json:"diluted_effect,omitempty"`
+	UndilutedN    []int   `json:"undiluted_n,omitempty"`
 }
 
 // Effect restates an effect on every meaningful scale. Risk-based measures
@@ -94,7 +122,13 @@ type Effect struct {
 	RiskRatio      *float64 `json:"risk_ratio,omitempty"`
 	RiskDifference *float64 `json:"risk_difference,omitempty"`
 	NNT            *int     `json:"nnt,omitempty"`
-	OddsRatio      float64  `json:"odds_ratio"`
+	OddsRatio      *float64 `json:"odds_ratio,omitempty"`
+
+	// Continuous outcomes: the difference in means and in standard
+	// deviations (Cohen's d); time-to-event: the hazard ratio.
+	MeanDifference         *float64 `json:"mean_difference,omitempty"`
+	StandardizedDifference *float64 `json:"standardized_difference,omitempty"`
+	HazardRatio            *float64 `json:"hazard_ratio,omitempty"`
 
 	CaseExposure    *float64 `json:"case_exposure,omitempty"`
 	ControlExposure *float64 `json:"control_exposure,omitempty"`

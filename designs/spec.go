@@ -69,9 +69,40 @@ type Spec struct {
 
 	// Precision surveys.
 	ExpectedPrevalence float64
-	Margin             float64
-	Confidence         float64
-	Population         int
+	// Margin is the half-width of a precision survey's interval, or the
+	// non-inferiority or equivalence margin of a trial (positive).
+	Margin     float64
+	Confidence float64
+	Population int
+
+	// Trials.
+	Hypothesis     string // superiority, non-inferiority, equivalence
+	HigherIsBetter bool
+	NonAdherence   float64
+	Contamination  float64
+	Arms           int
+	Comparisons    string // each-vs-control or all-pairs
+	Cluster        *Cluster
+
+	// Continuous outcomes.
+	Pairing string // "", paired or crossover
+	// MeanDiff is the true difference in means, first minus second (paired:
+	// the mean within-pair difference).
+	MeanDiff float64
+	// SD1 and SD2 are the standard deviations per observation (paired and
+	// crossover: SD1 is the SD of a participant's difference), after any
+	// baseline adjustment.
+	SD1, SD2            float64
+	BaselineCorrelation float64
+	Welch               bool
+
+	// Time-to-event outcomes.
+	HazardRatio   float64
+	ControlHazard float64 // per time unit
+	Accrual       float64
+	FollowUp      float64
+	Dropout       float64 // fraction lost per time unit
+	TimeUnit      string
 
 	// Given lists the keys the specification set (after overrides), in file
 	// order, with the values as written.
@@ -81,6 +112,23 @@ type Spec struct {
 	Ignored []string
 
 	lines map[string]int
+}
+
+// Cluster describes cluster randomisation.
+type Cluster struct {
+	// Size is the mean number of participants per cluster.
+	Size float64
+	// ICC is the intracluster correlation coefficient.
+	ICC float64
+	// SizeCV is the coefficient of variation of cluster sizes.
+	SizeCV float64
+}
+
+// DesignEffect is 1 + (m − 1) ICC for equal clusters (Donner & Klar 2000)
+// and 1 + ((cv² + 1) m − 1) ICC for unequal ones (Eldridge, Ashby & Kerry
+// 2006, Int J Epidemiol 35:1292–1300).
+func (c *Cluster) DesignEffect() float64 {
+	return 1 + ((c.SizeCV*c.SizeCV+1)*c.Size-1)*c.ICC
 }
 
 // Given is one key of the specification as written.
@@ -103,7 +151,8 @@ type reader struct {
 	file    string
 	entries map[string]*entry
 	order   []*entry
-	sources map[string]*entry
+	// nested holds the keys of map-valued keys (sources, cluster).
+	nested map[string]map[string]*entry
 }
 
 func (r *reader) errAt(e *entry, format string, args ...any) *SpecError {
@@ -165,7 +214,7 @@ func Parse(file string, data []byte, sets []string) (*Spec, error) {
 	if root.Kind != yaml.MappingNode {
 		return nil, &SpecError{File: file, Line: root.Line, Msg: "the top level must be a map of keys to values, such as `design: cohort`"}
 	}
-	r := &reader{file: file, entries: map[string]*entry{}}
+	r := &reader{file: file, entries: map[string]*entry{}, nested: map[string]map[string]*entry{}}
 	if err := r.collect(root, file); err != nil {
 		return nil, err
 	}
@@ -243,33 +292,56 @@ func (r *reader) add(e *entry) error {
 		r.order = append(r.order, e)
 	}
 	r.entries[e.key] = e
-	if e.key == "sources" {
-		return r.collectSources(e)
+	if specKeys[e.key].kind == kindMap {
+		return r.collectNested(e)
 	}
 	return nil
 }
 
-func (r *reader) collectSources(e *entry) error {
-	r.sources = map[string]*entry{}
+// collectNested records the keys of a map-valued key (sources, cluster)
+// into r.nested[e.key].
+func (r *reader) collectNested(e *entry) error {
+	m := map[string]*entry{}
+	r.nested[e.key] = m
 	if e.node.Kind == yaml.ScalarNode && e.node.Tag == "!!null" {
 		return nil
 	}
 	if e.node.Kind != yaml.MappingNode {
-		return r.errAt(e, "is not a map; allowed: %s, e.g. `control_risk: \"hospital audit 2024\"`", specKeys["sources"].allowed)
+		return r.errAt(e, "is not a map; allowed: %s", specKeys[e.key].allowed)
 	}
 	for i := 0; i+1 < len(e.node.Content); i += 2 {
 		k, v := e.node.Content[i], resolveAlias(e.node.Content[i+1])
-		se := &entry{key: "sources." + k.Value, node: v, file: e.file, line: k.Line}
+		se := &entry{key: e.key + "." + k.Value, node: v, file: e.file, line: k.Line}
 		if e.file != r.file {
 			se.line = 0
 		}
-		if _, dup := r.sources[k.Value]; dup {
+		if _, dup := m[k.Value]; dup {
 			return r.errAt(se, "given twice; allowed: each key once")
 		}
-		if v.Kind != yaml.ScalarNode || v.Tag == "!!null" {
-			return r.errAt(se, "is not text; allowed: a line saying where the value came from")
+		if err := r.checkNested(e.key, k.Value, se); err != nil {
+			return err
 		}
-		r.sources[k.Value] = se
+		m[k.Value] = se
+	}
+	return nil
+}
+
+// checkNested checks one key of a nested map.
+func (r *reader) checkNested(head, sub string, e *entry) error {
+	switch head {
+	case "sources":
+		if e.node.Kind != yaml.ScalarNode || e.node.Tag == "!!null" {
+			return r.errAt(e, "is not text; allowed: a line saying where the value came from")
+		}
+	case "cluster":
+		if _, ok := clusterKeys[sub]; !ok {
+			names := []string{"size", "icc", "size_cv"}
+			msg := "unknown key; allowed: " + orList(names)
+			if s, ok := nearest(sub, names); ok {
+				msg = fmt.Sprintf("unknown key; did you mean %q?", s)
+			}
+			return r.errAt(e, "%s", msg)
+		}
 	}
 	return nil
 }
@@ -294,24 +366,24 @@ func (r *reader) applySet(s string) error {
 	if !nested {
 		return r.add(&entry{key: key, node: node, file: origin, set: true})
 	}
-	if head != "sources" {
-		if _, ok := specKeys[head]; !ok {
-			return r.add(&entry{key: head, node: node, file: origin, set: true})
-		}
-		return &SpecError{File: origin, Key: head, Msg: "has no nested keys; allowed dotted keys: sources.KEY"}
+	if info, ok := specKeys[head]; !ok {
+		return r.add(&entry{key: head, node: node, file: origin, set: true})
+	} else if info.kind != kindMap {
+		return &SpecError{File: origin, Key: head, Msg: "has no nested keys; allowed dotted keys: sources.KEY and cluster.KEY"}
 	}
-	if r.sources == nil {
-		r.sources = map[string]*entry{}
-		if _, ok := r.entries["sources"]; !ok {
-			e := &entry{key: "sources", node: &yaml.Node{Kind: yaml.MappingNode}, file: origin, keyPos: len(r.order), set: true}
+	if r.nested[head] == nil {
+		r.nested[head] = map[string]*entry{}
+		if _, ok := r.entries[head]; !ok {
+			e := &entry{key: head, node: &yaml.Node{Kind: yaml.MappingNode}, file: origin, keyPos: len(r.order), set: true}
 			r.order = append(r.order, e)
-			r.entries["sources"] = e
+			r.entries[head] = e
 		}
 	}
-	if node.Kind != yaml.ScalarNode || node.Tag == "!!null" {
-		return &SpecError{File: origin, Key: key, Msg: "is not text; allowed: a line saying where the value came from"}
+	e := &entry{key: key, node: node, file: origin, set: true}
+	if err := r.checkNested(head, rest, e); err != nil {
+		return err
 	}
-	r.sources[rest] = &entry{key: key, node: node, file: origin, set: true}
+	r.nested[head][rest] = e
 	return nil
 }
 
@@ -442,7 +514,7 @@ func joinWords(words []string, conj string) string {
 func (r *reader) given() []Given {
 	var out []Given
 	for _, e := range r.order {
-		if e.key == "sources" || e.node.Kind != yaml.ScalarNode {
+		if e.node.Kind != yaml.ScalarNode {
 			continue
 		}
 		out = append(out, Given{Key: e.key, Value: e.node.Value})
@@ -453,7 +525,7 @@ func (r *reader) given() []Given {
 // sourceMap returns the sources as plain text.
 func (r *reader) sourceMap() map[string]string {
 	out := map[string]string{}
-	for k, e := range r.sources {
+	for k, e := range r.nested["sources"] {
 		out[k] = strings.TrimSpace(e.node.Value)
 	}
 	return out
@@ -461,8 +533,8 @@ func (r *reader) sourceMap() map[string]string {
 
 // sortedSourceKeys returns the source keys in order.
 func (r *reader) sortedSourceKeys() []string {
-	keys := make([]string, 0, len(r.sources))
-	for k := range r.sources {
+	keys := make([]string, 0, len(r.nested["sources"]))
+	for k := range r.nested["sources"] {
 		keys = append(keys, k)
 	}
 	sort.Strings(keys)

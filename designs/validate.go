@@ -50,8 +50,42 @@ func (r *reader) build() (*Spec, error) {
 	}
 	precision := s.Goal == "precision"
 
-	// keys that do not belong to this design
-	allowed := keysFor(design, goal)
+	// outcome, pairing and hypothesis decide the other keys
+	outcomes := []string{"binary", "continuous", "time-to-event"}
+	var oe *entry
+	s.Outcome, oe, err = r.choice("outcome", "binary", outcomes...)
+	if err != nil {
+		return nil, err
+	}
+	switch {
+	case precision && s.Outcome != "binary":
+		return nil, r.errAt(oe, "%s does not apply to a precision survey, which estimates one prevalence; allowed: binary", s.Outcome)
+	case design == "case-control" && s.Outcome != "binary":
+		return nil, r.errAt(oe, "%s does not apply to a case-control study, which compares exposure between cases and controls; allowed: binary", s.Outcome)
+	case s.Outcome == "time-to-event" && design != "trial":
+		return nil, r.errAt(oe, "time-to-event applies to design trial; allowed for design %s: binary or continuous", design)
+	}
+	if s.Pairing, _, err = r.choice("pairing", "", "paired", "crossover"); err != nil {
+		return nil, err
+	}
+	if pe := r.get("pairing"); pe != nil && s.Pairing == "crossover" && design != "trial" {
+		return nil, r.errAt(pe, "crossover applies to design trial; allowed for design %s: paired", design)
+	}
+	if s.Hypothesis, _, err = r.choice("hypothesis", "superiority", "superiority", "non-inferiority", "equivalence"); err != nil {
+		return nil, err
+	}
+	sel := selector{design: design, goal: goal, outcome: s.Outcome, pairing: s.Pairing, hypothesis: s.Hypothesis}
+	if r.get("outcome") == nil && (r.get("mean_difference") != nil || r.get("hazard_ratio") != nil) {
+		e := r.get("mean_difference")
+		want := "continuous"
+		if e == nil {
+			e, want = r.get("hazard_ratio"), "time-to-event"
+		}
+		return nil, r.errAt(e, "belongs to a %s outcome; add `outcome: %s` (the default outcome is binary)", want, want)
+	}
+
+	// keys that do not belong to this selection
+	allowed := keysFor(sel)
 	for _, e := range r.order {
 		if allowed[e.key] {
 			continue
@@ -62,29 +96,33 @@ func (r *reader) build() (*Spec, error) {
 		}
 		sort.Strings(names)
 		what := "design " + design
-		if design == "cross-sectional" {
+		switch {
+		case design == "cross-sectional":
 			what += " with goal " + goal
+		case s.Outcome != "binary":
+			what += " with a " + s.Outcome + " outcome"
+		}
+		if s.Pairing != "" {
+			what += " (" + s.Pairing + ")"
 		}
 		msg := fmt.Sprintf("does not apply to %s", what)
-		if precision && (e.key == "alpha" || e.key == "power" || e.key == "sides") {
+		switch {
+		case precision && (e.key == "alpha" || e.key == "power" || e.key == "sides"):
 			msg += "; a precision survey is set by margin and confidence"
-		} else if e.key == "ratio" && design == "cross-sectional" {
+		case e.key == "ratio" && design == "cross-sectional":
 			msg += "; the split between groups follows from exposure_prevalence"
-		} else if sug, ok := counterpart(e.key, design); ok && allowed[sug] {
-			msg += fmt.Sprintf("; did you mean %q?", sug)
-		} else if sug, ok := nearest(e.key, names); ok {
-			msg += fmt.Sprintf("; did you mean %q?", sug)
+		case e.key == "attrition" && s.Outcome == "time-to-event":
+			msg += "; a time-to-event plan uses dropout (the fraction lost per time unit) in its place"
+		case e.key == "margin" || e.key == "higher_is_better":
+			msg += "; it belongs to hypothesis non-inferiority or equivalence"
+		default:
+			if sug, ok := counterpart(e.key, design); ok && allowed[sug] {
+				msg += fmt.Sprintf("; did you mean %q?", sug)
+			} else if sug, ok := nearest(e.key, names); ok {
+				msg += fmt.Sprintf("; did you mean %q?", sug)
+			}
 		}
 		return nil, r.errAt(e, "%s", msg)
-	}
-
-	// outcome
-	s.Outcome, _, err = r.choice("outcome", "binary", "binary")
-	if err != nil {
-		if e := r.get("outcome"); e != nil && (e.node.Value == "continuous" || e.node.Value == "time-to-event") {
-			return nil, r.errAt(e, "%q is not supported yet; allowed: binary", e.node.Value)
-		}
-		return nil, err
 	}
 
 	// solve
@@ -138,8 +176,11 @@ func (r *reader) build() (*Spec, error) {
 
 	// sources must name keys of this specification
 	for _, k := range r.sortedSourceKeys() {
-		e := r.sources[k]
+		e := r.nested["sources"][k]
 		if r.get(k) != nil {
+			continue
+		}
+		if head, sub, ok := strings.Cut(k, "."); ok && r.nested[head][sub] != nil {
 			continue
 		}
 		var present []string
@@ -270,13 +311,19 @@ func (r *reader) methodError(s *Spec) error {
 	name := strings.TrimSpace(e.node.Value)
 	var fits []string
 	for _, m := range Methods {
-		if m.serves(s.Design, s.Goal) {
+		if m.serves(s.Design, s.Goal, s.Outcome, s.Hypothesis) {
 			fits = append(fits, m.ID)
 		}
 	}
 	what := "design " + s.Design
 	if s.Design == "cross-sectional" {
 		what += " with goal " + s.Goal
+	}
+	if s.Outcome != "binary" && s.Outcome != "" {
+		what += " with a " + s.Outcome + " outcome"
+	}
+	if s.Hypothesis != "superiority" && s.Hypothesis != "" {
+		what += " and hypothesis " + s.Hypothesis
 	}
 	for _, m := range Methods {
 		if m.ID == name {
@@ -312,112 +359,6 @@ func (r *reader) size(s *Spec, key, why string) error {
 		s.Total = x
 	}
 	return nil
-}
-
-func (r *reader) buildComparison(s *Spec) error {
-	ro := roles[s.Design]
-	var err error
-
-	// method and test
-	var fits []string
-	for _, m := range Methods {
-		if m.serves(s.Design, s.Goal) {
-			fits = append(fits, m.ID)
-		}
-	}
-	if s.Method, _, err = r.choice("method", "fleiss-cc", fits...); err != nil {
-		return r.methodError(s)
-	}
-	def := MethodByID(s.Method).DefaultTest
-	if s.Test, _, err = r.choice("test", def, testsBinary...); err != nil {
-		return err
-	}
-
-	// alpha, sides, power
-	if s.Alpha, err = r.rangeNum("alpha", 0.05, func(x float64) bool { return x > 0 && x <= 0.5 }); err != nil {
-		return err
-	}
-	sides, sde, err := r.whole("sides")
-	if err != nil {
-		return err
-	}
-	s.Sides = 2
-	if sde != nil {
-		if sides != 1 && sides != 2 {
-			return r.errAt(sde, "%d is not allowed; allowed: 1 or 2", sides)
-		}
-		s.Sides = sides
-	}
-	pw, pe, err := r.number("power")
-	if err != nil {
-		return err
-	}
-	switch {
-	case s.Solve == "power":
-		if pe != nil {
-			s.Ignored = append(s.Ignored, "power is ignored when solving power (the power is what is solved)")
-		}
-	case pe == nil:
-		return r.errFile("power", "missing; required when solving %s: the target power, a number above alpha and below 1 (e.g. 0.8)", s.Solve)
-	case !(pw > s.Alpha && pw < 1):
-		if pw > 0 && pw <= s.Alpha {
-			return r.errAt(pe, "%s is not above alpha (%g); allowed: a number above alpha and below 1", pe.node.Value, s.Alpha)
-		}
-		return r.errAt(pe, "%s is out of range; allowed: a number above alpha (%g) and below 1", pe.node.Value, s.Alpha)
-	default:
-		s.Power = pw
-	}
-
-	// sizes
-	if s.Solve != "n" {
-		if err := r.size(s, ro.size, "required when solving "+s.Solve+": the number enrolled"); err != nil {
-			return err
-		}
-	} else if r.get(ro.size) != nil {
-		s.Ignored = append(s.Ignored, ro.size+" is ignored when solving n")
-	}
-	if s.Design == "cross-sectional" {
-		if s.ExposurePrevalence, err = r.probability("exposure_prevalence", "required: the fraction of the surveyed population that is exposed"); err != nil {
-			return err
-		}
-		s.Ratio = (1 - s.ExposurePrevalence) / s.ExposurePrevalence
-	} else {
-		if s.Ratio, err = r.rangeNum("ratio", 1, func(x float64) bool { return x > 0 && !math.IsInf(x, 0) }); err != nil {
-			return err
-		}
-	}
-
-	// reference and effect
-	s.ReferenceKey = ro.reference
-	if s.P2, err = r.probability(ro.reference, "required: the risk in the "+ro.second); err != nil {
-		return err
-	}
-	var effect *entry
-	for _, k := range ro.effects {
-		e := r.get(k)
-		if e == nil {
-			if raw := r.entries[k]; raw != nil {
-				return r.errAt(raw, "has no value; allowed: %s", specKeys[k].allowed)
-			}
-			continue
-		}
-		if effect != nil {
-			first, second := effect, e
-			if second.keyPos < first.keyPos {
-				first, second = second, first
-			}
-			return r.errAt(second, "a second effect key besides %s; allowed: exactly one of %s", first.key, orList(ro.effects))
-		}
-		effect = e
-	}
-	if effect == nil {
-		return r.errFile("", "no effect given; allowed: exactly one of %s", orList(ro.effects))
-	}
-	s.EffectKey = effect.key
-	if s.EffectValue, _, err = r.number(effect.key); err != nil {
-		return err
-	}
-	return r.effectToP1(s, effect)
 }
 
 // effectToP1 checks the effect value and converts it to the first group's

@@ -224,7 +224,7 @@ func effectSection(r *designs.Result) *section {
 		s.bullets = []string{
 			fmt.Sprintf("Exposure among %s: %s (odds %s)", r.FirstGroup, pct(*e.CaseExposure), num(*e.CaseOdds)),
 			fmt.Sprintf("Exposure among %s: %s (odds %s)", r.SecondGroup, pct(*e.ControlExposure), num(*e.ControlOdds)),
-			fmt.Sprintf("Odds ratio: %s", num(e.OddsRatio)),
+			fmt.Sprintf("Odds ratio: %s", num(*e.OddsRatio)),
 			"Risks, risk ratio, risk difference and number needed to treat are not estimable: a case-control study samples on the outcome.",
 		}
 		return s
@@ -233,7 +233,7 @@ func effectSection(r *designs.Result) *section {
 	s.bullets = []string{
 		fmt.Sprintf("%s in the %s: %s; in the %s: %s", capitalise(rw), r.FirstGroup, pct(*e.FirstRisk), r.SecondGroup, pct(*e.SecondRisk)),
 		fmt.Sprintf("%s ratio: %s", capitalise(rw), num(*e.RiskRatio)),
-		fmt.Sprintf("Odds ratio: %s", num(e.OddsRatio)),
+		fmt.Sprintf("Odds ratio: %s", num(*e.OddsRatio)),
 		fmt.Sprintf("%s difference: %s", capitalise(rw), pp(*e.RiskDifference)),
 	}
 	if e.NNT != nil {

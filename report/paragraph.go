@@ -51,13 +51,13 @@ func paragraph(r *designs.Result) string {
 		switch r.Design {
 		case "case-control":
 			fmt.Fprintf(&b, "We assume that %s of %s are exposed%s and plan for an odds ratio of %s%s, which means that %s of %s are exposed. ",
-				pct(s.P2), second, source(r, s.ReferenceKey), num(e.OddsRatio), eff, pct(*e.CaseExposure), first)
+				pct(s.P2), second, source(r, s.ReferenceKey), num(*e.OddsRatio), eff, pct(*e.CaseExposure), first)
 		case "cross-sectional":
 			fmt.Fprintf(&b, "We expect %s of those surveyed to be exposed%s, a prevalence of %s among the unexposed and of %s among the exposed%s: a prevalence ratio of %s (difference %s; odds ratio %s). ",
-				pct(s.ExposurePrevalence), source(r, "exposure_prevalence"), ref, pct(*e.FirstRisk), eff, num(*e.RiskRatio), pp(*e.RiskDifference), num(e.OddsRatio))
+				pct(s.ExposurePrevalence), source(r, "exposure_prevalence"), ref, pct(*e.FirstRisk), eff, num(*e.RiskRatio), pp(*e.RiskDifference), num(*e.OddsRatio))
 		default:
 			fmt.Fprintf(&b, "We assume a risk of %s in the %s%s and plan for a risk of %s in the %s%s: a risk ratio of %s (risk difference %s; odds ratio %s). ",
-				pct(s.P2), second, refSrc, pct(*e.FirstRisk), first, eff, num(*e.RiskRatio), pp(*e.RiskDifference), num(e.OddsRatio))
+				pct(s.P2), second, refSrc, pct(*e.FirstRisk), first, eff, num(*e.RiskRatio), pp(*e.RiskDifference), num(*e.OddsRatio))
 		}
 	}
 
