@@ -75,7 +75,8 @@ func assumptions(s *Spec) []Assumption {
 	var out []Assumption
 	skip := map[string]bool{"version": true, "title": true, "design": true, "outcome": true,
 		"solve": true, "method": true, "test": true, "goal": true, "primary_outcome": true,
-		"first_group": true, "second_group": true}
+		"first_group": true, "second_group": true, "time_unit": true, "hypothesis": true,
+		"pairing": true, "comparisons": true}
 	// Keys the solve ignores are left out (a warning names them).
 	switch s.Solve {
 	case "n":

@@ -2,6 +2,7 @@ package report
 
 import (
 	"fmt"
+	"math"
 	"strings"
 
 	"enough/designs"
@@ -21,7 +22,18 @@ var keyLabels = map[string]string{
 	"prevalence_ratio": "prevalence ratio", "odds_ratio": "odds ratio",
 	"risk_difference": "risk difference", "prevalence_difference": "prevalence difference",
 	"margin": "margin (half-width of the interval)", "confidence": "confidence level",
-	"population": "population size",
+	"population":      "population size",
+	"mean_difference": "difference in means", "intervention_mean": "mean in the intervention arm",
+	"control_mean": "mean in the control arm", "exposed_mean": "mean among the exposed",
+	"unexposed_mean": "mean among the unexposed", "sd": "standard deviation",
+	"sd_first": "standard deviation, first group", "sd_second": "standard deviation, second group",
+	"sd_difference": "standard deviation of the differences", "within_correlation": "correlation between the two measurements",
+	"baseline_correlation": "correlation with the baseline", "hazard_ratio": "hazard ratio",
+	"control_median": "median survival, control arm", "control_survival": "survival in the control arm",
+	"time": "time of that survival", "accrual": "accrual period", "follow_up": "follow-up after the last entry",
+	"dropout": "dropout per time unit", "non_adherence": "non-adherence (intervention arm)",
+	"contamination": "contamination (control arm)", "arms": "arms", "higher_is_better": "higher is better",
+	"hypothesis": "hypothesis", "pairing": "pairing", "comparisons": "comparisons",
 }
 
 func keyLabel(k string) string {
@@ -109,7 +121,11 @@ func assumptionSection(r *designs.Result) section {
 		if src == "" {
 			src = "not stated"
 		}
-		rows = append(rows, []string{keyLabel(a.Key), "`" + a.Key + "`", a.Value, src})
+		label := keyLabel(a.Key)
+		if a.Key == "margin" && r.Goal != "precision" {
+			label = r.Spec.Hypothesis + " margin"
+		}
+		rows = append(rows, []string{label, "`" + a.Key + "`", a.Value, src})
 	}
 	s := section{heading: "Assumptions", table: rows}
 	var defaults []string
@@ -126,10 +142,16 @@ func assumptionSection(r *designs.Result) section {
 	if r.Ratio != nil && !has["ratio"] && r.Design != "cross-sectional" {
 		defaults = append(defaults, "allocation "+allocation(*r.Ratio))
 	}
-	if !has["attrition"] {
+	if !has["attrition"] && r.Outcome != "time-to-event" {
 		defaults = append(defaults, "no attrition")
 	}
-	if !has["design_effect"] {
+	if r.Outcome == "time-to-event" && !has["dropout"] {
+		defaults = append(defaults, "no dropout")
+	}
+	if r.Outcome == "time-to-event" && !has["accrual"] {
+		defaults = append(defaults, "no accrual period (everyone starts together)")
+	}
+	if !has["design_effect"] && r.Spec.Cluster == nil {
 		defaults = append(defaults, "design effect 1")
 	}
 	if r.Goal == "precision" && !has["confidence"] {
@@ -158,18 +180,28 @@ func answerSection(r *designs.Result) section {
 		return s
 	}
 	first, second := r.FirstGroup, r.SecondGroup
+	groups := func(n []int) string {
+		if len(n) == 1 {
+			return sizeList(n, r)
+		}
+		return members(n[0], first) + " and " + members(n[1], second)
+	}
+	per := ""
+	if a.Arms > 2 {
+		per = " per comparison"
+	}
 	switch r.Solve {
 	case "n":
 		s.bullets = append(s.bullets,
-			fmt.Sprintf("**Analysable: %s and %s, %s in total**", members(a.N[0], first), members(a.N[1], second), count(a.Total)),
-			fmt.Sprintf("**Enrolment target: %s and %s, %s in total**", members(a.Enrol[0], first), members(a.Enrol[1], second), count(a.EnrolTotal)),
+			fmt.Sprintf("**Analysable%s: %s, %s in total**", per, groups(a.N), count(a.Total)),
+			fmt.Sprintf("**Enrolment target%s: %s, %s in total**", per, groups(a.Enrol), count(a.EnrolTotal)),
 			fmt.Sprintf("Achieved power at the analysable sizes: %s (target %s)", pct1(*a.AchievedPower), pct1(*r.Power)),
-			fmt.Sprintf("Unrounded size of the first group from the formula: %.2f", a.NStar))
+			fmt.Sprintf("Unrounded size of the first group from the method: %.2f", a.NStar))
 	case "power":
 		s.bullets = append(s.bullets,
 			fmt.Sprintf("**Power: %s**", pct1(*a.AchievedPower)),
-			fmt.Sprintf("Enrolled: %s and %s, %s in total", members(a.Enrol[0], first), members(a.Enrol[1], second), count(a.EnrolTotal)),
-			fmt.Sprintf("Analysable after %s attrition: %s and %s, %s in total", pct(r.Attrition), count(a.N[0]), count(a.N[1]), count(a.Total)))
+			fmt.Sprintf("Enrolled%s: %s, %s in total", per, groups(a.Enrol), count(a.EnrolTotal)),
+			fmt.Sprintf("Analysable after %s attrition: %s, %s in total", pct(r.Attrition), sizeList(a.N, r), count(a.Total)))
 	case "effect":
 		det := a.Detectable
 		scale := keyLabel(det.Scale)
@@ -182,22 +214,53 @@ func answerSection(r *designs.Result) section {
 				s.bullets = append(s.bullets, fmt.Sprintf("%s: cannot be reached with these sizes", capitalise(side.name)))
 				continue
 			}
-			s.bullets = append(s.bullets, fmt.Sprintf("**%s: %s %s** (%s)", capitalise(side.name), scale, valueOn(det.Scale, *side.v), restateShort(r, side.e)))
+			line := fmt.Sprintf("**%s: %s %s**", capitalise(side.name), scale, valueOn(det.Scale, *side.v))
+			if side.e != nil && (side.e.FirstRisk != nil || side.e.CaseExposure != nil) {
+				line += " (" + restateShort(r, side.e) + ")"
+			}
+			if side.e != nil && side.e.StandardizedDifference != nil {
+				line += fmt.Sprintf(" (Cohen's d = %s)", num(*side.e.StandardizedDifference))
+			}
+			s.bullets = append(s.bullets, line)
 		}
 		s.bullets = append(s.bullets,
-			fmt.Sprintf("Power: %s; enrolled %s and %s; analysable %s and %s", pct1(*r.Power), count(a.Enrol[0]), count(a.Enrol[1]), count(a.N[0]), count(a.N[1])))
+			fmt.Sprintf("Power: %s; enrolled %s; analysable %s", pct1(*r.Power), groups(a.Enrol), sizeList(a.N, r)))
 	}
-	line := fmt.Sprintf("Allocation %s:%s = %s", first, second, allocation(*r.Ratio))
-	if r.Design == "cross-sectional" {
-		line += fmt.Sprintf(" (follows from %s of those surveyed being exposed)", pct(r.Spec.ExposurePrevalence))
+	if a.Events > 0 {
+		s.bullets = append(s.bullets, fmt.Sprintf("Events required: %s", count(a.Events)))
 	}
-	s.bullets = append(s.bullets, line)
+	if a.ExpectedEvents != nil {
+		s.bullets = append(s.bullets, fmt.Sprintf("Events expected at the analysable sizes: %.1f", *a.ExpectedEvents))
+	}
+	if a.Duration != nil {
+		s.bullets = append(s.bullets, fmt.Sprintf("Study duration: %s %s (accrual %s, then follow-up %s)", num(*a.Duration), r.Spec.TimeUnit, num(r.Spec.Accrual), num(r.Spec.FollowUp)))
+	}
+	if a.Clusters != nil {
+		s.bullets = append(s.bullets,
+			fmt.Sprintf("Design effect: %.4g", *a.DesignEffect),
+			fmt.Sprintf("Clusters: %s and %s; whole clusters bring %s and %s participants", count(a.Clusters[0]), count(a.Clusters[1]), count(a.WholeClusters[0]), count(a.WholeClusters[1])))
+	}
+	if a.Arms > 2 {
+		s.bullets = append(s.bullets, fmt.Sprintf("Arms: %d; comparisons: %d, each at alpha %.4g (Bonferroni)", a.Arms, a.Comparisons, *a.AlphaPerComparison))
+	}
+	if a.UndilutedN != nil {
+		s.bullets = append(s.bullets, fmt.Sprintf("Without non-adherence and contamination: %s", groups(a.UndilutedN)))
+	}
+	if r.Spec.Pairing != "paired" {
+		line := fmt.Sprintf("Allocation %s:%s = %s", first, second, allocation(*r.Ratio))
+		if r.Design == "cross-sectional" {
+			line += fmt.Sprintf(" (follows from %s of those surveyed being exposed)", pct(r.Spec.ExposurePrevalence))
+		}
+		s.bullets = append(s.bullets, line)
+	}
 	return s
 }
 
 // valueOn formats a value on the scale of an effect key.
 func valueOn(key string, v float64) string {
 	switch {
+	case key == "mean_difference" || key == "hazard_ratio":
+		return num(v)
 	case strings.HasSuffix(key, "_difference"):
 		return pp(v)
 	case strings.HasSuffix(key, "_ratio"):
@@ -220,6 +283,28 @@ func effectSection(r *designs.Result) *section {
 		return nil
 	}
 	s := &section{heading: "The planned effect on every scale"}
+	if e.MeanDifference != nil {
+		s.bullets = []string{
+			fmt.Sprintf("Difference in means (%s minus %s): %s", r.FirstGroup, r.SecondGroup, num(*e.MeanDifference)),
+			fmt.Sprintf("In standard deviations (Cohen's d): %s", num(*e.StandardizedDifference)),
+		}
+		if d := r.Result.DilutedEffect; d != nil {
+			s.bullets = append(s.bullets, fmt.Sprintf("Seen by an intention-to-treat analysis after dilution: %s", num(*d.MeanDifference)))
+		}
+		return s
+	}
+	if e.HazardRatio != nil {
+		sp := r.Spec
+		s.bullets = []string{
+			fmt.Sprintf("Hazard ratio (%s over %s): %s", r.FirstGroup, r.SecondGroup, num(*e.HazardRatio)),
+			fmt.Sprintf("Median survival under exponential hazards: %s %s in the %s, %s %s in the %s",
+				num(math.Ln2/sp.ControlHazard), sp.TimeUnit, r.SecondGroup, num(math.Ln2/(sp.ControlHazard**e.HazardRatio)), sp.TimeUnit, r.FirstGroup),
+		}
+		if d := r.Result.DilutedEffect; d != nil {
+			s.bullets = append(s.bullets, fmt.Sprintf("Seen by an intention-to-treat analysis after dilution: %s", num(*d.HazardRatio)))
+		}
+		return s
+	}
 	if e.CaseExposure != nil {
 		s.bullets = []string{
 			fmt.Sprintf("Exposure among %s: %s (odds %s)", r.FirstGroup, pct(*e.CaseExposure), num(*e.CaseOdds)),

@@ -12,118 +12,415 @@ func paragraph(r *designs.Result) string {
 	if r.Goal == "precision" {
 		return precisionParagraph(r)
 	}
-	s := r.Spec
 	var b strings.Builder
+	intro(&b, r)
+	assume(&b, r)
+	conclude(&b, r)
+	return strings.TrimSpace(b.String())
+}
+
+// methodPhrase names the chosen method in a sentence.
+func methodPhrase(id, name string) string {
+	switch id {
+	case "fleiss-cc":
+		return "Fleiss's formula with the continuity correction of Fleiss, Tytun & Ury (1980)"
+	case "fleiss":
+		return "Fleiss's formula without continuity correction (Fleiss, Levin & Paik 2003)"
+	case "kelsey":
+		return "the formula of Kelsey et al. (1996)"
+	case "schlesselman":
+		return "Schlesselman's formula (1982)"
+	case "farrington-manning":
+		return "the score method of Farrington & Manning (1990)"
+	case "blackwelder":
+		return "the Wald method of Blackwelder (1982)"
+	case "t":
+		return "the exact power of the t test (noncentral t distribution)"
+	case "z":
+		return "the normal approximation"
+	case "schoenfeld":
+		return "Schoenfeld's formula (1983)"
+	case "freedman":
+		return "Freedman's formula (1982)"
+	}
+	return name
+}
+
+// intro says what is compared and by which test.
+func intro(b *strings.Builder, r *designs.Result) {
+	s := r.Spec
 	outcome := s.PrimaryOutcome
+	subject := "The primary outcome, " + outcome + ","
 	if outcome == "" {
-		outcome = "the binary primary outcome"
+		outcome = "the " + r.Outcome + " primary outcome"
+		subject = "The " + r.Outcome + " primary outcome"
 	}
 	first, second := r.FirstGroup, r.SecondGroup
-	test := fmt.Sprintf("%s at a %s alpha of %g", r.TestName, sidesWord(r.Sides), *r.Alpha)
-
-	// What is compared, and how.
-	switch r.Design {
-	case "case-control":
-		fmt.Fprintf(&b, "The primary analysis compares the proportion exposed between %s and %s, with %s as the outcome that defines a case, using %s. ", first, second, outcome, test)
-	case "cross-sectional":
-		fmt.Fprintf(&b, "The survey compares the prevalence of %s between %s and %s respondents using %s. ", outcome, first, second, test)
-	case "trial":
-		fmt.Fprintf(&b, "The primary outcome, %s, will be compared between the %s and the %s using %s. ", outcome, first, second, test)
+	alpha := *r.Alpha
+	var test string
+	switch s.Hypothesis {
+	case "non-inferiority":
+		test = fmt.Sprintf("%s at a one-sided alpha of %g", r.TestName, alpha)
+	case "equivalence":
+		test = fmt.Sprintf("two one-sided tests (%s), each at an alpha of %g, which amounts to a %s confidence interval", r.TestName, alpha, pct(1-2*alpha))
 	default:
-		fmt.Fprintf(&b, "The primary outcome, %s, will be compared between the %s and the %s using %s. ", outcome, first, second, test)
+		test = fmt.Sprintf("%s at a %s alpha of %g", r.TestName, sidesWord(r.Sides), alpha)
 	}
+	switch {
+	case r.Design == "case-control":
+		fmt.Fprintf(b, "The primary analysis compares the proportion exposed between %s and %s, with %s as the outcome that defines a case, using %s. ", first, second, outcome, test)
+	case r.Design == "cross-sectional":
+		fmt.Fprintf(b, "The survey compares %s between %s and %s respondents using %s. ", meanOrPrevalence(r, outcome), first, second, test)
+	case s.Pairing == "paired":
+		fmt.Fprintf(b, "%s will be compared within pairs (matched pairs, or the same participants before and after) using %s. ", subject, test)
+	case s.Pairing == "crossover":
+		fmt.Fprintf(b, "In a two-period AB/BA crossover, %s will be compared by contrasting the period differences between the two sequences (Senn 2002), using %s. ", strings.ToLower(subject[:1])+subject[1:], test)
+	default:
+		fmt.Fprintf(b, "%s will be compared between the %s and the %s using %s. ", subject, first, second, test)
+	}
+	switch s.Hypothesis {
+	case "non-inferiority":
+		fmt.Fprintf(b, "The question is whether the %s is not worse than the %s by more than the non-inferiority margin of %s (%s). ", first, second, marginText(s), betterText(s.HigherIsBetter))
+	case "equivalence":
+		fmt.Fprintf(b, "The question is whether the difference between the arms lies within the equivalence margin of ±%s. ", marginText(s))
+	}
+	if a := r.Result; a.Arms > 2 {
+		what := "each intervention arm against the control arm"
+		if s.Comparisons == "all-pairs" {
+			what = "every pair of arms"
+		}
+		fmt.Fprintf(b, "The trial has %d arms; the %d comparisons (%s) each use alpha %g/%d = %.4g (Bonferroni), and the analysis will use Holm's procedure, which keeps the same family-wise error and is at least as powerful. ",
+			a.Arms, a.Comparisons, what, alpha, a.Comparisons, *a.AlphaPerComparison)
+	}
+}
 
-	// Assumptions.
-	ref := fmt.Sprintf("%s%s", pct(s.P2), source(r, s.ReferenceKey))
+func meanOrPrevalence(r *designs.Result, outcome string) string {
+	if r.Outcome == "continuous" {
+		return "the mean of " + outcome
+	}
+	return "the prevalence of " + outcome
+}
+
+// marginText states the margin on the outcome's scale.
+func marginText(s *designs.Spec) string {
+	if s.Outcome == "binary" {
+		return strings.TrimPrefix(pp(s.Margin), "+")
+	}
+	return num(s.Margin)
+}
+
+func betterText(higher bool) string {
+	if higher {
+		return "a higher value of the outcome is better"
+	}
+	return "a lower value of the outcome is better"
+}
+
+// assume states the assumptions behind the effect.
+func assume(b *strings.Builder, r *designs.Result) {
+	s := r.Spec
+	first, second := r.FirstGroup, r.SecondGroup
 	refSrc := source(r, s.ReferenceKey)
 	eff := source(r, s.EffectKey)
+	e := r.Result.Effect
+	switch r.Outcome {
+	case "continuous":
+		assumeMeans(b, r)
+		return
+	case "time-to-event":
+		fmt.Fprintf(b, "We assume exponential survival in the %s with %s%s (a hazard of %.4g per %s)",
+			second, survivalText(s), source(r, controlKey(s)), s.ControlHazard, singular(s.TimeUnit))
+		if r.Solve != "effect" {
+			fmt.Fprintf(b, " and plan for a hazard ratio of %s%s", num(s.HazardRatio), eff)
+		}
+		fmt.Fprintf(b, ". Participants enter uniformly over %s %s and are followed for %s %s after the last one enters (%s %s in all)",
+			num(s.Accrual), s.TimeUnit, num(s.FollowUp), s.TimeUnit, num(s.Accrual+s.FollowUp), s.TimeUnit)
+		if s.Dropout > 0 {
+			fmt.Fprintf(b, ", with %s lost to follow-up per %s%s", pct(s.Dropout), singular(s.TimeUnit), source(r, "dropout"))
+		}
+		b.WriteString(". ")
+		return
+	}
 	if r.Solve == "effect" {
 		switch r.Design {
 		case "case-control":
-			fmt.Fprintf(&b, "We assume that %s of %s are exposed%s. ", pct(s.P2), second, source(r, s.ReferenceKey))
+			fmt.Fprintf(b, "We assume that %s of %s are exposed%s. ", pct(s.P2), second, refSrc)
 		case "cross-sectional":
-			fmt.Fprintf(&b, "We expect %s of those surveyed to be exposed%s and a prevalence of %s among the unexposed. ", pct(s.ExposurePrevalence), source(r, "exposure_prevalence"), ref)
+			fmt.Fprintf(b, "We expect %s of those surveyed to be exposed%s and a prevalence of %s among the unexposed%s. ", pct(s.ExposurePrevalence), source(r, "exposure_prevalence"), pct(s.P2), refSrc)
 		default:
-			fmt.Fprintf(&b, "We assume a %s of %s in the %s%s. ", riskWord(r.Design), pct(s.P2), second, refSrc)
+			fmt.Fprintf(b, "We assume a %s of %s in the %s%s. ", riskWord(r.Design), pct(s.P2), second, refSrc)
 		}
-	} else {
-		e := r.Result.Effect
-		switch r.Design {
-		case "case-control":
-			fmt.Fprintf(&b, "We assume that %s of %s are exposed%s and plan for an odds ratio of %s%s, which means that %s of %s are exposed. ",
-				pct(s.P2), second, source(r, s.ReferenceKey), num(*e.OddsRatio), eff, pct(*e.CaseExposure), first)
-		case "cross-sectional":
-			fmt.Fprintf(&b, "We expect %s of those surveyed to be exposed%s, a prevalence of %s among the unexposed and of %s among the exposed%s: a prevalence ratio of %s (difference %s; odds ratio %s). ",
-				pct(s.ExposurePrevalence), source(r, "exposure_prevalence"), ref, pct(*e.FirstRisk), eff, num(*e.RiskRatio), pp(*e.RiskDifference), num(*e.OddsRatio))
-		default:
-			fmt.Fprintf(&b, "We assume a risk of %s in the %s%s and plan for a risk of %s in the %s%s: a risk ratio of %s (risk difference %s; odds ratio %s). ",
-				pct(s.P2), second, refSrc, pct(*e.FirstRisk), first, eff, num(*e.RiskRatio), pp(*e.RiskDifference), num(*e.OddsRatio))
-		}
+		return
 	}
+	switch {
+	case r.Design == "case-control":
+		fmt.Fprintf(b, "We assume that %s of %s are exposed%s and plan for an odds ratio of %s%s, which means that %s of %s are exposed. ",
+			pct(s.P2), second, refSrc, num(*e.OddsRatio), eff, pct(*e.CaseExposure), first)
+	case r.Design == "cross-sectional":
+		fmt.Fprintf(b, "We expect %s of those surveyed to be exposed%s, a prevalence of %s among the unexposed%s and of %s among the exposed%s: a prevalence ratio of %s (difference %s; odds ratio %s). ",
+			pct(s.ExposurePrevalence), source(r, "exposure_prevalence"), pct(s.P2), refSrc, pct(*e.FirstRisk), eff, num(*e.RiskRatio), pp(*e.RiskDifference), num(*e.OddsRatio))
+	case s.Hypothesis != "superiority" && s.EffectKey == "":
+		fmt.Fprintf(b, "We assume the same risk of %s in both arms%s. ", pct(s.P2), refSrc)
+	default:
+		fmt.Fprintf(b, "We assume a risk of %s in the %s%s and plan for a risk of %s in the %s%s: a risk ratio of %s (risk difference %s; odds ratio %s). ",
+			pct(s.P2), second, refSrc, pct(*e.FirstRisk), first, eff, num(*e.RiskRatio), pp(*e.RiskDifference), num(*e.OddsRatio))
+	}
+	dilution(b, r)
+}
 
-	a := r.Result
-	method := fmt.Sprintf("%s's formula", r.MethodName)
-	switch r.Method {
-	case "fleiss-cc":
-		method = "Fleiss's formula with the continuity correction of Fleiss, Tytun & Ury (1980)"
-	case "fleiss":
-		method = "Fleiss's formula without continuity correction (Fleiss, Levin & Paik 2003)"
-	case "kelsey":
-		method = "the formula of Kelsey et al. (1996)"
-	case "schlesselman":
-		method = "Schlesselman's formula (1982)"
+func controlKey(s *designs.Spec) string {
+	for _, g := range s.Given {
+		if g.Key == "control_median" {
+			return "control_median"
+		}
 	}
+	return "control_survival"
+}
+
+// survivalText states the control arm's survival as given.
+func survivalText(s *designs.Spec) string {
+	for _, g := range s.Given {
+		if g.Key == "control_median" {
+			return fmt.Sprintf("a median survival of %s %s", g.Value, s.TimeUnit)
+		}
+	}
+	var surv, t string
+	for _, g := range s.Given {
+		switch g.Key {
+		case "control_survival":
+			surv = g.Value
+		case "time":
+			t = g.Value
+		}
+	}
+	return fmt.Sprintf("a survival of %s at %s %s", surv, t, s.TimeUnit)
+}
+
+// singular drops a plural s from a time unit: months → month.
+func singular(unit string) string {
+	if strings.HasSuffix(unit, "s") && unit != "time units" {
+		return strings.TrimSuffix(unit, "s")
+	}
+	if unit == "time units" {
+		return "time unit"
+	}
+	return unit
+}
+
+// assumeMeans states the assumptions of a continuous outcome.
+func assumeMeans(b *strings.Builder, r *designs.Result) {
+	s := r.Spec
+	sdSrc := source(r, "sd")
+	switch {
+	case s.Pairing != "":
+		fmt.Fprintf(b, "We assume a standard deviation of %s for a participant's difference between the two measurements%s", num(s.SD1), orSource(r, "sd_difference", "sd"))
+	case s.SD1 != s.SD2:
+		fmt.Fprintf(b, "We assume standard deviations of %s in the %s and %s in the %s%s", num(s.SD1), r.FirstGroup, num(s.SD2), r.SecondGroup, source(r, "sd_first"))
+	default:
+		fmt.Fprintf(b, "We assume a standard deviation of %s%s", num(s.SD1), sdSrc)
+	}
+	if s.BaselineCorrelation > 0 {
+		fmt.Fprintf(b, " after adjustment for the baseline measurement by analysis of covariance (a correlation of %s with the outcome%s shrinks the variance by the factor 1 − %s² = %.4g; Borm, Fransen & Lemmens 2007)",
+			num(s.BaselineCorrelation), source(r, "baseline_correlation"), num(s.BaselineCorrelation), 1-s.BaselineCorrelation*s.BaselineCorrelation)
+	}
+	if r.Solve != "effect" {
+		if s.Hypothesis != "superiority" && s.EffectKey == "" {
+			b.WriteString(" and no true difference between the arms")
+		} else {
+			d := *r.Result.Effect.StandardizedDifference
+			fmt.Fprintf(b, " and plan for a difference in means of %s%s (Cohen's d = %s)", num(s.MeanDiff), source(r, "mean_difference"), num(d))
+		}
+	}
+	b.WriteString(". ")
+	if s.Test == "t-welch" {
+		b.WriteString("The analysis uses Welch's test, whose degrees of freedom follow the Welch–Satterthwaite approximation. ")
+	}
+	dilution(b, r)
+}
+
+func orSource(r *designs.Result, keys ...string) string {
+	for _, k := range keys {
+		if s := source(r, k); s != "" {
+			return s
+		}
+	}
+	return ""
+}
+
+// dilution describes non-adherence and contamination.
+func dilution(b *strings.Builder, r *designs.Result) {
+	s := r.Spec
+	d := r.Result.DilutedEffect
+	if d == nil {
+		return
+	}
+	var parts []string
+	if s.NonAdherence > 0 {
+		parts = append(parts, fmt.Sprintf("%s of the %s not receiving it", pct(s.NonAdherence), r.FirstGroup))
+	}
+	if s.Contamination > 0 {
+		parts = append(parts, fmt.Sprintf("%s of the %s receiving it", pct(s.Contamination), r.SecondGroup))
+	}
+	var seen string
+	switch {
+	case d.MeanDifference != nil:
+		seen = "a difference in means of " + num(*d.MeanDifference)
+	case d.HazardRatio != nil:
+		seen = "a hazard ratio of " + num(*d.HazardRatio)
+	default:
+		seen = fmt.Sprintf("risks of %s and %s (risk ratio %s)", pct(*d.FirstRisk), pct(*d.SecondRisk), num(*d.RiskRatio))
+	}
+	fmt.Fprintf(b, "With %s, an intention-to-treat analysis sees %s (Lachin & Foulkes 1986). ", strings.Join(parts, " and "), seen)
+}
+
+// conclude states the answer.
+func conclude(b *strings.Builder, r *designs.Result) {
+	s := r.Spec
+	a := r.Result
+	first, second := r.FirstGroup, r.SecondGroup
+	method := methodPhrase(r.Method, r.MethodName)
 	alloc := fmt.Sprintf("with %s allocation (%s to %s)", allocation(*r.Ratio), first, second)
-	if r.Design == "cross-sectional" {
+	switch {
+	case r.Design == "cross-sectional":
 		alloc = "with the groups in proportion to the exposure"
+	case s.Pairing == "paired":
+		alloc = ""
+	case s.Pairing == "crossover":
+		alloc = fmt.Sprintf("with %s allocation between the sequences", allocation(*r.Ratio))
 	}
 	switch r.Solve {
 	case "n":
-		if r.Design == "cross-sectional" {
-			fmt.Fprintf(&b, "To reach a power of at least %s, %s requires %s analysable respondents, of whom about %s are expected to be exposed and %s unexposed; the achieved power at these numbers is %s. ",
-				pct1(*r.Power), method, count(a.Total), count(a.N[0]), count(a.N[1]), pct1(*a.AchievedPower))
-		} else {
-			fmt.Fprintf(&b, "To reach a power of at least %s %s, %s requires %s and %s, %s analysable in all; the achieved power at these numbers is %s. ",
-				pct1(*r.Power), alloc, method, members(a.N[0], first), members(a.N[1], second), count(a.Total), pct1(*a.AchievedPower))
+		target := "To reach a power of at least " + pct1(*r.Power)
+		if alloc != "" {
+			target += " " + alloc
 		}
-		inflation(&b, r)
+		switch {
+		case r.Outcome == "time-to-event":
+			fmt.Fprintf(b, "%s, %s requires %s events; with the expected probabilities of an observed event, that is %s and %s, %s in all, who are expected to yield %.1f events; the achieved power is %s. ",
+				target, method, count(a.Events), members(a.N[0], first), members(a.N[1], second), count(a.Total), *a.ExpectedEvents, pct1(*a.AchievedPower))
+		case s.Pairing == "paired":
+			fmt.Fprintf(b, "%s, %s requires %s pairs; the achieved power is %s. ", target, method, count(a.N[0]), pct1(*a.AchievedPower))
+		case r.Design == "cross-sectional":
+			fmt.Fprintf(b, "%s, %s requires %s analysable respondents, of whom about %s are expected to be exposed and %s unexposed; the achieved power at these numbers is %s. ",
+				target, method, count(a.Total), count(a.N[0]), count(a.N[1]), pct1(*a.AchievedPower))
+		default:
+			fmt.Fprintf(b, "%s, %s requires %s and %s, %s analysable in all; the achieved power at these numbers is %s. ",
+				target, method, members(a.N[0], first), members(a.N[1], second), count(a.Total), pct1(*a.AchievedPower))
+		}
+		clusterSentence(b, r)
+		armsSentence(b, r)
+		if a.UndilutedN != nil {
+			fmt.Fprintf(b, "Without the dilution, %s would have sufficed. ", sizeList(a.UndilutedN, r))
+		}
+		inflation(b, r)
 	case "power":
-		fmt.Fprintf(&b, "The planned enrolment of %s and %s (%s in all) ", members(a.Enrol[0], first), members(a.Enrol[1], second), count(a.EnrolTotal))
+		fmt.Fprintf(b, "The planned enrolment of %s (%s in all) ", enrolList(r), count(a.EnrolTotal))
 		if r.Attrition > 0 {
-			fmt.Fprintf(&b, "leaves about %s and %s analysable after %s attrition", count(a.N[0]), count(a.N[1]), pct(r.Attrition))
+			fmt.Fprintf(b, "leaves about %s analysable after %s attrition", sizeList(a.N, r), pct(r.Attrition))
 		} else {
 			b.WriteString("is assumed to be fully analysable")
 		}
 		if r.DesignEff > 1 {
-			fmt.Fprintf(&b, ", with a design effect of %g", r.DesignEff)
+			fmt.Fprintf(b, ", with a design effect of %.4g", r.DesignEff)
 		}
-		fmt.Fprintf(&b, ". Under these assumptions %s gives a power of %s. ", method, pct1(*a.AchievedPower))
+		if a.ExpectedEvents != nil {
+			fmt.Fprintf(b, ", and is expected to yield %.1f events", *a.ExpectedEvents)
+		}
+		fmt.Fprintf(b, ". Under these assumptions %s gives a power of %s. ", method, pct1(*a.AchievedPower))
+		clusterSentence(b, r)
 	case "effect":
-		fmt.Fprintf(&b, "With %s and %s enrolled (%s and %s analysable", members(a.Enrol[0], first), members(a.Enrol[1], second), count(a.N[0]), count(a.N[1]))
+		fmt.Fprintf(b, "With %s enrolled (%s analysable", enrolList(r), sizeList(a.N, r))
 		if r.DesignEff > 1 {
-			fmt.Fprintf(&b, ", design effect %g", r.DesignEff)
+			fmt.Fprintf(b, ", design effect %.4g", r.DesignEff)
 		}
-		fmt.Fprintf(&b, "), %s sets the smallest effect detectable with %s power", method, pct1(*r.Power))
+		fmt.Fprintf(b, "), %s sets the smallest effect detectable with %s power", method, pct1(*r.Power))
 		det := a.Detectable
 		var sides []string
-		if det.Lower != nil {
-			sides = append(sides, fmt.Sprintf("a %s of %s (%s)", keyLabel(det.Scale), valueOn(det.Scale, *det.Lower), restateShort(r, det.LowerEffect)))
-		}
-		if det.Upper != nil {
-			sides = append(sides, fmt.Sprintf("a %s of %s (%s)", keyLabel(det.Scale), valueOn(det.Scale, *det.Upper), restateShort(r, det.UpperEffect)))
+		for _, side := range []struct {
+			v *float64
+			e *designs.Effect
+		}{{det.Lower, det.LowerEffect}, {det.Upper, det.UpperEffect}} {
+			if side.v == nil {
+				continue
+			}
+			text := fmt.Sprintf("a %s of %s", keyLabel(det.Scale), valueOn(det.Scale, *side.v))
+			if side.e != nil && (side.e.FirstRisk != nil || side.e.CaseExposure != nil) {
+				text += " (" + restateShort(r, side.e) + ")"
+			}
+			sides = append(sides, text)
 		}
 		if len(sides) == 0 {
 			b.WriteString(": no effect in either direction reaches that power. ")
 		} else {
-			fmt.Fprintf(&b, " at %s. ", strings.Join(sides, " or "))
+			fmt.Fprintf(b, " at %s. ", strings.Join(sides, " or "))
 		}
 	}
-	return strings.TrimSpace(b.String())
+}
+
+// sizeList phrases analysable sizes: "12 pairs" or "20 and 20".
+func sizeList(n []int, r *designs.Result) string {
+	if len(n) == 1 {
+		if r.Spec.Pairing == "paired" {
+			return count(n[0]) + " pairs"
+		}
+		return count(n[0])
+	}
+	return count(n[0]) + " and " + count(n[1])
+}
+
+// enrolList phrases the enrolment per group.
+func enrolList(r *designs.Result) string {
+	a := r.Result
+	if len(a.Enrol) == 1 {
+		return sizeList(a.Enrol, r)
+	}
+	return members(a.Enrol[0], r.FirstGroup) + " and " + members(a.Enrol[1], r.SecondGroup)
+}
+
+// clusterSentence describes a cluster design.
+func clusterSentence(b *strings.Builder, r *designs.Result) {
+	c := r.Spec.Cluster
+	a := r.Result
+	if c == nil || a.Clusters == nil {
+		return
+	}
+	deff := "1 + (m − 1) ICC (Donner & Klar 2000)"
+	if c.SizeCV > 0 {
+		deff = fmt.Sprintf("1 + ((cv² + 1) m − 1) ICC with a cluster-size coefficient of variation of %s (Eldridge, Ashby & Kerry 2006)", num(c.SizeCV))
+	}
+	fmt.Fprintf(b, "Clusters of %s participants on average with an intracluster correlation of %s%s give a design effect of %.4g, from %s. The arms need %s and %s clusters, which bring %s and %s participants; the analysis is a t test on cluster summaries with %d degrees of freedom. ",
+		num(c.Size), num(c.ICC), source(r, "cluster.icc"), *a.DesignEffect, deff, count(a.Clusters[0]), count(a.Clusters[1]),
+		count(a.WholeClusters[0]), count(a.WholeClusters[1]), a.Clusters[0]+a.Clusters[1]-2)
+}
+
+// armsSentence gives the totals of a trial with several arms.
+func armsSentence(b *strings.Builder, r *designs.Result) {
+	a := r.Result
+	if a.Arms <= 2 {
+		return
+	}
+	if r.Spec.Comparisons == "all-pairs" {
+		fmt.Fprintf(b, "Each of the %d arms has %s analysable participants, %s in all. ", a.Arms, count(a.N[0]), count(a.Total))
+		return
+	}
+	fmt.Fprintf(b, "Each of the %d intervention arms has %s analysable participants and the control arm %s, %s in all. ", a.Arms-1, count(a.N[0]), count(a.N[1]), count(a.Total))
 }
 
 // inflation describes the design effect and attrition steps.
 func inflation(b *strings.Builder, r *designs.Result) {
 	a := r.Result
+	if r.Spec.Pairing == "paired" {
+		if r.Attrition > 0 {
+			fmt.Fprintf(b, "Allowing for %s attrition, we will enrol %s pairs.", pct(r.Attrition), count(a.EnrolTotal))
+		} else {
+			fmt.Fprintf(b, "No attrition is expected, so the enrolment target is %s pairs.", count(a.EnrolTotal))
+		}
+		return
+	}
+	if r.Outcome == "time-to-event" {
+		fmt.Fprintf(b, "Losses to follow-up are already counted in the event probabilities, so the enrolment target is %s in total.", count(a.EnrolTotal))
+		return
+	}
 	if r.Design == "cross-sectional" {
 		if r.DesignEff > 1 {
 			fmt.Fprintf(b, "These numbers include a design effect of %g. ", r.DesignEff)
@@ -137,6 +434,11 @@ func inflation(b *strings.Builder, r *designs.Result) {
 		return
 	}
 	switch {
+	case r.Spec.Cluster != nil && r.Attrition > 0:
+		fmt.Fprintf(b, "Allowing for %s attrition, we will enrol %s and %s, %s participants in total.",
+			pct(r.Attrition), members(a.Enrol[0], r.FirstGroup), members(a.Enrol[1], r.SecondGroup), count(a.EnrolTotal))
+	case r.Spec.Cluster != nil:
+		fmt.Fprintf(b, "No attrition is expected, so the enrolment target is %s in total.", count(a.EnrolTotal))
 	case r.DesignEff > 1 && r.Attrition > 0:
 		fmt.Fprintf(b, "These numbers include a design effect of %g; allowing further for %s attrition, we will enrol %s and %s, %s participants in total.",
 			r.DesignEff, pct(r.Attrition), members(a.Enrol[0], r.FirstGroup), members(a.Enrol[1], r.SecondGroup), count(a.EnrolTotal))

@@ -61,7 +61,14 @@ Exit status: 0 success; 1 the plan could not be computed or written;
 
 // Execute runs the command line args and returns the exit status. Errors
 // are printed once, as one line on ErrOut.
-func Execute(args []string, streams *IO) int {
+func Execute(args []string, streams *IO) (code int) {
+	defer func() {
+		// A bug must still end in one line and a documented status.
+		if p := recover(); p != nil {
+			fmt.Fprintf(streams.ErrOut, "enough: internal error: %v (please report this with the specification)\n", p)
+			code = ExitFailure
+		}
+	}()
 	root := NewRootCmd(streams)
 	root.SetArgs(args)
 	err := root.Execute()
