@@ -81,7 +81,7 @@ var specKeys = map[string]keyInfo{
 	"control_survival":     {kindNumber, "a probability in (0, 1)"},
 	"time":                 {kindNumber, "a time above 0"},
 	"accrual":              {kindNumber, "a time of at least 0"},
-	"follow_up":            {kindNumber, "a time above 0"},
+	"follow_up":            {kindNumber, "a time of at least 0 (above 0 when there is no accrual)"},
 	"dropout":              {kindNumber, "a fraction in [0, 1) lost per time unit"},
 	"time_unit":            {kindText, "a word such as months or years"},
 	"cluster":              {kindMap, "a map with size (mean cluster size, at least 2), icc (in [0, 1)) and optionally size_cv (at least 0)"},

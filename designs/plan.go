@@ -215,9 +215,10 @@ type solved struct {
 }
 
 // solveN finds the sizes for the target power: the formula's n*, the
-// documented rounding and inflation, and for a cluster design whole clusters
-// with a cluster-level t test on 2(k − 1) degrees of freedom, adding
-// clusters until the target is reached.
+// documented rounding and inflation, and for a cluster design the smallest
+// size, from ceil(n* × design effect) upwards, whose clusters (at least two
+// per arm) reach the target in a cluster-level t test on k1 + k2 − 2 degrees
+// of freedom.
 func solveN(s *Spec, m *MethodInfo, e effects) (solved, error) {
 	calc := newCalculator(s, m, e)
 	nstar, err := calc.nStar(s.Power)
@@ -231,28 +232,45 @@ func solveN(s *Spec, m *MethodInfo, e effects) (solved, error) {
 	if s.Cluster == nil {
 		return solved{nstar, sz, calc, e}, nil
 	}
-	m1 := s.Cluster.Size
-	k := [2]int{ceilTol(float64(sz.n[0]) / m1), ceilTol(float64(sz.n[1]) / m1)}
-	for iter := 0; ; iter++ {
-		e.clusterK = [2]int{max(k[0], 2), max(k[1], 2)}
-		if k[0] < 2 || k[1] < 2 {
-			// A cluster-level test needs at least two clusters per arm.
-			k = e.clusterK
-			sz = clusterSizes(s, k)
-		}
-		calc = newCalculator(s, m, e)
-		if calc.power(sz.eff[0], sz.eff[1]) >= s.Power || iter > 100000 {
-			return solved{nstar, sz, calc, e}, nil
-		}
-		k[0]++
-		k[1] = max(k[1], ceilTol(s.Ratio*float64(k[0])))
-		sz = clusterSizes(s, k)
+	// The smallest first-arm size, from the formula's upwards, whose
+	// clusters give the target power in a cluster-level t test.
+	at := func(n1 int) (sizes, effects, calculator) {
+		sz := clusterSizes(s, n1)
+		ec := e
+		ec.clusterK = [2]int{ceilTol(float64(sz.n[0]) / s.Cluster.Size), ceilTol(float64(sz.n[1]) / s.Cluster.Size)}
+		return sz, ec, newCalculator(s, m, ec)
 	}
+	ok := func(n1 int) bool {
+		sz, _, c := at(n1)
+		return c.power(sz.eff[0], sz.eff[1]) >= s.Power
+	}
+	lo := max(sz.n[0], ceilTol(2*s.Cluster.Size), ceilTol(2*s.Cluster.Size/s.Ratio))
+	if !ok(lo) {
+		hi := lo
+		for step := 1; !ok(hi); step *= 2 {
+			lo, hi = hi, hi+step
+			if hi > MaxSize {
+				return solved{}, checkSizes(s, float64(hi))
+			}
+		}
+		for hi-lo > 1 {
+			mid := lo + (hi-lo)/2
+			if ok(mid) {
+				hi = mid
+			} else {
+				lo = mid
+			}
+		}
+		lo = hi
+	}
+	sz, e, calc = at(lo)
+	return solved{nstar, sz, calc, e}, nil
 }
 
-// clusterSizes returns the sizes that k whole clusters per arm bring.
-func clusterSizes(s *Spec, k [2]int) sizes {
-	n1, n2 := ceilTol(float64(k[0])*s.Cluster.Size), ceilTol(float64(k[1])*s.Cluster.Size)
+// clusterSizes returns the sizes of a cluster design with n1 analysable
+// participants in the first arm (at least two clusters per arm).
+func clusterSizes(s *Spec, n1 int) sizes {
+	n2 := ceilTol(s.Ratio * float64(n1))
 	return sizes{
 		n:     []int{n1, n2},
 		enrol: []int{ceilTol(float64(n1) / (1 - s.Attrition)), ceilTol(float64(n2) / (1 - s.Attrition))},

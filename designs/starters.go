@@ -9,14 +9,22 @@ import (
 var starters embed.FS
 
 // Starter returns a commented starter specification for a design; goal
-// selects the cross-sectional variant ("comparison" or "precision").
-func Starter(design, goal string) ([]byte, error) {
+// selects the cross-sectional variant ("comparison" or "precision") and
+// outcome the trial variant ("binary", "continuous", "time-to-event").
+func Starter(design, goal, outcome string) ([]byte, error) {
 	name := design
 	switch {
 	case design == "cross-sectional" && goal == "precision":
 		name = "precision"
 	case goal != "" && goal != "comparison":
 		return nil, fmt.Errorf("goal %q; allowed: comparison, or precision with design cross-sectional", goal)
+	}
+	switch {
+	case outcome == "" || outcome == "binary":
+	case design == "trial" && (outcome == "continuous" || outcome == "time-to-event"):
+		name = "trial-" + outcome
+	default:
+		return nil, fmt.Errorf("outcome %q; allowed: binary, or continuous and time-to-event with design trial", outcome)
 	}
 	data, err := starters.ReadFile("starters/" + name + ".yaml")
 	if err != nil {

@@ -560,12 +560,15 @@ func (r *reader) buildSurvival(s *Spec) error {
 	if s.Accrual, _, err = r.optNum("accrual", 0, func(x float64) bool { return x >= 0 && !math.IsInf(x, 0) }); err != nil {
 		return err
 	}
-	fu, fue, err := r.optNum("follow_up", 0, pos)
+	fu, fue, err := r.optNum("follow_up", 0, func(x float64) bool { return x >= 0 && !math.IsInf(x, 0) })
 	if err != nil {
 		return err
 	}
 	if fue == nil {
-		return r.errFile("follow_up", "missing; required: the follow-up after the last participant enters, a time above 0")
+		return r.errFile("follow_up", "missing; required: the follow-up after the last participant enters, a time of at least 0")
+	}
+	if fu == 0 && s.Accrual == 0 {
+		return r.errAt(fue, "0 with no accrual period follows nobody; allowed: a follow-up above 0 (or an accrual period)")
 	}
 	s.FollowUp = fu
 	if s.Dropout, _, err = r.optNum("dropout", 0, func(x float64) bool { return x >= 0 && x < 1 }); err != nil {

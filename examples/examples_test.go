@@ -51,10 +51,11 @@ func TestExamples(t *testing.T) {
 
 // TestStarters checks that every starter of `enough new` plans as it stands.
 func TestStarters(t *testing.T) {
-	for _, c := range []struct{ design, goal string }{
-		{"cohort", ""}, {"case-control", ""}, {"trial", ""}, {"cross-sectional", ""}, {"cross-sectional", "precision"},
+	for _, c := range []struct{ design, goal, outcome string }{
+		{"cohort", "", ""}, {"case-control", "", ""}, {"trial", "", ""}, {"cross-sectional", "", ""},
+		{"cross-sectional", "precision", ""}, {"trial", "", "continuous"}, {"trial", "", "time-to-event"},
 	} {
-		data, err := designs.Starter(c.design, c.goal)
+		data, err := designs.Starter(c.design, c.goal, c.outcome)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -70,7 +71,7 @@ func TestStarters(t *testing.T) {
 			t.Errorf("starter for %s is a %s", c.design, s.Design)
 		}
 	}
-	if _, err := designs.Starter("ecological", ""); err == nil {
+	if _, err := designs.Starter("ecological", "", ""); err == nil {
 		t.Error("a starter for an unknown design")
 	}
 }

@@ -345,8 +345,8 @@ func alternativeSection(r *designs.Result) section {
 		var line string
 		switch r.Solve {
 		case "n":
-			line = fmt.Sprintf("%s (%s): %s and %s analysable, %s in total; %s to enrol; achieved power %s",
-				alt.Name, alt.Short, count(alt.N[0]), count(alt.N[1]), count(alt.Total), count(alt.EnrolTotal), pct1(*alt.AchievedPower))
+			line = fmt.Sprintf("%s (%s): %s analysable, %s in total; %s to enrol; achieved power %s",
+				alt.Name, alt.Short, sizeList(alt.N, r), count(alt.Total), count(alt.EnrolTotal), pct1(*alt.AchievedPower))
 		case "power":
 			line = fmt.Sprintf("%s (%s): power %s", alt.Name, alt.Short, pct1(*alt.AchievedPower))
 		case "effect":

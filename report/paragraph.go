@@ -128,8 +128,12 @@ func assume(b *strings.Builder, r *designs.Result) {
 		assumeMeans(b, r)
 		return
 	case "time-to-event":
-		fmt.Fprintf(b, "We assume exponential survival in the %s with %s%s (a hazard of %.4g per %s)",
-			second, survivalText(s), source(r, controlKey(s)), s.ControlHazard, singular(s.TimeUnit))
+		src := strings.TrimSuffix(strings.TrimPrefix(source(r, controlKey(s)), " ("), ")")
+		if src != "" {
+			src = "; " + src
+		}
+		fmt.Fprintf(b, "We assume exponential survival in the %s with %s (a hazard of %.4g per %s%s)",
+			second, survivalText(s), s.ControlHazard, singular(s.TimeUnit), src)
 		if r.Solve != "effect" {
 			fmt.Fprintf(b, " and plan for a hazard ratio of %s%s", num(s.HazardRatio), eff)
 		}
@@ -224,7 +228,7 @@ func assumeMeans(b *strings.Builder, r *designs.Result) {
 			num(s.BaselineCorrelation), source(r, "baseline_correlation"), num(s.BaselineCorrelation), 1-s.BaselineCorrelation*s.BaselineCorrelation)
 	}
 	if r.Solve != "effect" {
-		if s.Hypothesis != "superiority" && s.EffectKey == "" {
+		if s.Hypothesis != "superiority" && s.MeanDiff == 0 {
 			b.WriteString(" and no true difference between the arms")
 		} else {
 			d := *r.Result.Effect.StandardizedDifference
