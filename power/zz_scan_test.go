@@ -4,6 +4,7 @@ import (
 	"math"
 	"testing"
 
+	"enough/power"
 	"gonum.org/v1/gonum/integrate/quad"
 	"gonum.org/v1/gonum/stat/distuv"
 )
@@ -11,7 +12,9 @@ import (
 // P(T <= q) = E[Phi(q S - ncp)], integrate over y = log V.
 func quadCDF(q, df, ncp float64) float64 {
 	chi := distuv.ChiSquared{K: df}
-	lo, hi := math.Log(chi.Quantile(1e-30)), math.Log(chi.Quantile(1-1e-16))
+	ql := chi.Quantile(1e-30)
+	if !(ql > 1e-300) { ql = 1e-300 }
+	lo, hi := math.Log(ql), math.Log(chi.Quantile(1-1e-16))
 	if math.IsInf(hi, 0) || math.IsNaN(hi) { hi = math.Log(df + 60*math.Sqrt(2*df) + 200) }
 	f := func(y float64) float64 {
 		v := math.Exp(y)
@@ -41,8 +44,37 @@ func TestScan3(t *testing.T) {
 				want := quadCDF(q, df, ncp)
 				got := distuv.NoncentralT{Nu: df, Mu: ncp}.CDF(q)
 				d := math.Abs(got - want)
+				if math.IsNaN(d) { t.Fatalf("NaN df=%g ncp=%g q=%g %v %v", df, ncp, q, got, want) }
 				if d > worstAbs { worstAbs = d; wa = "" ; _ = wa; t.Logf("new worst abs %.3g df=%g ncp=%g q=%g want=%.6g", d, df, ncp, q, want)}
 			}
 		}
 	}
+}
+
+func TestScan4(t *testing.T) {
+	t.Logf("pt_12 lower %.15g want %.15g", quadCDF(8, 5, 10), 1-0.816694884509002)
+	for _, df := range []float64{3, 4, 5, 6} {
+		for _, q := range []float64{8.75, 9.75, 12, 15} {
+			for _, ncp := range []float64{8, 10} {
+				w := quadCDF(q, df, ncp)
+				g := distuv.NoncentralT{Nu: df, Mu: ncp}.CDF(q)
+				t.Logf("df=%g ncp=%g q=%g quad=%.15g gonum=%.15g diff=%.2e", df, ncp, q, w, g, g-w)
+			}
+		}
+	}
+}
+
+func TestScan5(t *testing.T) {
+	cnt := 0
+	for _, n := range []float64{3, 5, 10, 50, 200, 501, 1000, 3000} {
+		for d := -3.0; d <= 0; d += 0.01 {
+			mc := power.MeanComparison{Diff: d, SD1: 1, Alpha: 0.025, Hypothesis: power.NonInferiority, Bound: -0.1}
+			p := power.T.Power(mc, n, n)
+			if p < 0 || p > 1 || math.IsNaN(p) {
+				cnt++
+				if cnt < 10 { t.Logf("n=%g d=%g p=%g", n, d, p) }
+			}
+		}
+	}
+	t.Logf("count %d", cnt)
 }
