@@ -164,7 +164,7 @@ func (m MeansMethod) Power(mc MeanComparison, n1, n2 float64) float64 {
 		if mc.Bound > 0 {
 			shift = -shift
 		}
-		return m.oneSided(shift/se, df, mc.Alpha)
+		return clamp01(m.oneSided(shift/se, df, mc.Alpha))
 	case Equivalence:
 		if m == T {
 			return tostExact(mc.Diff, mc.Bound, se, df, mc.Alpha)
@@ -194,8 +194,7 @@ func TTestPower(ncp, df, alpha float64, sides int) float64 {
 		return T.oneSided(ncp, df, alpha)
 	}
 	c := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: df}.Quantile(1 - alpha/2)
-	nct := distuv.NoncentralT{Nu: df, Mu: ncp}
-	return upperNCT(nct, c) + nct.CDF(-c)
+	return clamp01(nctUpper(ncp, df, c) + nctLower(ncp, df, -c))
 }
 
 // oneSided returns the power of a one-sided test with noncentrality ncp.
@@ -204,15 +203,66 @@ func (m MeansMethod) oneSided(ncp, df, alpha float64) float64 {
 		return normCDF(ncp - ZAlpha(alpha, 1))
 	}
 	c := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: df}.Quantile(1 - alpha)
-	return upperNCT(distuv.NoncentralT{Nu: df, Mu: ncp}, c)
+	return clamp01(nctUpper(ncp, df, c))
 }
 
-// upperNCT returns P(T' > c) for a noncentral t, taking the complement
-// through the reflection P(T'(ncp) > c) = P(T'(−ncp) < −c) so that small
-// upper tails keep their relative accuracy.
-func upperNCT(d distuv.NoncentralT, c float64) float64 {
-	return distuv.NoncentralT{Nu: d.Nu, Mu: -d.Mu}.CDF(-c)
+// largeNCP is where gonum's noncentral t switches to a normal
+// approximation that returns the wrong tail for negative arguments (seen
+// above about 38.6); beyond it the tails are integrated directly.
+const largeNCP = 30
+
+// nctUpper returns P(T' > c) for T' ~ t(df, ncp).
+func nctUpper(ncp, df, c float64) float64 {
+	if math.Abs(ncp) > largeNCP {
+		return nctIntegral(func(w float64) float64 { return normCDF(ncp - c*w) }, df)
+	}
+	return 1 - distuv.NoncentralT{Nu: df, Mu: ncp}.CDF(c)
 }
+
+// nctLower returns P(T' < c) for T' ~ t(df, ncp).
+func nctLower(ncp, df, c float64) float64 {
+	if math.Abs(ncp) > largeNCP {
+		return nctIntegral(func(w float64) float64 { return normCDF(c*w - ncp) }, df)
+	}
+	return distuv.NoncentralT{Nu: df, Mu: ncp}.CDF(c)
+}
+
+// nctIntegral returns E[g(√(U/df))] for U ~ χ²(df): with T' = (Z + ncp)/W,
+// W = √(U/df), P(T' > c) = E[Φ(ncp − cW)] and P(T' < c) = E[Φ(cW − ncp)].
+func nctIntegral(g func(w float64) float64, df float64) float64 {
+	return chiIntegral(df, math.Inf(1), func(u float64) float64 { return g(math.Sqrt(u / df)) })
+}
+
+// chiIntegral returns ∫ f(u) dχ²(df)(u) over 0 < u < upper. It integrates
+// in s = √u, where the density 2s f_χ²(s²) has no singularity at zero
+// (df = 1), by composite Gauss–Legendre over 64 panels of 16 nodes between
+// the 1e-16 and 1 − 1e-16 quantiles.
+func chiIntegral(df, upper float64, f func(u float64) float64) float64 {
+	chi := distuv.ChiSquared{K: df}
+	lo, hi := chi.Quantile(1e-16), chi.Quantile(1-1e-16)
+	if math.IsInf(hi, 0) || math.IsNaN(hi) {
+		hi = df + 40*math.Sqrt(2*df) + 100
+	}
+	hi = math.Min(hi, upper)
+	if !(hi > lo) {
+		return 0
+	}
+	g := func(s float64) float64 {
+		u := s * s
+		return f(u) * 2 * s * chi.Prob(u)
+	}
+	const panels = 64
+	a, b := math.Sqrt(lo), math.Sqrt(hi)
+	h := (b - a) / panels
+	sum := 0.0
+	for i := 0; i < panels; i++ {
+		x := a + float64(i)*h
+		sum += quad.Fixed(g, x, x+h, 16, quad.Legendre{}, 0)
+	}
+	return sum
+}
+
+func clamp01(p float64) float64 { return math.Min(1, math.Max(0, p)) }
 
 // tostExact is the exact power of two one-sided t tests at level alpha for
 // the margin ±bound: both reject when |d̂| + t_c ŝe < bound. With
@@ -224,33 +274,12 @@ func upperNCT(d distuv.NoncentralT, c float64) float64 {
 // integral (Owen 1965).
 func tostExact(diff, bound, se, df, alpha float64) float64 {
 	c := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: df}.Quantile(1 - alpha)
-	chi := distuv.ChiSquared{K: df}
 	umax := df * sq(bound/(c*se))
-	lo, hi := chi.Quantile(1e-16), chi.Quantile(1-1e-16)
-	if math.IsInf(hi, 0) || math.IsNaN(hi) {
-		hi = df + 40*math.Sqrt(2*df) + 100
-	}
-	hi = math.Min(hi, umax)
-	if !(hi > lo) {
-		return 0
-	}
-	f := func(u float64) float64 {
+	p := chiIntegral(df, umax, func(u float64) float64 {
 		w := c * se * math.Sqrt(u/df)
-		p := normCDF((bound-w-diff)/se) - normCDF((-bound+w-diff)/se)
-		if p <= 0 {
-			return 0
-		}
-		return p * chi.Prob(u)
-	}
-	// Composite Gauss–Legendre over 64 panels of 16 nodes.
-	const panels = 64
-	sum := 0.0
-	h := (hi - lo) / panels
-	for i := 0; i < panels; i++ {
-		a := lo + float64(i)*h
-		sum += quad.Fixed(f, a, a+h, 16, quad.Legendre{}, 0)
-	}
-	return math.Min(1, math.Max(0, sum))
+		return math.Max(0, normCDF((bound-w-diff)/se)-normCDF((-bound+w-diff)/se))
+	})
+	return clamp01(p)
 }
 
 // N returns the unrounded size of the first group (Paired: the number of
