@@ -243,47 +243,30 @@ func TestMethodsDisagree(t *testing.T) {
 	}
 }
 
-func BenchmarkPlan(b *testing.B) {
-	s, err := Parse("bench.yaml", []byte("version: 1\ndesign: trial\ncontrol_risk: 0.18\nrisk_ratio: 0.7\npower: 0.8\nattrition: 0.1\n"), nil)
+// benchPlan measures Plan on one specification, parse excluded.
+func benchPlan(b *testing.B, spec string) {
+	s, err := Parse("bench.yaml", []byte(spec), nil)
 	if err != nil {
 		b.Fatal(err)
 	}
 	var sink *Result
 	b.ReportAllocs()
 	for b.Loop() {
-		sink, err = Plan(s)
-		if err != nil {
+		if sink, err = Plan(s); err != nil {
 			b.Fatal(err)
 		}
 	}
 	_ = sink
+}
+
+func BenchmarkPlan(b *testing.B) {
+	benchPlan(b, "version: 1\ndesign: trial\ncontrol_risk: 0.18\nrisk_ratio: 0.7\npower: 0.8\nattrition: 0.1\n")
 }
 
 func BenchmarkPlanT(b *testing.B) {
-	s, err := Parse("bench.yaml", []byte("version: 1\ndesign: trial\noutcome: continuous\nmean_difference: 5\nsd: 12\npower: 0.9\nattrition: 0.1\n"), nil)
-	if err != nil {
-		b.Fatal(err)
-	}
-	var sink *Result
-	b.ReportAllocs()
-	for b.Loop() {
-		sink, err = Plan(s)
-		if err != nil {
-			b.Fatal(err)
-		}
-	}
-	_ = sink
+	benchPlan(b, "version: 1\ndesign: trial\noutcome: continuous\nmean_difference: 5\nsd: 12\npower: 0.9\nattrition: 0.1\n")
 }
 
 func BenchmarkPlanSurvival(b *testing.B) {
-	s, err := Parse("bench.yaml", []byte("version: 1\ndesign: trial\noutcome: time-to-event\nhazard_ratio: 0.75\ncontrol_median: 12\naccrual: 24\nfollow_up: 12\ndropout: 0.01\npower: 0.8\n"), nil)
-	if err != nil {
-		b.Fatal(err)
-	}
-	b.ReportAllocs()
-	for b.Loop() {
-		if _, err := Plan(s); err != nil {
-			b.Fatal(err)
-		}
-	}
+	benchPlan(b, "version: 1\ndesign: trial\noutcome: time-to-event\nhazard_ratio: 0.75\ncontrol_median: 12\naccrual: 24\nfollow_up: 12\ndropout: 0.01\npower: 0.8\n")
 }

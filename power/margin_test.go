@@ -10,13 +10,7 @@ import (
 
 func marginMethodOf(t *testing.T, id string) MarginMethod {
 	t.Helper()
-	for _, m := range []MarginMethod{FarringtonManning, Blackwelder} {
-		if m.String() == id {
-			return m
-		}
-	}
-	t.Fatalf("unknown margin method %q", id)
-	return 0
+	return byName(t, id, FarringtonManning, Blackwelder)
 }
 
 func marginRelClose(got, want, tol float64) bool {

@@ -1,6 +1,7 @@
 package power
 
 import (
+	"fmt"
 	"math"
 	"strings"
 	"testing"
@@ -8,15 +9,22 @@ import (
 	"enough/internal/reftable"
 )
 
-func methodOf(t *testing.T, id string) Method {
+// byName returns the member of ms whose String is id.
+func byName[M fmt.Stringer](t *testing.T, id string, ms ...M) M {
 	t.Helper()
-	for _, m := range []Method{Fleiss, FleissCC, Kelsey, Schlesselman} {
+	for _, m := range ms {
 		if m.String() == id {
 			return m
 		}
 	}
 	t.Fatalf("unknown method %q", id)
-	return 0
+	var zero M
+	return zero
+}
+
+func methodOf(t *testing.T, id string) Method {
+	t.Helper()
+	return byName(t, id, Fleiss, FleissCC, Kelsey, Schlesselman)
 }
 
 // relClose reports whether got is within a relative tolerance of want.

@@ -15,13 +15,7 @@ func survClose(got, want, tol float64) bool {
 
 func eventsMethodOf(t *testing.T, id string) EventsMethod {
 	t.Helper()
-	for _, m := range []EventsMethod{Schoenfeld, Freedman} {
-		if m.String() == id {
-			return m
-		}
-	}
-	t.Fatalf("unknown events method %q", id)
-	return 0
+	return byName(t, id, Schoenfeld, Freedman)
 }
 
 // survRow is one scenario of trials_survival.tsv with its inputs decoded.
