@@ -89,6 +89,14 @@ var specKeys = map[string]keyInfo{
 	"contamination":        {kindNumber, "a fraction in [0, 1)"},
 	"arms":                 {kindWhole, "a whole number from 2 to 20"},
 	"comparisons":          {kindText, "each-vs-control or all-pairs"},
+	"simulate":             {kindMap, "a map with replicates (100 to 1e9), seed (a whole number of at least 0) and optionally n (the first group's size to simulate at)"},
+}
+
+// simulateKeys are the keys of the simulate map.
+var simulateKeys = map[string]string{
+	"replicates": "the number of simulated studies, a whole number from 100 to 1,000,000,000",
+	"seed":       "the seed of the random numbers, a whole number of at least 0",
+	"n":          "the first group's analysable size to simulate at, a whole number of at least 2 (default: the plan's)",
 }
 
 // clusterKeys are the keys of the cluster map.
@@ -113,7 +121,7 @@ var commonKeys = []string{"version", "title", "design", "outcome", "solve", "met
 	"attrition", "design_effect", "sources", "primary_outcome"}
 
 // comparisonKeys are shared by every two-group comparison.
-var comparisonKeys = []string{"test", "alpha", "sides", "power", "first_group", "second_group"}
+var comparisonKeys = []string{"test", "alpha", "sides", "power", "first_group", "second_group", "simulate"}
 
 // designRoles names, for each two-group design, the reference-group key and
 // the effect keys of a binary outcome, in the order they are documented.

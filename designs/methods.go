@@ -70,6 +70,15 @@ var Methods = []MethodInfo{
 		engine:      power.Schlesselman,
 	},
 	{
+		ID: "exact", Short: "exact enumeration", Name: "exact power by enumeration of both binomial counts",
+		Citation:    "Suissa S, Shuster JJ (1985). Exact unconditional sample sizes for the 2x2 binomial trial. J R Stat Soc A 148:317-327 (enumeration of both binomial counts for a given test)",
+		Designs:     []string{"cohort", "case-control", "trial", "cross-sectional"},
+		Goal:        "comparison",
+		DefaultTest: "fisher",
+		Note:        "no approximation: the power of the planned test summed over every pair of counts; n searched around the closed form (saw-tooth reported)",
+		engine:      power.FleissCC,
+	},
+	{
 		ID: "farrington-manning", Short: "Farrington & Manning 1990", Name: "Farrington-Manning score method",
 		Citation:    "Farrington CP, Manning G (1990). Test statistics and sample size formulae for comparative binomial trials with null hypothesis of non-zero risk difference or non-unity relative risk. Stat Med 9:1447-1454",
 		Designs:     []string{"trial"},

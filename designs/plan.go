@@ -58,7 +58,13 @@ func Plan(s *Spec) (*Result, error) {
 	res.Alpha, res.Sides, res.Ratio = ptr(s.Alpha), s.Sides, ptr(s.Ratio)
 	ro := roles[s.Design]
 	res.FirstGroup, res.SecondGroup = orDefault(s.FirstGroup, ro.first), orDefault(s.SecondGroup, ro.second)
-	return res, planComparison(s, res, m)
+	if err := planComparison(s, res, m); err != nil {
+		return res, err
+	}
+	if s.Method == "exact" {
+		return res, Exact(s, res)
+	}
+	return res, nil
 }
 
 func orDefault(s, def string) string {
@@ -298,7 +304,7 @@ func planComparison(s *Spec, res *Result, m *MethodInfo) error {
 	others := []*MethodInfo{}
 	for i := range Methods {
 		o := &Methods[i]
-		if o.ID != m.ID && o.serves(s.Design, s.Goal, s.Outcome, s.Hypothesis) {
+		if o.ID != m.ID && o.ID != "exact" && o.serves(s.Design, s.Goal, s.Outcome, s.Hypothesis) {
 			others = append(others, o)
 		}
 	}

@@ -49,6 +49,9 @@ type Result struct {
 	Warnings     []string      `json:"warnings"`
 	Cautions     []string      `json:"cautions"`
 
+	// Simulation is the verification by simulation, when asked for.
+	Simulation *Simulation `json:"simulation,omitempty"`
+
 	// Spec is the validated specification behind the result.
 	Spec *Spec `json:"-"`
 }
@@ -108,6 +111,11 @@ type Answer struct {
 	Comparisons        int      `json:"comparisons,omitempty"`
 	AlphaPerComparison *float64 `json:"alpha_per_comparison,omitempty"`
 
+	// Exact power by enumeration of both binomial counts, and the
+	// saw-tooth of the exact search for n.
+	ExactPower *float64     `json:"exact_power,omitempty"`
+	Exact      *ExactSearch `json:"exact,omitempty"`
+
 	// Non-adherence and contamination: the effect an intention-to-treat
 	// analysis sees, and the analysable sizes without dilution.
 	DilutedEffect *Effect `json:"diluted_effect,omitempty"`
@@ -157,4 +165,19 @@ type Alternative struct {
 	EnrolTotal    int         `json:"enrol_total,omitempty"`
 	AchievedPower *float64    `json:"achieved_power,omitempty"`
 	Detectable    *Detectable `json:"detectable,omitempty"`
+}
+
+// ExactSearch describes the search for the smallest n by exact power: the
+// power of an exact or discrete test is a saw-tooth in n.
+type ExactSearch struct {
+	// First is the smallest first-group size in the window with exact power
+	// at or above the target.
+	First int `json:"first"`
+	// Stable is the smallest size beyond which the exact power never drops
+	// below the target within the window.
+	Stable int `json:"stable"`
+	// Window is the range of first-group sizes searched [low, high].
+	Window []int `json:"window"`
+	// ClosedForm is the first-group size from the closed form.
+	ClosedForm int `json:"closed_form"`
 }

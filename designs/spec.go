@@ -83,6 +83,8 @@ type Spec struct {
 	Arms           int
 	Comparisons    string // each-vs-control or all-pairs
 	Cluster        *Cluster
+	// Simulate is the simulate block, or nil.
+	Simulate *SimulateSpec
 
 	// Continuous outcomes.
 	Pairing string // "", paired or crossover
@@ -112,6 +114,17 @@ type Spec struct {
 	Ignored []string
 
 	lines map[string]int
+}
+
+// SimulateSpec is the simulate block: how to verify the plan by simulation.
+type SimulateSpec struct {
+	// Replicates is the number of simulated studies (default 10,000).
+	Replicates int64
+	// Seed fixes the random numbers (default 1).
+	Seed uint64
+	// N, when positive, is the first group's analysable size to simulate at
+	// in place of the plan's.
+	N int
 }
 
 // Cluster describes cluster randomisation.
@@ -332,6 +345,15 @@ func (r *reader) checkNested(head, sub string, e *entry) error {
 	case "sources":
 		if e.node.Kind != yaml.ScalarNode || e.node.Tag == "!!null" {
 			return r.errAt(e, "is not text; allowed: a line saying where the value came from")
+		}
+	case "simulate":
+		if _, ok := simulateKeys[sub]; !ok {
+			names := []string{"replicates", "seed", "n"}
+			msg := "unknown key; allowed: " + orList(names)
+			if s, ok := nearest(sub, names); ok {
+				msg = fmt.Sprintf("unknown key; did you mean %q?", s)
+			}
+			return r.errAt(e, "%s", msg)
 		}
 	case "cluster":
 		if _, ok := clusterKeys[sub]; !ok {

@@ -188,8 +188,47 @@ func (r *reader) buildComparison(s *Spec) error {
 	}
 
 	// the planned test, now that the outcome is known
-	s.Test, _, err = r.choice("test", defaultTest(s), testsFor(s)...)
-	return err
+	if s.Test, _, err = r.choice("test", defaultTest(s), testsFor(s)...); err != nil {
+		return err
+	}
+	return r.buildSimulate(s)
+}
+
+// buildSimulate reads the simulate block.
+func (r *reader) buildSimulate(s *Spec) error {
+	se := r.get("simulate")
+	if se == nil {
+		return nil
+	}
+	sim := &SimulateSpec{Replicates: 10000, Seed: 1}
+	m := r.nested["simulate"]
+	whole := func(sub string, lo, hi float64, dst func(float64)) error {
+		e := m[sub]
+		if e == nil {
+			return nil
+		}
+		var x float64
+		_, err := fmt.Sscan(strings.ReplaceAll(e.node.Value, "_", ""), &x)
+		if e.node.Kind != yaml.ScalarNode || (e.node.Tag != "!!int" && e.node.Tag != "!!float") || err != nil || x != math.Trunc(x) {
+			return r.errAt(e, "%s is not a whole number; allowed: %s", show(e.node), simulateKeys[sub])
+		}
+		if x < lo || x > hi {
+			return r.errAt(e, "%s is out of range; allowed: %s", e.node.Value, simulateKeys[sub])
+		}
+		dst(x)
+		return nil
+	}
+	if err := whole("replicates", 100, 1e9, func(x float64) { sim.Replicates = int64(x) }); err != nil {
+		return err
+	}
+	if err := whole("seed", 0, 1<<53, func(x float64) { sim.Seed = uint64(x) }); err != nil {
+		return err
+	}
+	if err := whole("n", 2, MaxSize, func(x float64) { sim.N = int(x) }); err != nil {
+		return err
+	}
+	s.Simulate = sim
+	return nil
 }
 
 // buildTrial reads the keys of trials: hypothesis margin, clusters,

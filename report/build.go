@@ -90,6 +90,12 @@ func build(r *designs.Result) *document {
 	if len(r.Alternatives) > 0 {
 		d.sections = append(d.sections, alternativeSection(r))
 	}
+	if e := exactSection(r); e != nil {
+		d.sections = append(d.sections, *e)
+	}
+	if v := simulationSection(r); v != nil {
+		d.sections = append(d.sections, *v)
+	}
 	if len(r.Warnings) > 0 {
 		d.sections = append(d.sections, section{heading: "Warnings", bullets: r.Warnings})
 	}
@@ -195,8 +201,10 @@ func answerSection(r *designs.Result) section {
 		s.bullets = append(s.bullets,
 			fmt.Sprintf("**Analysable%s: %s, %s in total**", per, groups(a.N), count(a.Total)),
 			fmt.Sprintf("**Enrolment target%s: %s, %s in total**", per, groups(a.Enrol), count(a.EnrolTotal)),
-			fmt.Sprintf("Achieved power at the analysable sizes: %s (target %s)", pct1(*a.AchievedPower), pct1(*r.Power)),
-			fmt.Sprintf("Unrounded size of the first group from the method: %.2f", a.NStar))
+			fmt.Sprintf("Achieved power at the analysable sizes: %s (target %s)", pct1(*a.AchievedPower), pct1(*r.Power)))
+		if a.NStar > 0 {
+			s.bullets = append(s.bullets, fmt.Sprintf("Unrounded size of the first group from the method: %.2f", a.NStar))
+		}
 	case "power":
 		s.bullets = append(s.bullets,
 			fmt.Sprintf("**Power: %s**", pct1(*a.AchievedPower)),
@@ -362,5 +370,62 @@ func alternativeSection(r *designs.Result) section {
 		}
 		s.bullets = append(s.bullets, line)
 	}
+	return s
+}
+
+// exactSection reports exact power by enumeration.
+func exactSection(r *designs.Result) *section {
+	a := r.Result
+	if a.ExactPower == nil {
+		return nil
+	}
+	s := &section{heading: "Exact power by enumeration"}
+	s.bullets = append(s.bullets, fmt.Sprintf("Exact power of %s at %s: %s (every pair of counts enumerated; no Monte-Carlo error)", r.TestName, sizeList(a.N, r), pct1(*a.ExactPower)))
+	if x := a.Exact; x != nil {
+		s.bullets = append(s.bullets,
+			fmt.Sprintf("Smallest first-group size with exact power at or above the target: %s (the closed form gives %s)", count(x.First), count(x.ClosedForm)),
+			fmt.Sprintf("Smallest size beyond which the exact power stays at or above the target: %s (window searched: %s to %s)", count(x.Stable), count(x.Window[0]), count(x.Window[1])))
+	}
+	return s
+}
+
+// simulationSection reports the verification by simulation.
+func simulationSection(r *designs.Result) *section {
+	v := r.Simulation
+	if v == nil {
+		return nil
+	}
+	s := &section{heading: "Verification by simulation"}
+	sizes := count(v.N[0])
+	if len(v.N) == 2 {
+		sizes = fmt.Sprintf("%s and %s", count(v.N[0]), count(v.N[1]))
+	}
+	if v.Partial {
+		s.paras = append(s.paras, fmt.Sprintf("**Partial:** the simulation was stopped after %s replicates; the figures below rest on those alone.", count(int(v.Replicates))))
+	}
+	if len(v.CI) == 2 {
+		s.bullets = append(s.bullets, fmt.Sprintf("Simulated power of %s with %s analysable: **%s** (Monte-Carlo standard error %.2f points; 95%% interval %s to %s; %s replicates, seed %d)",
+			v.TestName, sizes, pct1(v.Power), 100*v.SE, pct1(v.CI[0]), pct1(v.CI[1]), count(int(v.Replicates)), v.Seed))
+		agree := "agrees with it"
+		if !v.Agrees {
+			agree = "parts ways with it (more than 3 standard errors and 1 point)"
+		}
+		s.bullets = append(s.bullets, fmt.Sprintf("Closed form at the same sizes: %s; the simulation differs by %+.2f points and %s", pct1(v.ClosedFormPower), 100*v.Difference, agree))
+	}
+	if v.Type1SE > 0 || v.Type1Error > 0 {
+		s.bullets = append(s.bullets, fmt.Sprintf("Type I error simulated at %s: %s (standard error %.2f points), against alpha %g", v.Type1At, pct1(v.Type1Error), 100*v.Type1SE, *r.Alpha))
+	}
+	if so := v.Solved; so != nil {
+		n := count(so.N[0])
+		if len(so.N) == 2 {
+			n = fmt.Sprintf("%s and %s", count(so.N[0]), count(so.N[1]))
+		}
+		line := fmt.Sprintf("Smallest size whose simulated power reaches the target (same random numbers at every candidate size): %s, with power %s (standard error %.2f points)", n, pct1(so.Power), 100*so.SE)
+		if so.NSE > 0 {
+			line += fmt.Sprintf("; Monte-Carlo uncertainty about ±%.0f in the first group", math.Ceil(so.NSE))
+		}
+		s.bullets = append(s.bullets, line)
+	}
+	s.bullets = append(s.bullets, v.Notes...)
 	return s
 }

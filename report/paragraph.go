@@ -42,6 +42,8 @@ func methodPhrase(id, name string) string {
 		return "Schoenfeld's formula (1983)"
 	case "freedman":
 		return "Freedman's formula (1982)"
+	case "exact":
+		return "the exact power of the planned test, summed over every pair of counts (no approximation)"
 	}
 	return name
 }

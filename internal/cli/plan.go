@@ -26,6 +26,32 @@ type PlanOptions struct {
 	Format string
 	Output string
 	Sets   []string
+
+	// Verify adds the simulation check; Exact adds exact power by
+	// enumeration (two binomial groups).
+	Verify bool
+	Exact  bool
+	Sim    SimFlags
+}
+
+// SimFlags are the flags of a simulation.
+type SimFlags struct {
+	Workers       int
+	Quiet         bool
+	MaxSeconds    float64
+	Replicates    int64
+	Seed          int64
+	MaxReplicates int64
+}
+
+// addSimFlags registers the simulation flags on cmd.
+func addSimFlags(cmd *cobra.Command, f *SimFlags) {
+	cmd.Flags().IntVar(&f.Workers, "workers", 0, "goroutines for the simulation (0: one per core); the result does not depend on it")
+	cmd.Flags().BoolVarP(&f.Quiet, "quiet", "q", false, "no progress bar on standard error")
+	cmd.Flags().Float64Var(&f.MaxSeconds, "max-seconds", 600, "refuse a simulation predicted to take longer than this")
+	cmd.Flags().Int64Var(&f.Replicates, "replicates", 0, "override simulate.replicates")
+	cmd.Flags().Int64Var(&f.Seed, "seed", -1, "override simulate.seed")
+	cmd.Flags().Int64Var(&f.MaxReplicates, "max-replicates", 1_000_000_000, "refuse more replicates than this unless raised")
 }
 
 // NewCmdPlan builds `enough plan`. runF replaces the run step in tests.
@@ -59,6 +85,9 @@ specification from standard input.`,
 	cmd.Flags().StringVarP(&opts.Format, "format", "f", "markdown", "output format: markdown, text or json")
 	cmd.Flags().StringVarP(&opts.Output, "output", "o", "", "write to this file (atomically) instead of standard output")
 	cmd.Flags().StringArrayVar(&opts.Sets, "set", nil, "override one key, key=value (repeatable; dotted keys such as sources.alpha reach nested keys)")
+	cmd.Flags().BoolVar(&opts.Verify, "verify", false, "verify the plan by simulating the study and its planned test (also when the specification has a simulate block)")
+	cmd.Flags().BoolVar(&opts.Exact, "exact", false, "exact power by enumeration of both binomial counts (two-group binary outcomes)")
+	addSimFlags(cmd, &opts.Sim)
 	return cmd
 }
 
@@ -84,11 +113,26 @@ func planRun(opts *PlanOptions) error {
 	if err != nil {
 		return err
 	}
+	if opts.Exact && spec.Method != "exact" {
+		if err := designs.Exact(spec, res); err != nil {
+			return err
+		}
+	}
+	var stopped error
+	if opts.Verify || spec.Simulate != nil {
+		stopped = simulate(spec, res, opts)
+		if stopped != nil && !errors.Is(stopped, errInterrupted) {
+			return stopped
+		}
+	}
 	var buf bytes.Buffer
 	if err := report.Write(&buf, res, opts.Format); err != nil {
 		return err
 	}
-	return emit(opts.IO.Out, opts.Output, buf.Bytes())
+	if err := emit(opts.IO.Out, opts.Output, buf.Bytes()); err != nil {
+		return err
+	}
+	return stopped
 }
 
 // emit writes data to path atomically, or to out when path is empty.

@@ -45,7 +45,8 @@ smallest detectable effect with published closed-form methods and writes a
 protocol-ready summary.
 
 Exit status: 0 success; 1 the plan could not be computed or written;
-2 bad input (specification, flag or argument).`,
+2 bad input (specification, flag or argument); 130 a simulation stopped by
+Ctrl-C (the output holds what was done, marked partial).`,
 		SilenceUsage:  true,
 		SilenceErrors: true,
 		Version:       designs.Version,
@@ -55,7 +56,7 @@ Exit status: 0 success; 1 the plan could not be computed or written;
 	root.SetFlagErrorFunc(func(_ *cobra.Command, err error) error {
 		return &inputError{msg: err.Error()}
 	})
-	root.AddCommand(NewCmdPlan(streams, nil), NewCmdNew(streams), NewCmdMethods(streams))
+	root.AddCommand(NewCmdPlan(streams, nil), NewCmdSimulate(streams), NewCmdNew(streams), NewCmdMethods(streams))
 	return root
 }
 
@@ -100,6 +101,8 @@ func exitCode(err error) int {
 	switch {
 	case errors.As(err, &se), errors.As(err, &ie):
 		return ExitInput
+	case errors.Is(err, errInterrupted):
+		return ExitInterrupted
 	}
 	if isCobraUsage(err) {
 		return ExitInput

@@ -1,0 +1,81 @@
+package designs
+
+import (
+	"errors"
+	"fmt"
+
+	"enough/power"
+)
+
+// exactFits says whether exact enumeration serves the specification, and
+// why not.
+func exactFits(s *Spec) error {
+	switch {
+	case s.Outcome != "binary" || s.Goal == "precision":
+		return fmt.Errorf("exact power serves two groups with a binary outcome")
+	case s.Hypothesis != "superiority":
+		return fmt.Errorf("exact power serves superiority tests; for %s use the closed form or simulate", s.Hypothesis)
+	case s.Cluster != nil || s.DesignEffect > 1:
+		return fmt.Errorf("exact enumeration assumes independent binomial counts; a design effect above 1 needs simulation")
+	case s.Solve == "effect":
+		return fmt.Errorf("exact power answers solve: n or power")
+	}
+	if _, ok := power.ParseBinaryTest(s.Test); !ok {
+		return fmt.Errorf("test %s has no exact enumeration; allowed: chi-square, chi-square-yates, fisher, z-unpooled", s.Test)
+	}
+	return nil
+}
+
+// Exact adds the exact power by full enumeration of both binomial counts,
+// for the planned test at the analysable sizes; when solving n it searches
+// a window around the closed-form answer and reports the saw-tooth. With
+// method: exact, the exact answer replaces the closed form's.
+func Exact(s *Spec, res *Result) error {
+	if err := exactFits(s); err != nil {
+		return &InputError{Msg: s.File + ": exact: " + err.Error()}
+	}
+	test, _ := power.ParseBinaryTest(s.Test)
+	e := plannedEffects(s)
+	dir := 1
+	if e.p1 < e.p2 {
+		dir = -1
+	}
+	a := &res.Result
+	if s.Solve == "power" {
+		a.ExactPower = ptr(power.ExactPower(test, a.N[0], a.N[1], e.p1, e.p2, e.alpha, s.Sides, dir))
+		if s.Method == "exact" {
+			a.AchievedPower = a.ExactPower
+		}
+		return nil
+	}
+	cf := a.N[0]
+	low, high := max(2, cf/2), cf+cf/2+20
+	if high > 20000 {
+		return &InputError{Msg: fmt.Sprintf("%s: exact: the closed form asks for %d per group; enumeration is limited to windows below 20,000 (use simulate)", s.File, cf)}
+	}
+	st, err := power.ExactSolveN(test, s.Ratio, e.p1, e.p2, e.alpha, s.Sides, dir, s.Power, low, high)
+	if errors.Is(err, power.ErrUnreachable) {
+		return &PlanError{File: s.File, Msg: fmt.Sprintf("exact: no first-group size from %d to %d reaches the target power with %s", low, high, TestName(s.Test)), Err: err}
+	}
+	if err != nil {
+		return err
+	}
+	a.Exact = &ExactSearch{First: st.First, Stable: st.Stable, Window: []int{st.Low, st.High}, ClosedForm: cf}
+	n1 := st.First
+	n2 := ceilTol(s.Ratio*float64(n1) - 1e-9)
+	// Exact power at the plan's size; with method exact, the plan's size is
+	// the exact answer.
+	a.ExactPower = ptr(st.Powers[cf-st.Low])
+	if s.Method == "exact" {
+		a.ExactPower = ptr(st.Powers[n1-st.Low])
+		a.NStar = 0
+		sz := sizes{n: []int{n1, n2}}
+		sz.enrol = []int{ceilTol(float64(n1) / (1 - s.Attrition)), ceilTol(float64(n2) / (1 - s.Attrition))}
+		fillSizes(s, a, sz)
+		a.AchievedPower = a.ExactPower
+	}
+	if st.Stable != st.First {
+		res.Notes = append(res.Notes, fmt.Sprintf("The exact power of %s is a saw-tooth in n: it first reaches the target at %d per first group, but dips below it again until %d, beyond which it stays above within the window %d–%d.", TestName(s.Test), st.First, st.Stable, st.Low, st.High))
+	}
+	return nil
+}

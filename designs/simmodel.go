@@ -1,0 +1,160 @@
+package designs
+
+import (
+	"fmt"
+	"math"
+
+	"enough/power"
+)
+
+// simModel builds the Monte-Carlo model of the specification at analysable
+// sizes (first, second), under the planned effect or, with null, under the
+// null hypothesis (no difference; for non-inferiority the margin), with the
+// closed-form power at the same sizes for comparison.
+func simModel(s *Spec, res *Result, sizes [2]int, null bool) (simSetup, error) {
+	e := plannedEffects(s)
+	st := simSetup{sizes: sizes}
+	n1, n2 := sizes[0], sizes[1]
+	unavailable := func(why string) (simSetup, error) {
+		return st, &InputError{Msg: fmt.Sprintf("%s: simulate: %s", s.File, why)}
+	}
+	if s.Hypothesis == "equivalence" {
+		if s.Outcome != "binary" {
+			return unavailable("equivalence of means is not simulated yet; its exact power is already computed by integration (method t)")
+		}
+	}
+	if s.DesignEffect > 1 && s.Cluster == nil {
+		// A design effect without a cluster model: simulate the effective
+		// sizes of simple random samples.
+		n1 = max(2, int(math.Round(float64(n1)/s.DesignEffect)))
+		n2 = max(2, int(math.Round(float64(n2)/s.DesignEffect)))
+		st.notes = append(st.notes, fmt.Sprintf("The design effect of %g is simulated as simple random samples of the effective sizes %d and %d.", s.DesignEffect, n1, n2))
+	}
+
+	// The closed form at the same sizes.
+	m := MethodByID(s.Method)
+	ec := e
+	if s.Cluster != nil {
+		ec.clusterK = [2]int{ceilTol(float64(n1) / s.Cluster.Size), ceilTol(float64(n2) / s.Cluster.Size)}
+		if ec.clusterK[0] < 2 || ec.clusterK[1] < 2 {
+			return unavailable("fewer than two clusters per arm")
+		}
+	}
+	eff := [2]float64{float64(sizes[0]) / s.DesignEffect, float64(sizes[1]) / s.DesignEffect}
+	if s.Pairing == "paired" {
+		eff[1] = eff[0]
+	}
+	st.closed = newCalculator(s, m, ec).power(eff[0], eff[1])
+
+	sides, dir := s.Sides, 1
+	switch s.Outcome {
+	case "binary":
+		if e.p1 < e.p2 {
+			dir = -1
+		}
+		p1, p2 := e.p1, e.p2
+		if s.Hypothesis != "superiority" {
+			d0 := s.Margin
+			if s.HigherIsBetter {
+				d0 = -s.Margin
+			}
+			mm := power.FarringtonManning
+			if s.Test == "z-unpooled" {
+				mm = power.Blackwelder
+			}
+			var table []bool
+			if s.Hypothesis == "equivalence" {
+				table = power.EquivalenceRejectionTable(mm, n1, n2, s.Margin, e.alpha)
+				if null {
+					p1 = p2 + s.Margin
+				}
+			} else {
+				table = power.MarginRejectionTable(mm, n1, n2, d0, e.alpha)
+				if null {
+					p1 = p2 + d0
+				}
+			}
+			if !(p1 > 0 && p1 < 1) {
+				return unavailable(fmt.Sprintf("the null at the margin puts the first group's risk at %.4g, outside (0, 1)", p1))
+			}
+			st.model = power.NewTableBinomials(n1, n2, p1, p2, table)
+			return st, nil
+		}
+		if null {
+			p1 = p2
+		}
+		if s.Cluster != nil {
+			mem := int(math.Round(s.Cluster.Size))
+			clusterNotes(s, &st, mem)
+			st.model = power.NewClusterBinary(power.ClusterBinary{K1: ec.clusterK[0], K2: ec.clusterK[1], M: mem,
+				P1: p1, P2: p2, ICC: s.Cluster.ICC, Alpha: e.alpha, Sides: sides, Dir: dir})
+			return st, nil
+		}
+		test, ok := power.ParseBinaryTest(s.Test)
+		if !ok {
+			return unavailable("test " + s.Test + " has no simulation")
+		}
+		st.model = power.NewTwoBinomials(power.TwoBinomials{N1: n1, N2: n2, P1: p1, P2: p2, Alpha: e.alpha, Sides: sides, Dir: dir, Test: test})
+		return st, nil
+
+	case "continuous":
+		diff := e.diff
+		bound := 0.0
+		if s.Hypothesis == "non-inferiority" {
+			sides, dir = 1, 1
+			bound = -s.Margin
+			if !s.HigherIsBetter {
+				dir, bound = -1, s.Margin
+			}
+		} else if diff < 0 {
+			dir = -1
+		}
+		if null {
+			diff = bound
+		}
+		if s.BaselineCorrelation > 0 {
+			st.notes = append(st.notes, "The analysis of covariance is simulated through its residual standard deviation, sd × √(1 − ρ²).")
+		}
+		switch {
+		case s.Pairing == "paired":
+			st.model = power.NewPairedMeans(power.PairedMeans{N: n1, Diff: diff, SD: s.SD1, Alpha: e.alpha, Sides: sides, Dir: dir, Bound: bound})
+		case s.Pairing == "crossover":
+			// The period differences of the two sequences have means ±Δ
+			// (plus a common period effect) and SD sd_difference; the
+			// treatment effect is half their difference.
+			st.model = power.NewTwoMeans(power.TwoMeans{N1: n1, N2: n2, Diff: diff, SD1: s.SD1 / 2, Alpha: e.alpha, Sides: sides, Dir: dir, Bound: bound})
+		case s.Cluster != nil:
+			mem := int(math.Round(s.Cluster.Size))
+			clusterNotes(s, &st, mem)
+			st.model = power.NewClusterMeans(power.ClusterMeans{K1: ec.clusterK[0], K2: ec.clusterK[1], M: mem, Diff: diff,
+				SD: s.SD1, ICC: s.Cluster.ICC, Alpha: e.alpha, Sides: sides, Dir: dir})
+		default:
+			st.model = power.NewTwoMeans(power.TwoMeans{N1: n1, N2: n2, Diff: diff, SD1: s.SD1, SD2: s.SD2,
+				Welch: s.Test == "t-welch", Alpha: e.alpha, Sides: sides, Dir: dir, Bound: bound})
+		}
+		return st, nil
+
+	case "time-to-event":
+		hr := e.hr
+		if hr < 1 {
+			dir = -1
+		}
+		if null {
+			hr = 1
+		}
+		entry := power.Entry{Accrual: s.Accrual, FollowUp: s.FollowUp, Dropout: power.DropoutHazard(s.Dropout)}
+		st.model = power.NewSurvivalModel(n1, n2, hr*s.ControlHazard, s.ControlHazard, entry, e.alpha, sides, dir)
+		return st, nil
+	}
+	return unavailable("this outcome is not simulated")
+}
+
+// clusterNotes records how the cluster model departs from the plan.
+func clusterNotes(s *Spec, st *simSetup, mem int) {
+	if float64(mem) != s.Cluster.Size {
+		st.notes = append(st.notes, fmt.Sprintf("Clusters are simulated with %d members each (the mean size %g rounded).", mem, s.Cluster.Size))
+	}
+	if s.Cluster.SizeCV > 0 {
+		st.notes = append(st.notes, "Clusters are simulated with equal sizes; the closed form includes the inflation for unequal sizes, so it is the more conservative of the two.")
+	}
+}
