@@ -454,6 +454,9 @@ func describeDesign(s *Spec, res *Result, sv solved) {
 	}
 	if s.Outcome == "time-to-event" {
 		ans.Duration = ptr(s.Accrual + s.FollowUp)
+		if s.Ratio != 1 {
+			res.Notes = append(res.Notes, "With unequal allocation the events formulas are rougher: simulation of the log-rank test has found Schoenfeld's power a few points too high and Freedman's a few points too low when the larger arm is the control arm (the errors reverse the other way round); check the plan with enough simulate.")
+		}
 		if sc, ok := sv.calc.(survivalCalc); ok {
 			ans.ExpectedEvents = ptr(sc.expectedEvents(sv.sz.eff[0], sv.sz.eff[1]))
 			if s.Solve == "n" {

@@ -2,6 +2,7 @@ package report
 
 import (
 	"bytes"
+	"context"
 	"encoding/json"
 	"flag"
 	"os"
@@ -29,6 +30,12 @@ func planExample(t *testing.T, name string) *designs.Result {
 	if err != nil {
 		t.Fatal(err)
 	}
+	if s.Simulate != nil {
+		// The simulation is fixed by its seed whatever the number of workers.
+		if err := designs.Verify(context.Background(), s, r, designs.SimOptions{}); err != nil {
+			t.Fatal(err)
+		}
+	}
 	return r
 }
 
@@ -37,7 +44,7 @@ func planExample(t *testing.T, name string) *designs.Result {
 func TestGolden(t *testing.T) {
 	for _, name := range []string{"demo-trial.yaml", "case-control-well-water.yaml", "survey-booster-coverage.yaml", "cohort-detectable.yaml", "trial-power-check.yaml", "cross-sectional-noise.yaml",
 		"trial-walking-blood-pressure.yaml", "trial-survival-home-dialysis.yaml", "trial-noninferiority-short-course.yaml",
-		"trial-cluster-schools.yaml", "trial-crossover-night-splint.yaml", "trial-equivalence-physio.yaml", "trial-three-arms.yaml", "cohort-paired-sleep.yaml"} {
+		"trial-cluster-schools.yaml", "trial-crossover-night-splint.yaml", "trial-equivalence-physio.yaml", "trial-three-arms.yaml", "cohort-paired-sleep.yaml", "trial-verified-fisher.yaml"} {
 		r := planExample(t, name)
 		for _, f := range []struct{ format, ext string }{{"markdown", "md"}, {"text", "txt"}, {"json", "json"}} {
 			var b bytes.Buffer

@@ -98,8 +98,9 @@ func oneLine(msg string) string {
 func exitCode(err error) int {
 	var se *designs.SpecError
 	var ie *inputError
+	var de *designs.InputError
 	switch {
-	case errors.As(err, &se), errors.As(err, &ie):
+	case errors.As(err, &se), errors.As(err, &ie), errors.As(err, &de):
 		return ExitInput
 	case errors.Is(err, errInterrupted):
 		return ExitInterrupted
