@@ -348,7 +348,7 @@ func BenchmarkBinomialTableDraw(b *testing.B) {
 	tab := NewBinomialTable(200, 0.3)
 	r := rand.New(rand.NewPCG(1, 2))
 	s := 0
-	for b.Loop() {
+	for i := 0; i < b.N; i++ {
 		s += tab.Draw(r)
 	}
 	_ = s
@@ -358,7 +358,7 @@ func BenchmarkChiSquare(b *testing.B) {
 	c := NewChiSquareSampler(398)
 	r := rand.New(rand.NewPCG(1, 2))
 	s := 0.0
-	for b.Loop() {
+	for i := 0; i < b.N; i++ {
 		s += c.Draw(r)
 	}
 	_ = s

@@ -74,19 +74,7 @@ func NewTwoBinomials(c TwoBinomials) Model {
 		panic("power: each group needs at least one participant")
 	}
 	checkTest(c.Alpha, c.Sides, c.Dir)
-	rej := RejectionTable(c.Test, c.N1, c.N2, c.Alpha, c.Sides, c.Dir)
-	bits := make([]uint64, (len(rej)+63)/64)
-	for i, r := range rej {
-		if r {
-			bits[i>>6] |= 1 << (i & 63)
-		}
-	}
-	return &twoBinomials{
-		t1:     NewBinomialTable(c.N1, c.P1),
-		t2:     NewBinomialTable(c.N2, c.P2),
-		reject: bits,
-		stride: c.N2 + 1,
-	}
+	return NewTableBinomials(c.N1, c.N2, c.P1, c.P2, RejectionTable(c.Test, c.N1, c.N2, c.Alpha, c.Sides, c.Dir))
 }
 
 type twoBinomialsWorker struct {

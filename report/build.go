@@ -410,7 +410,11 @@ func simulationSection(r *designs.Result) *section {
 		if !v.Agrees {
 			agree = "parts ways with it (more than 3 standard errors and 1 point)"
 		}
-		s.bullets = append(s.bullets, fmt.Sprintf("Closed form at the same sizes: %s; the simulation differs by %+.2f points and %s", pct1(v.ClosedFormPower), 100*v.Difference, agree))
+		what := "Closed form"
+		if r.Method == "exact" {
+			what = "Exact power"
+		}
+		s.bullets = append(s.bullets, fmt.Sprintf("%s at the same sizes: %s; the simulation differs by %+.2f points and %s", what, pct1(v.ClosedFormPower), 100*v.Difference, agree))
 	}
 	if v.Type1SE > 0 || v.Type1Error > 0 {
 		s.bullets = append(s.bullets, fmt.Sprintf("Type I error simulated at %s: %s (standard error %.2f points), against alpha %g", v.Type1At, pct1(v.Type1Error), 100*v.Type1SE, *r.Alpha))
