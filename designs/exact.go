@@ -28,8 +28,9 @@ func exactFits(s *Spec) error {
 
 // Exact adds the exact power by full enumeration of both binomial counts,
 // for the planned test at the analysable sizes; when solving n it searches
-// a window around the closed-form answer and reports the saw-tooth. With
-// method: exact, the exact answer replaces the closed form's.
+// a window around the closed-form answer and reports the saw-tooth. The
+// exact answer becomes the plan's (result.n and the achieved power), and a
+// closed-form method chosen in the specification moves to the alternatives.
 func Exact(s *Spec, res *Result) error {
 	if err := exactFits(s); err != nil {
 		return &InputError{Msg: s.File + ": exact: " + err.Error()}
@@ -41,11 +42,20 @@ func Exact(s *Spec, res *Result) error {
 		dir = -1
 	}
 	a := &res.Result
+	if s.Method != "exact" {
+		// The closed-form answer becomes an alternative.
+		m := MethodByID(s.Method)
+		alt := Alternative{Method: m.ID, Name: m.Name, Citation: m.Citation, Short: m.Short, AchievedPower: a.AchievedPower}
+		if s.Solve == "n" {
+			alt.N, alt.Total, alt.EnrolTotal = a.N, a.Total, a.EnrolTotal
+		}
+		res.Alternatives = append([]Alternative{alt}, res.Alternatives...)
+		x := MethodByID("exact")
+		res.Method, res.MethodName, res.Citation, res.Short = x.ID, x.Name, x.Citation, x.Short
+	}
 	if s.Solve == "power" {
 		a.ExactPower = ptr(power.ExactPower(test, a.N[0], a.N[1], e.p1, e.p2, e.alpha, s.Sides, dir))
-		if s.Method == "exact" {
-			a.AchievedPower = a.ExactPower
-		}
+		a.AchievedPower = a.ExactPower
 		return nil
 	}
 	cf := a.N[0]
@@ -63,17 +73,12 @@ func Exact(s *Spec, res *Result) error {
 	a.Exact = &ExactSearch{First: st.First, Stable: st.Stable, Window: []int{st.Low, st.High}, ClosedForm: cf}
 	n1 := st.First
 	n2 := ceilTol(s.Ratio*float64(n1) - 1e-9)
-	// Exact power at the plan's size; with method exact, the plan's size is
-	// the exact answer.
-	a.ExactPower = ptr(st.Powers[cf-st.Low])
-	if s.Method == "exact" {
-		a.ExactPower = ptr(st.Powers[n1-st.Low])
-		a.NStar = 0
-		sz := sizes{n: []int{n1, n2}}
-		sz.enrol = []int{ceilTol(float64(n1) / (1 - s.Attrition)), ceilTol(float64(n2) / (1 - s.Attrition))}
-		fillSizes(s, a, sz)
-		a.AchievedPower = a.ExactPower
-	}
+	a.ExactPower = ptr(st.Powers[n1-st.Low])
+	a.NStar = 0
+	sz := sizes{n: []int{n1, n2}}
+	sz.enrol = []int{ceilTol(float64(n1) / (1 - s.Attrition)), ceilTol(float64(n2) / (1 - s.Attrition))}
+	fillSizes(s, a, sz)
+	a.AchievedPower = a.ExactPower
 	if st.Stable != st.First {
 		res.Notes = append(res.Notes, fmt.Sprintf("The exact power of %s is a saw-tooth in n: it first reaches the target at %d per first group, but dips below it again until %d, beyond which it stays above within the window %d–%d.", TestName(s.Test), st.First, st.Stable, st.Low, st.High))
 	}

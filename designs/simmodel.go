@@ -45,7 +45,7 @@ func simModel(s *Spec, res *Result, sizes [2]int, null bool) (simSetup, error) {
 		eff[1] = eff[0]
 	}
 	st.closed = newCalculator(s, m, ec).power(eff[0], eff[1])
-	if test, ok := power.ParseBinaryTest(s.Test); ok && s.Method == "exact" && exactFits(s) == nil {
+	if test, ok := power.ParseBinaryTest(s.Test); ok && res.Method == "exact" && exactFits(s) == nil {
 		// The method's own power is exact: compare with that.
 		dir := 1
 		if e.p1 < e.p2 {

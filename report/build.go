@@ -414,6 +414,7 @@ func simulationSection(r *designs.Result) *section {
 		if r.Method == "exact" {
 			what = "Exact power"
 		}
+
 		s.bullets = append(s.bullets, fmt.Sprintf("%s at the same sizes: %s; the simulation differs by %+.2f points and %s", what, pct1(v.ClosedFormPower), 100*v.Difference, agree))
 	}
 	if v.Type1SE > 0 || v.Type1Error > 0 {

@@ -114,6 +114,7 @@ func planRun(opts *PlanOptions) error {
 		return err
 	}
 	if opts.Exact && spec.Method != "exact" {
+		// --exact is method: exact on top of the chosen closed form.
 		if err := designs.Exact(spec, res); err != nil {
 			return err
 		}
