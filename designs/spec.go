@@ -346,18 +346,17 @@ func (r *reader) checkNested(head, sub string, e *entry) error {
 		if e.node.Kind != yaml.ScalarNode || e.node.Tag == "!!null" {
 			return r.errAt(e, "is not text; allowed: a line saying where the value came from")
 		}
-	case "simulate":
-		if _, ok := simulateKeys[sub]; !ok {
-			names := []string{"replicates", "seed", "n"}
-			msg := "unknown key; allowed: " + orList(names)
-			if s, ok := nearest(sub, names); ok {
-				msg = fmt.Sprintf("unknown key; did you mean %q?", s)
-			}
-			return r.errAt(e, "%s", msg)
+	case "simulate", "cluster":
+		known := clusterKeys
+		if head == "simulate" {
+			known = simulateKeys
 		}
-	case "cluster":
-		if _, ok := clusterKeys[sub]; !ok {
-			names := []string{"size", "icc", "size_cv"}
+		if _, ok := known[sub]; !ok {
+			names := make([]string, 0, len(known))
+			for k := range known {
+				names = append(names, k)
+			}
+			sort.Strings(names)
 			msg := "unknown key; allowed: " + orList(names)
 			if s, ok := nearest(sub, names); ok {
 				msg = fmt.Sprintf("unknown key; did you mean %q?", s)

@@ -254,16 +254,7 @@ func fillFisher(rej []bool, n1, n2 int, alpha float64, dir int, h *hyperRow) {
 		h.fill(n1, n2, t)
 		cut := limit * h.total
 		for x1 := h.lo; x1 <= h.hi; x1++ {
-			var tail float64
-			switch {
-			case dir > 0:
-				tail = h.upper(x1)
-			case dir < 0:
-				tail = h.lower(x1)
-			default:
-				tail = h.twoSided(x1)
-			}
-			rej[x1*(n2+1)+t-x1] = tail <= cut
+			rej[x1*(n2+1)+t-x1] = h.tail(x1, dir) <= cut
 		}
 	}
 }
@@ -376,16 +367,7 @@ func (h *hyperRow) twoSided(x int) float64 {
 func fisherP(x1, n1, x2, n2, dir int) float64 {
 	var h hyperRow
 	h.fill(n1, n2, x1+x2)
-	var p float64
-	switch {
-	case dir > 0:
-		p = h.upper(x1)
-	case dir < 0:
-		p = h.lower(x1)
-	default:
-		p = h.twoSided(x1)
-	}
-	return math.Min(1, p/h.total)
+	return math.Min(1, h.tail(x1, dir)/h.total)
 }
 
 // chiSquareStat returns Pearson's X² for x1 of n1 against x2 of n2, with
@@ -607,4 +589,16 @@ func ExactSolveN(test BinaryTest, ratio, p1, p2, alpha float64, sides, dir int, 
 		return st, ErrUnreachable
 	}
 	return st, nil
+}
+
+// tail returns the unnormalised p-value of x1 in direction dir (> 0 upper,
+// < 0 lower, 0 two-sided by the summed-probabilities rule).
+func (h *hyperRow) tail(x1, dir int) float64 {
+	switch {
+	case dir > 0:
+		return h.upper(x1)
+	case dir < 0:
+		return h.lower(x1)
+	}
+	return h.twoSided(x1)
 }

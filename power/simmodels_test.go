@@ -39,15 +39,6 @@ func simWithin4SE(got, want float64, R int64, extraVar float64) (bool, float64) 
 	return simWithinSE(4, got, want, R, extraVar)
 }
 
-func simBinaryTest(t *testing.T, s string) BinaryTest {
-	t.Helper()
-	bt, ok := ParseBinaryTest(s)
-	if !ok {
-		t.Fatalf("unknown test %q", s)
-	}
-	return bt
-}
-
 // TestTwoBinomialsReference checks the simulated power (10⁶ replicates) of
 // every row of sim_binary.tsv against R's exact power, enumerated over all
 // tables with dbinom and the decisions of chisq.test, prop.test and
@@ -58,7 +49,7 @@ func TestTwoBinomialsReference(t *testing.T) {
 		c := TwoBinomials{
 			N1: row.I(t, "n1"), N2: row.I(t, "n2"), P1: row.F(t, "p1"), P2: row.F(t, "p2"),
 			Alpha: row.F(t, "alpha"), Sides: row.I(t, "sides"), Dir: row.I(t, "dir"),
-			Test: simBinaryTest(t, row["test"]),
+			Test: exactTestOf(t, row["test"]),
 		}
 		res := simRun(t, NewTwoBinomials(c), R, uint64(100+i))
 		want := row.F(t, "power")
