@@ -58,11 +58,30 @@ func Exact(s *Spec, res *Result) error {
 		a.AchievedPower = a.ExactPower
 		return nil
 	}
-	cf := a.N[0]
-	low, high := max(2, cf/2), cf+cf/2+20
-	if high > 20000 {
-		return &InputError{Msg: fmt.Sprintf("%s: exact: the closed form asks for %d per group; enumeration is limited to windows below 20,000 (use simulate)", s.File, cf)}
+	// Centre the window on the closed form that suits the test: with a
+	// continuity correction for Yates and Fisher, without for the others.
+	engine := power.Fleiss
+	if test == power.Fisher || test == power.ChiSquareYates {
+		engine = power.FleissCC
 	}
+	nstar, err := engine.N(power.TwoProportions{P1: e.p1, P2: e.p2, Alpha: e.alpha, Sides: s.Sides}, s.Ratio, s.Power)
+	if err != nil {
+		return solveError(s, err)
+	}
+	cf := ceilTol(nstar)
+	// The window: 15% of the closed form plus 10 either side, narrowed so
+	// that the enumeration stays within a budget of table cells (about ten
+	// seconds on one core).
+	budget := 2e9
+	if test == power.Fisher {
+		budget = 1.5e8
+	}
+	perN := float64(cf+1) * (s.Ratio*float64(cf) + 1)
+	w := min(cf*15/100+10, int(budget/perN/2))
+	if w < 5 {
+		return &InputError{Msg: fmt.Sprintf("%s: exact: enumerating every pair of counts near %d per group would take too long; allowed: smaller sizes, or verify the plan with enough simulate", s.File, cf)}
+	}
+	low, high := max(2, cf-w), cf+w
 	st, err := power.ExactSolveN(test, s.Ratio, e.p1, e.p2, e.alpha, s.Sides, dir, s.Power, low, high)
 	if errors.Is(err, power.ErrUnreachable) {
 		return &PlanError{File: s.File, Msg: fmt.Sprintf("exact: no first-group size from %d to %d reaches the target power with %s", low, high, TestName(s.Test)), Err: err}
@@ -79,6 +98,9 @@ func Exact(s *Spec, res *Result) error {
 	sz.enrol = []int{ceilTol(float64(n1) / (1 - s.Attrition)), ceilTol(float64(n2) / (1 - s.Attrition))}
 	fillSizes(s, a, sz)
 	a.AchievedPower = a.ExactPower
+	if st.First == st.Low && st.Low > 2 {
+		res.Warnings = append(res.Warnings, fmt.Sprintf("The exact search found the target already at the lower end of its window (%d); a smaller size may also reach it.", st.Low))
+	}
 	if st.Stable != st.First {
 		res.Notes = append(res.Notes, fmt.Sprintf("The exact power of %s is a saw-tooth in n: it first reaches the target at %d per first group, but dips below it again until %d, beyond which it stays above within the window %d–%d.", TestName(s.Test), st.First, st.Stable, st.Low, st.High))
 	}

@@ -307,6 +307,15 @@ func (r *reader) buildPrecision(s *Spec) error {
 }
 
 func (r *reader) methodError(s *Spec) error {
+	if r.get("method") == nil {
+		var fits []string
+		for _, m := range Methods {
+			if m.serves(s.Design, s.Goal, s.Outcome, s.Hypothesis) {
+				fits = append(fits, m.ID)
+			}
+		}
+		return r.errAt(r.entries["method"], "has no value; allowed: %s", orList(fits))
+	}
 	e := r.get("method")
 	name := strings.TrimSpace(e.node.Value)
 	var fits []string
