@@ -187,9 +187,14 @@ func (c meansCalc) detect(n1, n2, target float64, dir int) (float64, *Effect, er
 	return d, meansEffect(c.s, d), nil
 }
 
-// meansEffect restates a mean difference, also in standard deviations.
+// meansEffect restates a mean difference, also in standard deviations of
+// the outcome as given (Cohen's d; for paired and crossover designs, in SDs
+// of the within-participant difference, d_z).
 func meansEffect(s *Spec, d float64) *Effect {
-	sd := math.Sqrt((s.SD1*s.SD1 + s.SD2*s.SD2) / 2)
+	sd := math.Sqrt((s.RawSD1*s.RawSD1 + s.RawSD2*s.RawSD2) / 2)
+	if s.Pairing != "" {
+		sd = s.SD1
+	}
 	return &Effect{MeanDifference: ptr(d), StandardizedDifference: ptr(d / sd)}
 }
 
@@ -222,8 +227,9 @@ func (c survivalCalc) nStar(target float64) (float64, error) {
 	}
 	p1, p2 := c.probabilities(c.e.hr)
 	r := c.s.Ratio
-	// d = n1 P1 + r n1 P2.
-	return d / (p1 + r*p2), nil
+	// The whole number of events required, then participants to expect
+	// them: ceil(D) = n1 P1 + r n1 P2.
+	return float64(ceilTol(d)) / (p1 + r*p2), nil
 }
 
 func (c survivalCalc) expectedEvents(n1, n2 float64) float64 {

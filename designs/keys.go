@@ -34,6 +34,7 @@ var specKeys = map[string]keyInfo{
 	"power":           {kindNumber, "a number above alpha and below 1"},
 	"n":               {kindWhole, "a whole number of at least 2"},
 	"total":           {kindWhole, "a whole number of at least 2"},
+	"n_second":        {kindWhole, "a whole number of at least 1"},
 	"ratio":           {kindNumber, "a number above 0"},
 	"attrition":       {kindNumber, "a fraction in [0, 1)"},
 	"design_effect":   {kindNumber, "a number from 1 to 1000"},
@@ -194,6 +195,9 @@ func keysFor(sel selector) map[string]bool {
 	add(comparisonKeys...)
 	add(r.size)
 	add(r.extra...)
+	if r.size == "n" && sel.pairing != "paired" {
+		add("n_second")
+	}
 	if sel.design == "trial" {
 		add("hypothesis", "non_adherence", "contamination", "arms", "comparisons")
 		if sel.hypothesis == "non-inferiority" || sel.hypothesis == "equivalence" {

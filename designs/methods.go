@@ -97,7 +97,7 @@ var Methods = []MethodInfo{
 		margin:      power.Blackwelder,
 	},
 	{
-		ID: "t", Short: "noncentral t", Name: "t test, exact power from the noncentral t distribution",
+		ID: "t", Short: "Lenth 1989", Name: "t test, exact power from the noncentral t distribution",
 		Citation:    "Owen DB (1965). A special case of a bivariate non-central t-distribution. Biometrika 52:437-446; Lenth RV (1989). Algorithm AS 243: cumulative distribution function of the non-central t distribution. Appl Stat 38:185-189",
 		Designs:     []string{"cohort", "trial", "cross-sectional"},
 		Goal:        "comparison",
@@ -108,7 +108,7 @@ var Methods = []MethodInfo{
 		means:       power.T,
 	},
 	{
-		ID: "z", Short: "normal approximation", Name: "normal approximation for means",
+		ID: "z", Short: "Chow, Shao & Wang 2008", Name: "normal approximation for means",
 		Citation:    "Chow SC, Shao J, Wang H (2008). Sample Size Calculations in Clinical Research, 2nd ed. Chapman & Hall, chapter 3",
 		Designs:     []string{"cohort", "trial", "cross-sectional"},
 		Goal:        "comparison",

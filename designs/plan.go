@@ -16,12 +16,18 @@ const roundTol = 1e-9
 
 // ceilTol rounds x up to a whole number, ignoring noise below roundTol.
 func ceilTol(x float64) int {
-	return int(math.Ceil(x - roundTol*math.Max(1, math.Abs(x))))
+	return int(math.Ceil(x - noise(x)))
+}
+
+// noise is the rounding tolerance at x: relative 1e-9, but never more than
+// 1e-7 in absolute terms, so that large sizes are still rounded up.
+func noise(x float64) float64 {
+	return math.Min(roundTol*math.Max(1, math.Abs(x)), 1e-7)
 }
 
 // floorTol rounds x down to a whole number, ignoring noise below roundTol.
 func floorTol(x float64) int {
-	return int(math.Floor(x + roundTol*math.Max(1, math.Abs(x))))
+	return int(math.Floor(x + noise(x)))
 }
 
 // PlanError is a failure to compute a plan from a valid specification (for
@@ -176,6 +182,9 @@ func sizesFromEnrolment(s *Spec) (sizes, error) {
 			return sz, err
 		}
 		e1, e2 := s.N, ceilTol(s.Ratio*float64(s.N))
+		if s.NSecond > 0 {
+			e2 = s.NSecond
+		}
 		a1, a2 := floorTol(float64(e1)*(1-s.Attrition)), floorTol(float64(e2)*(1-s.Attrition))
 		sz = sizes{
 			n:     []int{a1, a2},
@@ -192,7 +201,7 @@ func sizesFromEnrolment(s *Spec) (sizes, error) {
 		if s.Design == "cross-sectional" {
 			key = "total"
 		}
-		return sz, &PlanError{File: s.File, Msg: fmt.Sprintf("%s: after attrition, design effect and allocation a group has fewer than %g analysable participants (%s); allowed: a larger %s", key, least, fmtSizes(sz.n), key)}
+		return sz, &SpecError{File: s.File, Key: key, Msg: fmt.Sprintf("after attrition, design effect and allocation a group has fewer than %g analysable participants (%s); allowed: a larger %s", least, fmtSizes(sz.n), key)}
 	}
 	return sz, nil
 }
@@ -294,7 +303,7 @@ func atEnrolment(s *Spec, m *MethodInfo, e effects) (sizes, calculator, effects,
 	if s.Cluster != nil {
 		e.clusterK = [2]int{ceilTol(float64(sz.n[0]) / s.Cluster.Size), ceilTol(float64(sz.n[1]) / s.Cluster.Size)}
 		if e.clusterK[0] < 2 || e.clusterK[1] < 2 {
-			return sz, nil, e, &PlanError{File: s.File, Msg: fmt.Sprintf("n: %s analysable participants make fewer than two clusters of %g in an arm; allowed: at least two clusters per arm", fmtSizes(sz.n), s.Cluster.Size)}
+			return sz, nil, e, &SpecError{File: s.File, Key: "n", Msg: fmt.Sprintf("%s analysable participants make fewer than two clusters of %g in an arm; allowed: at least two clusters per arm", fmtSizes(sz.n), s.Cluster.Size)}
 		}
 	}
 	return sz, newCalculator(s, m, e), e, nil
@@ -468,9 +477,14 @@ func describeDesign(s *Spec, res *Result, sv solved) {
 	}
 	if s.Cluster != nil {
 		ans.DesignEffect = ptr(s.DesignEffect)
-		k := sv.e.clusterK
+		// Clusters to recruit: enough whole clusters for the enrolment
+		// (attrition loses participants, not clusters; the analysis above
+		// counted only the clusters the analysable participants fill, which
+		// is conservative).
+		m := s.Cluster.Size
+		k := [2]int{ceilTol(float64(ans.Enrol[0]) / m), ceilTol(float64(ans.Enrol[1]) / m)}
 		ans.Clusters = []int{k[0], k[1]}
-		ans.WholeClusters = []int{ceilTol(float64(k[0]) * s.Cluster.Size), ceilTol(float64(k[1]) * s.Cluster.Size)}
+		ans.WholeClusters = []int{ceilTol(float64(k[0]) * m), ceilTol(float64(k[1]) * m)}
 		if k[0] < 6 || k[1] < 6 {
 			res.Warnings = append(res.Warnings, fmt.Sprintf("Only %d and %d clusters per arm: with fewer than about 6 clusters per arm the cluster-level analysis is fragile and the ICC poorly estimated.", k[0], k[1]))
 		}
@@ -576,8 +590,12 @@ func smallCells(s *Spec, res *Result, sz sizes) {
 	p1 := s.P1
 	minCell := math.Min(math.Min(sz.eff[0]*p1, sz.eff[0]*(1-p1)), math.Min(sz.eff[1]*s.P2, sz.eff[1]*(1-s.P2)))
 	if minCell < 5 {
+		advice := "plan for Fisher's exact test and check the power by exact enumeration (--exact) or simulation"
+		if s.Test == "fisher" {
+			advice = "check the power of Fisher's exact test by exact enumeration (--exact) or simulation"
+		}
 		res.Warnings = append(res.Warnings, fmt.Sprintf(
-			"An expected cell count is %.1f, below 5: the normal approximation behind the formula is doubtful here; plan for Fisher's exact test and check the power by exact enumeration or simulation.", minCell))
+			"An expected cell count is %.1f, below 5: the normal approximation behind the formula is doubtful here; %s.", minCell, advice))
 	}
 }
 
@@ -594,10 +612,17 @@ func methodTestNotes(s *Spec, res *Result) {
 
 // commonNotes adds notes on interpretation.
 func commonNotes(s *Spec, res *Result) {
-	if s.Design != "case-control" {
+	if s.Design != "case-control" && s.Outcome == "binary" {
 		res.Notes = append(res.Notes, "The odds ratio approximates the risk ratio only when the outcome is rare (below about 10% in both groups).")
 	}
-	res.Notes = append(res.Notes, "The closed-form power counts rejections in the direction of the planned effect only, as Fleiss does; for a two-sided test the other direction adds at most alpha/2.")
+	switch {
+	case s.Method == "t":
+		if s.Sides == 2 {
+			res.Notes = append(res.Notes, "The t-test power counts rejections in both directions, as the test does.")
+		}
+	case s.Sides == 2 && s.Hypothesis == "superiority" && s.Method != "exact":
+		res.Notes = append(res.Notes, "The closed-form power counts rejections in the direction of the planned effect only, as the published formulas do; for a two-sided test the other direction adds at most alpha/2.")
+	}
 	if s.DesignEffect > 1 {
 		res.Notes = append(res.Notes, fmt.Sprintf("The design effect of %g inflates each group's size; power is evaluated at the effective sizes (analysable participants divided by the design effect).", s.DesignEffect))
 	}
@@ -639,7 +664,7 @@ func planPrecision(s *Spec, res *Result) error {
 	case "effect":
 		a := floorTol(float64(s.Total) * (1 - s.Attrition))
 		if a < 1 {
-			return &PlanError{File: s.File, Msg: "total: after non-response no respondent is left; allowed: a larger total"}
+			return &SpecError{File: s.File, Key: "total", Msg: "after non-response no respondent is left; allowed: a larger total"}
 		}
 		ans.N, ans.Total = []int{a}, a
 		ans.Enrol, ans.EnrolTotal = []int{s.Total}, s.Total

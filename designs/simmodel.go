@@ -39,6 +39,11 @@ func simModel(s *Spec, res *Result, sizes [2]int, null bool) (simSetup, error) {
 		if ec.clusterK[0] < 2 || ec.clusterK[1] < 2 {
 			return unavailable("fewer than two clusters per arm")
 		}
+		// Whole clusters are simulated: compare at the sizes they bring.
+		mem := int(math.Round(s.Cluster.Size))
+		sizes = [2]int{ec.clusterK[0] * mem, ec.clusterK[1] * mem}
+		st.sizes = sizes
+		st.notes = append(st.notes, fmt.Sprintf("Whole clusters are simulated: %d and %d clusters of %d.", ec.clusterK[0], ec.clusterK[1], mem))
 	}
 	eff := [2]float64{float64(sizes[0]) / s.DesignEffect, float64(sizes[1]) / s.DesignEffect}
 	if s.Pairing == "paired" {
@@ -90,6 +95,7 @@ func simModel(s *Spec, res *Result, sizes [2]int, null bool) (simSetup, error) {
 		}
 		if null {
 			p1 = p2
+			st.null = fmt.Sprintf("no difference (both risks %s)", trimFloat(p2))
 		}
 		if s.Cluster != nil {
 			mem := int(math.Round(s.Cluster.Size))
@@ -166,3 +172,6 @@ func clusterNotes(s *Spec, st *simSetup, mem int) {
 		st.notes = append(st.notes, "Clusters are simulated with equal sizes; the closed form includes the inflation for unequal sizes, so it is the more conservative of the two.")
 	}
 }
+
+// trimFloat formats a probability briefly: 0.2, 0.125.
+func trimFloat(x float64) string { return fmt.Sprintf("%.4g", x) }

@@ -43,6 +43,7 @@ type Spec struct {
 	Sides          int
 	Power          float64 // target power; 0 when solving power
 	N              int     // enrolment of the first group, when solving power or effect
+	NSecond        int     // enrolment of the second group, when given (else ceil(ratio × N))
 	Total          int     // enrolment of a cross-sectional survey, when solving power or effect
 	Ratio          float64 // second group per member of the first
 	Attrition      float64
@@ -96,7 +97,12 @@ type Spec struct {
 	// baseline adjustment.
 	SD1, SD2            float64
 	BaselineCorrelation float64
-	Welch               bool
+	// RawSD1 and RawSD2 are the outcome's standard deviations as given,
+	// before any baseline adjustment (paired: the SD of one measurement when
+	// given with WithinCorrelation, else 0).
+	RawSD1, RawSD2    float64
+	WithinCorrelation float64
+	Welch             bool
 
 	// Time-to-event outcomes.
 	HazardRatio   float64
@@ -183,7 +189,7 @@ var yamlLine = regexp.MustCompile(`^yaml: line (\d+): (.*)$`)
 // sources.control_risk reach nested maps). Every problem is a *SpecError.
 func Parse(file string, data []byte, sets []string) (*Spec, error) {
 	if len(data) > MaxSpecBytes {
-		return nil, &SpecError{File: file, Msg: fmt.Sprintf("file is %d bytes; allowed: at most 1 MiB (%d bytes)", len(data), MaxSpecBytes)}
+		return nil, &SpecError{File: file, Msg: fmt.Sprintf("file is larger than 1 MiB; allowed: at most 1 MiB (%d bytes)", MaxSpecBytes)}
 	}
 	sum := sha256.Sum256(data)
 	if len(bytes.TrimSpace(data)) == 0 {
@@ -344,7 +350,7 @@ func (r *reader) checkNested(head, sub string, e *entry) error {
 	switch head {
 	case "sources":
 		if e.node.Kind != yaml.ScalarNode || e.node.Tag == "!!null" {
-			return r.errAt(e, "is not text; allowed: a line saying where the value came from")
+			return r.errAt(e, "is not text; allowed: a line saying where the value came from (put quotes around text that contains \": \")")
 		}
 	case "simulate", "cluster":
 		known := clusterKeys
@@ -475,7 +481,7 @@ func (r *reader) text(key string) (string, *entry, error) {
 		return "", nil, nil
 	}
 	if e.node.Kind != yaml.ScalarNode {
-		return "", e, r.errAt(e, "is not a single value; allowed: %s", specKeys[key].allowed)
+		return "", e, r.errAt(e, "is not a single value; allowed: %s (put quotes around text that contains \": \")", specKeys[key].allowed)
 	}
 	return strings.TrimSpace(e.node.Value), e, nil
 }

@@ -13,8 +13,9 @@ import (
 // TestSurvivalPlan runs the rows of trials_survival.tsv that convert events
 // into participants (independent R implementation of Schoenfeld 1983 and
 // Freedman 1982 with the exact event probability; see trials_README.md)
-// through whole specifications: first arm ceil(n1*), second ceil(ratio n1*),
-// events ceil(D).
+// through whole specifications: the whole number of events ceil(D), then
+// n1* = ceil(D)/(P1 + ratio P2) with the table's event probabilities, first
+// arm ceil(n1*), second ceil(ratio n1*).
 func TestSurvivalPlan(t *testing.T) {
 	rows := 0
 	for _, row := range reftable.Load(t, "trials_survival.tsv") {
@@ -36,8 +37,9 @@ func TestSurvivalPlan(t *testing.T) {
 			spec += "dropout: " + row["dropout"] + "\n"
 		}
 		res := mustPlan(t, spec)
-		n1 := row.F(t, "n1_star")
-		want := []int{int(math.Ceil(n1)), int(math.Ceil(row.F(t, "ratio") * n1))}
+		r := row.F(t, "ratio")
+		n1 := math.Ceil(row.F(t, "events")) / (row.F(t, "p_event_intervention") + r*row.F(t, "p_event_control"))
+		want := []int{int(math.Ceil(n1)), int(math.Ceil(r * n1))}
 		if got := res.Result.N; got[0] != want[0] || got[1] != want[1] {
 			t.Errorf("%s: n = %v, want %v (%s)", row["id"], got, want, row["source"])
 		}

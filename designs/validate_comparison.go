@@ -170,6 +170,23 @@ func (r *reader) buildComparison(s *Spec) error {
 		if e := r.get("ratio"); e != nil && s.Pairing == "paired" {
 			return r.errAt(e, "does not apply to a paired design: each pair holds one of each; allowed: leave ratio out")
 		}
+		n2, n2e, err := r.whole("n_second")
+		if err != nil {
+			return err
+		}
+		if n2e != nil {
+			switch {
+			case s.Solve == "n":
+				s.Ignored = append(s.Ignored, "n_second is ignored when solving n (ratio sets the second group)")
+			case n2 < 1 || n2 > MaxSize:
+				return r.errAt(n2e, "%d is out of range; allowed: a whole number from 1 to 10⁹", n2)
+			case r.get("ratio") != nil:
+				return r.errAt(n2e, "given together with ratio; allowed: one of them (n_second fixes the second group's enrolment)")
+			default:
+				s.NSecond = n2
+				s.Ratio = float64(n2) / float64(s.N)
+			}
+		}
 	}
 
 	if err := r.buildTrial(s); err != nil {
@@ -188,8 +205,12 @@ func (r *reader) buildComparison(s *Spec) error {
 	}
 
 	// the planned test, now that the outcome is known
-	if s.Test, _, err = r.choice("test", defaultTest(s), testsFor(s)...); err != nil {
+	var te *entry
+	if s.Test, te, err = r.choice("test", defaultTest(s), testsFor(s)...); err != nil {
 		return err
+	}
+	if te != nil && s.Test == "t-student" && s.SD1 != s.SD2 {
+		return r.errAt(te, "t-student assumes equal standard deviations, but sd_first and sd_second differ (its level and power then depart from the nominal ones); allowed: t-welch, or one common sd")
 	}
 	return r.buildSimulate(s)
 }
@@ -403,11 +424,14 @@ func (r *reader) checkMarginSide(s *Spec, e *entry, diff float64) error {
 	}
 	switch s.Hypothesis {
 	case "non-inferiority":
-		if (s.HigherIsBetter && diff <= -s.Margin) || (!s.HigherIsBetter && diff >= s.Margin) {
+		// Decimal inputs miss the margin by rounding noise (0.8 − 0.88 is
+		// −0.07999999999999996): a difference that close counts as at it.
+		const slack = 1e-9
+		if (s.HigherIsBetter && diff <= -s.Margin+slack) || (!s.HigherIsBetter && diff >= s.Margin-slack) {
 			return where("the true difference (%.4g) is at or beyond the non-inferiority margin (%g, %s): no sample size can show non-inferiority; allowed: a true difference on the acceptable side of the margin", diff, s.Margin, betterWord(s.HigherIsBetter))
 		}
 	case "equivalence":
-		if math.Abs(diff) >= s.Margin {
+		if math.Abs(diff) >= s.Margin-1e-9 {
 			return where("the true difference (%.4g) lies outside the equivalence margin ±%g: no sample size can show equivalence; allowed: a true difference inside the margin", diff, s.Margin)
 		}
 	}
@@ -494,6 +518,7 @@ func (r *reader) buildContinuous(s *Spec) error {
 			s.SD1 = sdd
 		case sde != nil && rhoe != nil:
 			s.SD1 = sd * math.Sqrt(2*(1-rho))
+			s.RawSD1, s.WithinCorrelation = sd, rho
 		case sde != nil:
 			return r.errFile("within_correlation", "missing; with sd, a %s design needs the correlation between a participant's two measurements, in (-1, 1) (or give sd_difference)", s.Pairing)
 		default:
@@ -535,6 +560,7 @@ func (r *reader) buildContinuous(s *Spec) error {
 	default:
 		return r.errFile("sd", "missing; required: the standard deviation of the outcome, above 0 (or sd_first and sd_second)")
 	}
+	s.RawSD1, s.RawSD2 = s.SD1, s.SD2
 	rho, _, err := r.optNum("baseline_correlation", 0, func(x float64) bool { return x >= 0 && x < 1 })
 	if err != nil {
 		return err

@@ -79,6 +79,7 @@ type simSetup struct {
 	sizes  [2]int
 	closed float64 // closed-form power at the same sizes
 	notes  []string
+	null   string // where the null run sits, when more precise than the default
 }
 
 // Verify simulates the study at the plan's analysable sizes (or simulate.n)
@@ -88,6 +89,9 @@ type simSetup struct {
 func Verify(ctx context.Context, s *Spec, res *Result, o SimOptions) error {
 	if s.Goal == "precision" {
 		return &InputError{Msg: s.File + ": simulate: a precision survey has no test to simulate; allowed: a two-group comparison"}
+	}
+	if s.Solve == "effect" {
+		return &InputError{Msg: s.File + ": simulate: solve effect gives two detectable effects, not one to simulate; allowed: solve n or power (set the effect key to the detectable effect and solve: power to verify it)"}
 	}
 	reps, seed := int64(10000), uint64(1)
 	n1 := 0
@@ -158,6 +162,7 @@ func Verify(ctx context.Context, s *Spec, res *Result, o SimOptions) error {
 		}
 		return c
 	}
+	sizes = alt.sizes
 	sim := &Simulation{Test: s.Test, TestName: TestName(s.Test), Replicates: reps, Seed: seed,
 		N: sizes[:], ClosedFormPower: alt.closed, Notes: alt.notes}
 	if s.Pairing == "paired" {
@@ -179,6 +184,9 @@ func Verify(ctx context.Context, s *Spec, res *Result, o SimOptions) error {
 		return ErrStopped
 	}
 	sim.Type1At = "no difference"
+	if null.null != "" {
+		sim.Type1At = null.null
+	}
 	if s.Hypothesis == "non-inferiority" {
 		sim.Type1At = "the non-inferiority margin"
 	}
@@ -198,7 +206,7 @@ func Verify(ctx context.Context, s *Spec, res *Result, o SimOptions) error {
 		sim.Partial = true
 		return ErrStopped
 	}
-	if s.Solve == "n" && s.Power > 0 {
+	if s.Solve == "n" && s.Power > 0 && s.Cluster == nil {
 		solved, err := solveBySimulation(ctx, s, res, sizes, reps, seed, o)
 		if err != nil {
 			if errors.Is(err, ErrStopped) {

@@ -17,8 +17,13 @@ func pct1(p float64) string {
 	return strconv.FormatFloat(100*p, 'f', 1, 64) + "%"
 }
 
-// num formats a ratio or other effect with three significant digits.
+// num formats a ratio or other effect with three significant digits, with
+// a true minus sign for negative values.
 func num(x float64) string {
+	return strings.Replace(numASCII(x), "-", "−", 1)
+}
+
+func numASCII(x float64) string {
 	if x == math.Trunc(x) && math.Abs(x) < 1e6 {
 		return strconv.FormatFloat(x, 'f', -1, 64)
 	}

@@ -35,15 +35,15 @@ func methodPhrase(id, name string) string {
 	case "blackwelder":
 		return "the Wald method of Blackwelder (1982)"
 	case "t":
-		return "the exact power of the t test (noncentral t distribution)"
+		return "the exact power of the t test from the noncentral t distribution (Lenth 1989)"
 	case "z":
-		return "the normal approximation"
+		return "the normal approximation for means (Chow, Shao & Wang 2008)"
 	case "schoenfeld":
 		return "Schoenfeld's formula (1983)"
 	case "freedman":
 		return "Freedman's formula (1982)"
 	case "exact":
-		return "the exact power of the planned test, summed over every pair of counts (no approximation)"
+		return "exact enumeration of the test's power over every pair of counts (Suissa & Shuster 1985)"
 	}
 	return name
 }
@@ -66,11 +66,22 @@ func intro(b *strings.Builder, r *designs.Result) {
 	case "equivalence":
 		test = fmt.Sprintf("two one-sided tests (%s), each at an alpha of %g, which amounts to a %s confidence interval", r.TestName, alpha, pct(1-2*alpha))
 	default:
-		test = fmt.Sprintf("%s at a %s alpha of %g", r.TestName, sidesWord(r.Sides), alpha)
+		name := r.TestName
+		if s.BaselineCorrelation > 0 {
+			name = "analysis of covariance adjusting for the baseline value"
+		}
+		test = fmt.Sprintf("%s at a %s alpha of %g", name, sidesWord(r.Sides), alpha)
+		if r.Sides == 1 {
+			test += fmt.Sprintf(" (rejecting only when the %s %s)", first, directionWord(r))
+		}
 	}
 	switch {
 	case r.Design == "case-control":
-		fmt.Fprintf(b, "The primary analysis compares the proportion exposed between %s and %s, with %s as the outcome that defines a case, using %s. ", first, second, outcome, test)
+		defines := outcome + " as the outcome that defines a case"
+		if s.PrimaryOutcome == "" {
+			defines = "cases defined by the outcome under study"
+		}
+		fmt.Fprintf(b, "The primary analysis compares the proportion exposed between %s and %s, with %s, using %s. ", first, second, defines, test)
 	case r.Design == "cross-sectional":
 		fmt.Fprintf(b, "The survey compares %s between %s and %s respondents using %s. ", meanOrPrevalence(r, outcome), first, second, test)
 	case s.Pairing == "paired":
@@ -94,6 +105,31 @@ func intro(b *strings.Builder, r *designs.Result) {
 		fmt.Fprintf(b, "The trial has %d arms; the %d comparisons (%s) each use alpha %g/%d = %.4g (Bonferroni), and the analysis will use Holm's procedure, which keeps the same family-wise error and is at least as powerful. ",
 			a.Arms, a.Comparisons, what, alpha, a.Comparisons, *a.AlphaPerComparison)
 	}
+}
+
+// directionWord says which way a one-sided superiority test looks.
+func directionWord(r *designs.Result) string {
+	s := r.Spec
+	lower := false
+	switch r.Outcome {
+	case "continuous":
+		lower = s.MeanDiff < 0
+	case "time-to-event":
+		return map[bool]string{true: "has the lower hazard", false: "has the higher hazard"}[s.HazardRatio < 1]
+	default:
+		lower = s.P1 < s.P2
+	}
+	what := "risk"
+	if r.Outcome == "continuous" {
+		what = "mean"
+	}
+	if r.Design == "case-control" {
+		what = "exposure"
+	}
+	if lower {
+		return "has the lower " + what
+	}
+	return "has the higher " + what
 }
 
 func meanOrPrevalence(r *designs.Result, outcome string) string {
@@ -130,12 +166,8 @@ func assume(b *strings.Builder, r *designs.Result) {
 		assumeMeans(b, r)
 		return
 	case "time-to-event":
-		src := strings.TrimSuffix(strings.TrimPrefix(source(r, controlKey(s)), " ("), ")")
-		if src != "" {
-			src = "; " + src
-		}
 		fmt.Fprintf(b, "We assume exponential survival in the %s with %s (a hazard of %.4g per %s%s)",
-			second, survivalText(s), s.ControlHazard, singular(s.TimeUnit), src)
+			second, survivalText(s), s.ControlHazard, singular(s.TimeUnit), srcSemi(r, controlKey(s)))
 		if r.Solve != "effect" {
 			fmt.Fprintf(b, " and plan for a hazard ratio of %s%s", num(s.HazardRatio), eff)
 		}
@@ -218,23 +250,30 @@ func assumeMeans(b *strings.Builder, r *designs.Result) {
 	s := r.Spec
 	sdSrc := source(r, "sd")
 	switch {
+	case s.Pairing != "" && s.WithinCorrelation != 0:
+		fmt.Fprintf(b, "We assume a standard deviation of %s for one measurement%s and a correlation of %s between a participant's two measurements, which give a standard deviation of %s for the difference (sd √(2(1 − ρ)))",
+			num(s.RawSD1), source(r, "sd"), num(s.WithinCorrelation), num(s.SD1))
 	case s.Pairing != "":
 		fmt.Fprintf(b, "We assume a standard deviation of %s for a participant's difference between the two measurements%s", num(s.SD1), orSource(r, "sd_difference", "sd"))
-	case s.SD1 != s.SD2:
-		fmt.Fprintf(b, "We assume standard deviations of %s in the %s and %s in the %s%s", num(s.SD1), r.FirstGroup, num(s.SD2), r.SecondGroup, source(r, "sd_first"))
+	case s.RawSD1 != s.RawSD2:
+		fmt.Fprintf(b, "We assume standard deviations of %s in the %s and %s in the %s%s", num(s.RawSD1), r.FirstGroup, num(s.RawSD2), r.SecondGroup, orSource(r, "sd_first", "sd_second"))
 	default:
-		fmt.Fprintf(b, "We assume a standard deviation of %s%s", num(s.SD1), sdSrc)
+		fmt.Fprintf(b, "We assume a standard deviation of %s%s", num(s.RawSD1), sdSrc)
 	}
 	if s.BaselineCorrelation > 0 {
-		fmt.Fprintf(b, " after adjustment for the baseline measurement by analysis of covariance (a correlation of %s with the outcome%s shrinks the variance by the factor 1 − %s² = %.4g; Borm, Fransen & Lemmens 2007)",
-			num(s.BaselineCorrelation), source(r, "baseline_correlation"), num(s.BaselineCorrelation), 1-s.BaselineCorrelation*s.BaselineCorrelation)
+		fmt.Fprintf(b, "; adjusting for the baseline measurement by analysis of covariance (correlation %s with the outcome%s) shrinks the variance by the factor 1 − ρ² = %.4g, to a residual standard deviation of %s (Borm, Fransen & Lemmens 2007)",
+			num(s.BaselineCorrelation), srcSemi(r, "baseline_correlation"), 1-s.BaselineCorrelation*s.BaselineCorrelation, num(s.SD1))
 	}
 	if r.Solve != "effect" {
 		if s.Hypothesis != "superiority" && s.MeanDiff == 0 {
-			b.WriteString(" and no true difference between the arms")
+			b.WriteString("; we assume no true difference between the arms")
 		} else {
 			d := *r.Result.Effect.StandardizedDifference
-			fmt.Fprintf(b, " and plan for a difference in means of %s%s (Cohen's d = %s)", num(s.MeanDiff), source(r, "mean_difference"), num(d))
+			label := "Cohen's d"
+			if s.Pairing != "" {
+				label = "d_z, in standard deviations of the difference"
+			}
+			fmt.Fprintf(b, "; we plan for a difference in means of %s (%s = %s%s)", num(s.MeanDiff), label, num(d), srcSemi(r, "mean_difference"))
 		}
 	}
 	b.WriteString(". ")
@@ -242,6 +281,14 @@ func assumeMeans(b *strings.Builder, r *designs.Result) {
 		b.WriteString("The analysis uses Welch's test, whose degrees of freedom follow the Welch–Satterthwaite approximation. ")
 	}
 	dilution(b, r)
+}
+
+// srcSemi returns "; source: ..." for use inside parentheses.
+func srcSemi(r *designs.Result, key string) string {
+	if s := r.Spec.Sources[key]; s != "" {
+		return "; source: " + s
+	}
+	return ""
 }
 
 func orSource(r *designs.Result, keys ...string) string {
@@ -262,10 +309,10 @@ func dilution(b *strings.Builder, r *designs.Result) {
 	}
 	var parts []string
 	if s.NonAdherence > 0 {
-		parts = append(parts, fmt.Sprintf("%s of the %s not receiving it", pct(s.NonAdherence), r.FirstGroup))
+		parts = append(parts, fmt.Sprintf("%s of the %s not receiving the intervention", pct(s.NonAdherence), r.FirstGroup))
 	}
 	if s.Contamination > 0 {
-		parts = append(parts, fmt.Sprintf("%s of the %s receiving it", pct(s.Contamination), r.SecondGroup))
+		parts = append(parts, fmt.Sprintf("%s of the %s receiving the intervention nonetheless", pct(s.Contamination), r.SecondGroup))
 	}
 	var seen string
 	switch {
@@ -274,9 +321,12 @@ func dilution(b *strings.Builder, r *designs.Result) {
 	case d.HazardRatio != nil:
 		seen = "a hazard ratio of " + num(*d.HazardRatio)
 	default:
-		seen = fmt.Sprintf("risks of %s and %s (risk ratio %s)", pct(*d.FirstRisk), pct(*d.SecondRisk), num(*d.RiskRatio))
+		seen = fmt.Sprintf("risks of %s and %s (risk ratio %s; Lachin & Foulkes 1986)", pct(*d.FirstRisk), pct(*d.SecondRisk), num(*d.RiskRatio))
 	}
-	fmt.Fprintf(b, "With %s, an intention-to-treat analysis sees %s (Lachin & Foulkes 1986). ", strings.Join(parts, " and "), seen)
+	if !strings.Contains(seen, "Lachin") {
+		seen += " (Lachin & Foulkes 1986)"
+	}
+	fmt.Fprintf(b, "With %s, an intention-to-treat analysis sees %s. ", strings.Join(parts, " and "), seen)
 }
 
 // conclude states the answer.
@@ -302,13 +352,23 @@ func conclude(b *strings.Builder, r *designs.Result) {
 		}
 		switch {
 		case r.Outcome == "time-to-event":
-			fmt.Fprintf(b, "%s, %s requires %s events; with the expected probabilities of an observed event, that is %s and %s, %s in all, who are expected to yield %.1f events; the achieved power is %s. ",
-				target, method, count(a.Events), members(a.N[0], first), members(a.N[1], second), count(a.Total), *a.ExpectedEvents, pct1(*a.AchievedPower))
+			per, all := "", fmt.Sprintf("%s in all", count(a.Total))
+			if a.Arms > 2 {
+				per, all = " per comparison", "for each comparison"
+			}
+			fmt.Fprintf(b, "%s, %s requires %s events%s; with the expected probabilities of an observed event, that is %s and %s, %s, who are expected to yield %.1f events between them; the achieved power is %s. ",
+				target, method, count(a.Events), per, members(a.N[0], first), members(a.N[1], second), all, *a.ExpectedEvents, pct1(*a.AchievedPower))
 		case s.Pairing == "paired":
 			fmt.Fprintf(b, "%s, %s requires %s pairs; the achieved power is %s. ", target, method, count(a.N[0]), pct1(*a.AchievedPower))
 		case r.Design == "cross-sectional":
 			fmt.Fprintf(b, "%s, %s requires %s analysable respondents, of whom about %s are expected to be exposed and %s unexposed; the achieved power at these numbers is %s. ",
 				target, method, count(a.Total), count(a.N[0]), count(a.N[1]), pct1(*a.AchievedPower))
+		case a.Arms > 2:
+			fmt.Fprintf(b, "%s, %s requires, for each comparison, %s and %s; the achieved power at these numbers is %s. ",
+				target, method, members(a.N[0], first), members(a.N[1], second), pct1(*a.AchievedPower))
+		case s.Cluster != nil:
+			fmt.Fprintf(b, "%s, %s, with the design effect and the cluster-level t test below, requires %s participants in the %s and %s in the %s, %s analysable in all; the achieved power at these numbers is %s. ",
+				target, method, count(a.N[0]), first, count(a.N[1]), second, count(a.Total), pct1(*a.AchievedPower))
 		default:
 			fmt.Fprintf(b, "%s, %s requires %s and %s, %s analysable in all; the achieved power at these numbers is %s. ",
 				target, method, members(a.N[0], first), members(a.N[1], second), count(a.Total), pct1(*a.AchievedPower))
@@ -394,7 +454,7 @@ func clusterSentence(b *strings.Builder, r *designs.Result) {
 	if c.SizeCV > 0 {
 		deff = fmt.Sprintf("1 + ((cv² + 1) m − 1) ICC with a cluster-size coefficient of variation of %s (Eldridge, Ashby & Kerry 2006)", num(c.SizeCV))
 	}
-	fmt.Fprintf(b, "Clusters of %s participants on average with an intracluster correlation of %s%s give a design effect of %.4g, from %s. The arms need %s and %s clusters, which bring %s and %s participants; the analysis is a t test on cluster summaries with %d degrees of freedom. ",
+	fmt.Fprintf(b, "Clusters of %s participants on average with an intracluster correlation of %s%s give a design effect of %.4g, from %s. The arms need %s and %s clusters to enrol them, which bring %s and %s participants; the analysis is a t test on cluster summaries with %d degrees of freedom. ",
 		num(c.Size), num(c.ICC), source(r, "cluster.icc"), *a.DesignEffect, deff, count(a.Clusters[0]), count(a.Clusters[1]),
 		count(a.WholeClusters[0]), count(a.WholeClusters[1]), a.Clusters[0]+a.Clusters[1]-2)
 }
@@ -424,7 +484,11 @@ func inflation(b *strings.Builder, r *designs.Result) {
 		return
 	}
 	if r.Outcome == "time-to-event" {
-		fmt.Fprintf(b, "Losses to follow-up are already counted in the event probabilities, so the enrolment target is %s in total.", count(a.EnrolTotal))
+		if r.Spec.Dropout > 0 {
+			fmt.Fprintf(b, "Losses to follow-up are already counted in the event probabilities, so the enrolment target is %s in total.", count(a.EnrolTotal))
+		} else {
+			fmt.Fprintf(b, "No loss to follow-up is expected, so the enrolment target is %s in total.", count(a.EnrolTotal))
+		}
 		return
 	}
 	if r.Design == "cross-sectional" {
@@ -441,8 +505,8 @@ func inflation(b *strings.Builder, r *designs.Result) {
 	}
 	switch {
 	case r.Spec.Cluster != nil && r.Attrition > 0:
-		fmt.Fprintf(b, "Allowing for %s attrition, we will enrol %s and %s, %s participants in total.",
-			pct(r.Attrition), members(a.Enrol[0], r.FirstGroup), members(a.Enrol[1], r.SecondGroup), count(a.EnrolTotal))
+		fmt.Fprintf(b, "Allowing for %s attrition, we will enrol %s participants in the %s and %s in the %s, %s in total.",
+			pct(r.Attrition), count(a.Enrol[0]), r.FirstGroup, count(a.Enrol[1]), r.SecondGroup, count(a.EnrolTotal))
 	case r.Spec.Cluster != nil:
 		fmt.Fprintf(b, "No attrition is expected, so the enrolment target is %s in total.", count(a.EnrolTotal))
 	case r.DesignEff > 1 && r.Attrition > 0:
@@ -470,7 +534,7 @@ func precisionParagraph(r *designs.Result) string {
 		outcome, pct(s.ExpectedPrevalence), source(r, "expected_prevalence"), pct(s.Confidence))
 	marg := strings.TrimSuffix(pct(*a.Margin), "%")
 	if r.Solve == "n" {
-		fmt.Fprintf(&b, "For a margin of ±%s percentage points, simple random sampling needs %.1f respondents", marg, a.N0)
+		fmt.Fprintf(&b, "For a margin of ±%s percentage points, simple random sampling needs n₀ = %.1f respondents (unrounded)", marg, a.N0)
 		if r.DesignEff > 1 {
 			fmt.Fprintf(&b, "; the design effect of %g%s raises this", r.DesignEff, source(r, "design_effect"))
 		}

@@ -50,7 +50,7 @@ func addSimFlags(cmd *cobra.Command, f *SimFlags) {
 	cmd.Flags().BoolVarP(&f.Quiet, "quiet", "q", false, "no progress bar on standard error")
 	cmd.Flags().Float64Var(&f.MaxSeconds, "max-seconds", 600, "refuse a simulation predicted to take longer than this")
 	cmd.Flags().Int64Var(&f.Replicates, "replicates", 0, "override simulate.replicates")
-	cmd.Flags().Int64Var(&f.Seed, "seed", -1, "override simulate.seed")
+	cmd.Flags().Int64Var(&f.Seed, "seed", -1, "override simulate.seed (a whole number of at least 0)")
 	cmd.Flags().Int64Var(&f.MaxReplicates, "max-replicates", 1_000_000_000, "refuse more replicates than this unless raised")
 }
 

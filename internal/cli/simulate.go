@@ -68,9 +68,12 @@ func simulate(spec *designs.Spec, res *designs.Result, opts *PlanOptions) error 
 	if f.Replicates > 0 {
 		o.Replicates = f.Replicates
 	}
-	if f.Seed >= 0 {
+	switch {
+	case f.Seed >= 0:
 		o.Seed = uint64(f.Seed)
 		o.SeedSet = true
+	case f.Seed != -1:
+		return &inputError{msg: fmt.Sprintf("--seed: %d is out of range; allowed: a whole number of at least 0", f.Seed)}
 	}
 	if f.Workers < 0 {
 		return &inputError{msg: "--workers: allowed: 0 (one per core) or more"}
