@@ -124,10 +124,7 @@ func Verify(ctx context.Context, s *Spec, res *Result, o SimOptions) error {
 		sizes[1] = res.Result.N[1]
 	}
 	if n1 > 0 {
-		sizes = [2]int{n1, n1}
-		if s.Pairing != "paired" {
-			sizes[1] = ceilTol(s.Ratio * float64(n1))
-		}
+		sizes = simSizes(s, n1)
 	}
 	alt, err := simModel(s, res, sizes, false)
 	if err != nil {
@@ -224,10 +221,7 @@ func Verify(ctx context.Context, s *Spec, res *Result, o SimOptions) error {
 // every candidate so that the comparison between sizes is sharp.
 func solveBySimulation(ctx context.Context, s *Spec, res *Result, start [2]int, reps int64, seed uint64, o SimOptions) (*SimSolved, error) {
 	at := func(n1 int) ([2]int, power.SimResult, simSetup, error) {
-		sz := [2]int{n1, n1}
-		if s.Pairing != "paired" {
-			sz[1] = max(1, ceilTol(s.Ratio*float64(n1)))
-		}
+		sz := simSizes(s, n1)
 		st, err := simModel(s, res, sz, false)
 		if err != nil {
 			return sz, power.SimResult{}, st, err
@@ -242,7 +236,7 @@ func solveBySimulation(ctx context.Context, s *Spec, res *Result, start [2]int, 
 		_, r, _, err := at(n1)
 		return r.Power() >= s.Power, err
 	}
-	lo, hi := max(2, start[0]/2), start[0]
+	lo, hi := max(2, start[0]/2), max(3, start[0])
 	if ok, err := reach(hi); err != nil {
 		return nil, err
 	} else if !ok {
@@ -285,7 +279,7 @@ func solveBySimulation(ctx context.Context, s *Spec, res *Result, start [2]int, 
 		out.N = sz[:1]
 	}
 	// Slope of the closed-form power in n near the answer.
-	if _, _, up, err := at2(s, res, hi+max(1, hi/20)); err == nil {
+	if up, err := simModel(s, res, simSizes(s, hi+max(1, hi/20)), false); err == nil {
 		if slope := (up.closed - st.closed) / float64(max(1, hi/20)); slope > 0 {
 			out.NSE = r.SE() / slope
 		}
@@ -293,12 +287,15 @@ func solveBySimulation(ctx context.Context, s *Spec, res *Result, start [2]int, 
 	return out, nil
 }
 
-// at2 builds the model at first-group size n1 without simulating it.
-func at2(s *Spec, res *Result, n1 int) ([2]int, power.Model, simSetup, error) {
-	sz := [2]int{n1, n1}
-	if s.Pairing != "paired" {
-		sz[1] = max(1, ceilTol(s.Ratio*float64(n1)))
+// simSizes returns the group sizes for a first group of n1: the second
+// follows the ratio (at least one member, two for a t test).
+func simSizes(s *Spec, n1 int) [2]int {
+	if s.Pairing == "paired" {
+		return [2]int{n1, n1}
 	}
-	st, err := simModel(s, res, sz, false)
-	return sz, st.model, st, err
+	least := 1
+	if s.Outcome == "continuous" {
+		least = 2
+	}
+	return [2]int{n1, max(least, ceilTol(s.Ratio*float64(n1)))}
 }
