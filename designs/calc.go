@@ -66,7 +66,12 @@ func comparisons(s *Spec) int {
 func newCalculator(s *Spec, m *MethodInfo, e effects) calculator {
 	switch {
 	case s.Outcome == "continuous":
-		return meansCalc{s: s, m: m.means, mc: meanComparison(s, e)}
+		mm := m.means
+		if e.clusterK[0] > 0 {
+			// The cluster-level analysis is a t test whatever the method.
+			mm = power.T
+		}
+		return meansCalc{s: s, m: mm, mc: meanComparison(s, e)}
 	case s.Outcome == "time-to-event":
 		return survivalCalc{s: s, m: m.events, e: e}
 	case m.margin != 0:

@@ -54,6 +54,9 @@ func Exact(s *Spec, res *Result) error {
 		res.Method, res.MethodName, res.Citation, res.Short = x.ID, x.Name, x.Citation, x.Short
 	}
 	if s.Solve == "power" {
+		if cells := float64(a.N[0]+1) * float64(a.N[1]+1); cells > 4e7 || (test == power.Fisher && cells > 5e6) {
+			return &InputError{Msg: fmt.Sprintf("%s: exact: enumerating every pair of counts for %d and %d would take too long; allowed: smaller sizes, or verify the plan with enough simulate", s.File, a.N[0], a.N[1])}
+		}
 		a.ExactPower = ptr(power.ExactPower(test, a.N[0], a.N[1], e.p1, e.p2, e.alpha, s.Sides, dir))
 		a.AchievedPower = a.ExactPower
 		return nil
@@ -84,7 +87,7 @@ func Exact(s *Spec, res *Result) error {
 	low, high := max(2, cf-w), cf+w
 	st, err := power.ExactSolveN(test, s.Ratio, e.p1, e.p2, e.alpha, s.Sides, dir, s.Power, low, high)
 	if errors.Is(err, power.ErrUnreachable) {
-		return &PlanError{File: s.File, Msg: fmt.Sprintf("exact: no first-group size from %d to %d reaches the target power with %s", low, high, TestName(s.Test)), Err: err}
+		return &PlanError{File: s.File, Msg: fmt.Sprintf("exact: no first-group size in the window searched (%d to %d, around the closed form's %d and narrowed to keep the enumeration within about ten seconds) reaches the target power with %s; the answer lies outside it: verify the plan with enough simulate", low, high, cf, TestName(s.Test)), Err: err}
 	}
 	if err != nil {
 		return err

@@ -252,7 +252,7 @@ func solveN(s *Spec, m *MethodInfo, e effects) (solved, error) {
 	at := func(n1 int) (sizes, effects, calculator) {
 		sz := clusterSizes(s, n1)
 		ec := e
-		ec.clusterK = [2]int{ceilTol(float64(sz.n[0]) / s.Cluster.Size), ceilTol(float64(sz.n[1]) / s.Cluster.Size)}
+		ec.clusterK = clustersFor(s, sz.enrol)
 		return sz, ec, newCalculator(s, m, ec)
 	}
 	ok := func(n1 int) bool {
@@ -282,6 +282,13 @@ func solveN(s *Spec, m *MethodInfo, e effects) (solved, error) {
 	return solved{nstar, sz, calc, e}, nil
 }
 
+// clustersFor returns the clusters per arm that an enrolment fills:
+// attrition loses participants, not clusters, so the analysis has as many
+// clusters as are recruited.
+func clustersFor(s *Spec, enrol []int) [2]int {
+	return [2]int{ceilTol(float64(enrol[0]) / s.Cluster.Size), ceilTol(float64(enrol[1]) / s.Cluster.Size)}
+}
+
 // clusterSizes returns the sizes of a cluster design with n1 analysable
 // participants in the first arm (at least two clusters per arm).
 func clusterSizes(s *Spec, n1 int) sizes {
@@ -301,7 +308,7 @@ func atEnrolment(s *Spec, m *MethodInfo, e effects) (sizes, calculator, effects,
 		return sz, nil, e, err
 	}
 	if s.Cluster != nil {
-		e.clusterK = [2]int{ceilTol(float64(sz.n[0]) / s.Cluster.Size), ceilTol(float64(sz.n[1]) / s.Cluster.Size)}
+		e.clusterK = clustersFor(s, sz.enrol)
 		if e.clusterK[0] < 2 || e.clusterK[1] < 2 {
 			return sz, nil, e, &SpecError{File: s.File, Key: "n", Msg: fmt.Sprintf("%s analysable participants make fewer than two clusters of %g in an arm; allowed: at least two clusters per arm", fmtSizes(sz.n), s.Cluster.Size)}
 		}
@@ -477,12 +484,10 @@ func describeDesign(s *Spec, res *Result, sv solved) {
 	}
 	if s.Cluster != nil {
 		ans.DesignEffect = ptr(s.DesignEffect)
-		// Clusters to recruit: enough whole clusters for the enrolment
-		// (attrition loses participants, not clusters; the analysis above
-		// counted only the clusters the analysable participants fill, which
-		// is conservative).
+		// Clusters to recruit: enough whole clusters for the enrolment, as
+		// in the cluster-level analysis.
 		m := s.Cluster.Size
-		k := [2]int{ceilTol(float64(ans.Enrol[0]) / m), ceilTol(float64(ans.Enrol[1]) / m)}
+		k := clustersFor(s, ans.Enrol)
 		ans.Clusters = []int{k[0], k[1]}
 		ans.WholeClusters = []int{ceilTol(float64(k[0]) * m), ceilTol(float64(k[1]) * m)}
 		if k[0] < 6 || k[1] < 6 {

@@ -34,18 +34,32 @@ func simModel(s *Spec, res *Result, sizes [2]int, null bool) (simSetup, error) {
 	// The closed form at the same sizes.
 	m := MethodByID(s.Method)
 	ec := e
+	mem := 0
 	if s.Cluster != nil {
-		ec.clusterK = [2]int{ceilTol(float64(n1) / s.Cluster.Size), ceilTol(float64(n2) / s.Cluster.Size)}
+		// The clusters recruited for these analysable sizes, each with the
+		// members left after attrition; the closed form is compared at the
+		// sizes those whole clusters bring.
+		enrol := []int{ceilTol(float64(n1) / (1 - s.Attrition)), ceilTol(float64(n2) / (1 - s.Attrition))}
+		ec.clusterK = clustersFor(s, enrol)
 		if ec.clusterK[0] < 2 || ec.clusterK[1] < 2 {
 			return unavailable("fewer than two clusters per arm")
 		}
-		// Whole clusters are simulated: compare at the sizes they bring.
-		mem := int(math.Round(s.Cluster.Size))
+		mem = max(1, int(math.Round(s.Cluster.Size*(1-s.Attrition))))
 		sizes = [2]int{ec.clusterK[0] * mem, ec.clusterK[1] * mem}
+		n1, n2 = sizes[0], sizes[1]
 		st.sizes = sizes
-		st.notes = append(st.notes, fmt.Sprintf("Whole clusters are simulated: %d and %d clusters of %d.", ec.clusterK[0], ec.clusterK[1], mem))
+		st.notes = append(st.notes, fmt.Sprintf("Whole clusters are simulated: %d and %d clusters of %d analysable members.", ec.clusterK[0], ec.clusterK[1], mem))
 	}
-	eff := [2]float64{float64(sizes[0]) / s.DesignEffect, float64(sizes[1]) / s.DesignEffect}
+	deff := s.DesignEffect
+	if s.Cluster != nil {
+		// Compare with the closed form of the clusters simulated: equal
+		// sizes of mem analysable members.
+		deff = 1 + float64(mem-1)*s.Cluster.ICC
+		if math.Abs(deff-s.DesignEffect) > 1e-9 {
+			st.notes = append(st.notes, fmt.Sprintf("The closed form is evaluated with the design effect of the simulated clusters, %.4g, in place of the plan's %.4g.", deff, s.DesignEffect))
+		}
+	}
+	eff := [2]float64{float64(sizes[0]) / deff, float64(sizes[1]) / deff}
 	if s.Pairing == "paired" {
 		eff[1] = eff[0]
 	}
@@ -75,6 +89,9 @@ func simModel(s *Spec, res *Result, sizes [2]int, null bool) (simSetup, error) {
 			if s.Test == "z-unpooled" {
 				mm = power.Blackwelder
 			}
+			if float64(n1+1)*float64(n2+1) > power.MaxTableCells {
+				return unavailable(fmt.Sprintf("the %s test's table for %d and %d is too large to build; at these sizes the closed form's normal approximation is accurate", s.Test, n1, n2))
+			}
 			var table []bool
 			if s.Hypothesis == "equivalence" {
 				table = power.EquivalenceRejectionTable(mm, n1, n2, s.Margin, e.alpha)
@@ -98,7 +115,6 @@ func simModel(s *Spec, res *Result, sizes [2]int, null bool) (simSetup, error) {
 			st.null = fmt.Sprintf("no difference (both risks %s)", trimFloat(p2))
 		}
 		if s.Cluster != nil {
-			mem := int(math.Round(s.Cluster.Size))
 			clusterNotes(s, &st, mem)
 			st.model = power.NewClusterBinary(power.ClusterBinary{K1: ec.clusterK[0], K2: ec.clusterK[1], M: mem,
 				P1: p1, P2: p2, ICC: s.Cluster.ICC, Alpha: e.alpha, Sides: sides, Dir: dir})
@@ -107,6 +123,9 @@ func simModel(s *Spec, res *Result, sizes [2]int, null bool) (simSetup, error) {
 		test, ok := power.ParseBinaryTest(s.Test)
 		if !ok {
 			return unavailable("test " + s.Test + " has no simulation")
+		}
+		if power.TooLargeForTable(test, n1, n2) {
+			return unavailable(fmt.Sprintf("Fisher's exact test at %d and %d is too large to simulate; at these sizes it agrees closely with chi-square-yates (--set test=chi-square-yates)", n1, n2))
 		}
 		st.model = power.NewTwoBinomials(power.TwoBinomials{N1: n1, N2: n2, P1: p1, P2: p2, Alpha: e.alpha, Sides: sides, Dir: dir, Test: test})
 		return st, nil
@@ -138,7 +157,6 @@ func simModel(s *Spec, res *Result, sizes [2]int, null bool) (simSetup, error) {
 			// treatment effect is half their difference.
 			st.model = power.NewTwoMeans(power.TwoMeans{N1: n1, N2: n2, Diff: diff, SD1: s.SD1 / 2, Alpha: e.alpha, Sides: sides, Dir: dir, Bound: bound})
 		case s.Cluster != nil:
-			mem := int(math.Round(s.Cluster.Size))
 			clusterNotes(s, &st, mem)
 			st.model = power.NewClusterMeans(power.ClusterMeans{K1: ec.clusterK[0], K2: ec.clusterK[1], M: mem, Diff: diff,
 				SD: s.SD1, ICC: s.Cluster.ICC, Alpha: e.alpha, Sides: sides, Dir: dir})
@@ -165,8 +183,8 @@ func simModel(s *Spec, res *Result, sizes [2]int, null bool) (simSetup, error) {
 
 // clusterNotes records how the cluster model departs from the plan.
 func clusterNotes(s *Spec, st *simSetup, mem int) {
-	if float64(mem) != s.Cluster.Size {
-		st.notes = append(st.notes, fmt.Sprintf("Clusters are simulated with %d members each (the mean size %g rounded).", mem, s.Cluster.Size))
+	if float64(mem) != s.Cluster.Size*(1-s.Attrition) {
+		st.notes = append(st.notes, fmt.Sprintf("Clusters are simulated with %d analysable members each (the mean size %g after attrition, rounded).", mem, s.Cluster.Size))
 	}
 	if s.Cluster.SizeCV > 0 {
 		st.notes = append(st.notes, "Clusters are simulated with equal sizes; the closed form includes the inflation for unequal sizes, so it is the more conservative of the two.")

@@ -48,8 +48,10 @@ type Simulation struct {
 	Power      float64   `json:"power"`
 	SE         float64   `json:"se"`
 	CI         []float64 `json:"ci"`
-	Type1Error float64   `json:"type1_error"`
-	Type1SE    float64   `json:"type1_se"`
+	// Type1Error and Type1SE are null when the null run did not happen (a
+	// run stopped early).
+	Type1Error *float64 `json:"type1_error"`
+	Type1SE    *float64 `json:"type1_se"`
 	// Type1At says where the null run sits (no difference, or the margin).
 	Type1At         string  `json:"type1_at"`
 	ClosedFormPower float64 `json:"closed_form_power"`
@@ -126,27 +128,33 @@ func Verify(ctx context.Context, s *Spec, res *Result, o SimOptions) error {
 	if n1 > 0 {
 		sizes = simSizes(s, n1)
 	}
+	t0 := now()
 	alt, err := simModel(s, res, sizes, false)
 	if err != nil {
 		return err
 	}
+	build := now().Sub(t0).Seconds()
 	null, err := simModel(s, res, sizes, true)
 	if err != nil {
 		return err
 	}
 
-	// Predict the run time from a pilot of two blocks.
+	// Predict the run time from the model's build and a pilot of two
+	// blocks: two runs, and for solve n a search of about 2 log₂ n + 4 more
+	// runs, each building its own model.
 	if o.MaxSeconds > 0 {
 		pilot := min(reps, 2*8192)
-		t0 := now()
+		t1 := now()
 		if _, err := power.Simulate(ctx, alt.model, power.SimConfig{Replicates: pilot, Seed: seed ^ 0x5eed, Workers: o.Workers}); err != nil {
+			res.Simulation = &Simulation{Test: s.Test, TestName: TestName(s.Test), Seed: seed, N: sizes[:], Partial: true}
 			return ErrStopped
 		}
-		runs := 2.0
-		if s.Solve == "n" {
-			runs += 12
+		run := now().Sub(t1).Seconds() * float64(reps) / float64(pilot)
+		predicted := 2*run + 2*build
+		if s.Solve == "n" && s.Cluster == nil {
+			searches := 2*math.Log2(float64(max(2, sizes[0]))) + 4
+			predicted += searches * (run + 2*build)
 		}
-		predicted := now().Sub(t0).Seconds() * float64(reps) / float64(pilot) * runs
 		if predicted > o.MaxSeconds {
 			return &InputError{Msg: fmt.Sprintf("%s: simulate: the run is predicted to take about %.0f s, more than --max-seconds %g; allowed: fewer replicates, or raise --max-seconds", s.File, predicted, o.MaxSeconds)}
 		}
@@ -176,24 +184,27 @@ func Verify(ctx context.Context, s *Spec, res *Result, o SimOptions) error {
 		}
 	}
 	fill(r1)
+	if r1.Replicates > 0 {
+		sim.Difference = sim.Power - sim.ClosedFormPower
+		sim.Agrees = !(math.Abs(sim.Difference) > 3*sim.SE && math.Abs(sim.Difference) > 0.01)
+	}
 	if err1 != nil {
 		sim.Partial = true
 		return ErrStopped
 	}
 	sim.Type1At = "no difference"
-	if null.null != "" {
-		sim.Type1At = null.null
-	}
-	if s.Hypothesis == "non-inferiority" {
+	switch {
+	case s.Hypothesis == "non-inferiority":
 		sim.Type1At = "the non-inferiority margin"
+	case s.Hypothesis == "equivalence":
+		sim.Type1At = "the upper equivalence margin (a true difference of +margin)"
+	case null.null != "":
+		sim.Type1At = null.null
 	}
 	r0, err0 := power.Simulate(ctx, null.model, power.SimConfig{Replicates: reps, Seed: seed + 1, Workers: o.Workers, Progress: cfg("null (type I error)").Progress})
 	if r0.Replicates > 0 {
-		sim.Type1Error = r0.Power()
-		sim.Type1SE = r0.SE()
+		sim.Type1Error, sim.Type1SE = ptr(r0.Power()), ptr(r0.SE())
 	}
-	sim.Difference = sim.Power - sim.ClosedFormPower
-	sim.Agrees = !(math.Abs(sim.Difference) > 3*sim.SE && math.Abs(sim.Difference) > 0.01)
 	if !sim.Agrees {
 		res.Warnings = append(res.Warnings, fmt.Sprintf(
 			"The simulated power of %s (%.1f%%, standard error %.1f points) and the closed form (%.1f%%) part ways here by more than 3 standard errors and 1 point: the formula is only an approximation to the planned test at these sizes; trust the simulation of the test you will run.",

@@ -39,8 +39,8 @@ func TestVerifyWorkers(t *testing.T) {
 				first = sim
 				continue
 			}
-			if sim.Power != first.Power || sim.Type1Error != first.Type1Error {
-				t.Errorf("workers %d: power %v type I %v; 1 worker: %v %v\n%s", w, sim.Power, sim.Type1Error, first.Power, first.Type1Error, spec)
+			if sim.Power != first.Power || *sim.Type1Error != *first.Type1Error {
+				t.Errorf("workers %d: power %v type I %v; 1 worker: %v %v\n%s", w, sim.Power, *sim.Type1Error, first.Power, *first.Type1Error, spec)
 			}
 		}
 	}
@@ -94,7 +94,7 @@ func TestVerifyTypeI(t *testing.T) {
 	// The exact size of this test is near 0.05 (exact_README.md gives 0.0560
 	// at 100 per group; at 200 it is closer); allow 4 SE plus 0.007.
 	se := math.Sqrt(0.05 * 0.95 / reps)
-	if got := res.Simulation.Type1Error; math.Abs(got-0.05) > 4*se+0.007 {
+	if got := *res.Simulation.Type1Error; math.Abs(got-0.05) > 4*se+0.007 {
 		t.Errorf("type I error %v", got)
 	}
 	res, err = verify(t, "version: 1\ndesign: trial\nhypothesis: non-inferiority\nhigher_is_better: true\nmargin: 0.1\ncontrol_risk: 0.8\npower: 0.8\n",
@@ -106,7 +106,7 @@ func TestVerifyTypeI(t *testing.T) {
 		t.Errorf("type I at %q", res.Simulation.Type1At)
 	}
 	se = math.Sqrt(0.025 * 0.975 / reps)
-	if got := res.Simulation.Type1Error; math.Abs(got-0.025) > 4*se+0.005 {
+	if got := *res.Simulation.Type1Error; math.Abs(got-0.025) > 4*se+0.005 {
 		t.Errorf("non-inferiority type I error %v, want about 0.025", got)
 	}
 }

@@ -182,68 +182,66 @@ func fillRejection(rej []bool, test BinaryTest, n1, n2 int, alpha float64, sides
 		fillFisher(rej, n1, n2, alpha, dir, h)
 		return
 	}
+	rule := newCellRule(test, n1, n2, alpha, sides, dir)
+	for x1 := 0; x1 <= n1; x1++ {
+		row := rej[x1*(n2+1) : (x1+1)*(n2+1)]
+		for x2 := 0; x2 <= n2; x2++ {
+			row[x2] = rule.reject(x1, x2)
+		}
+	}
+}
+
+// cellRule decides one table of the chi-square family or the unpooled z
+// test from its counts, in O(1), with the arithmetic of RejectionTable.
+type cellRule struct {
+	test         BinaryTest
+	n1, n2, dir  int
+	crit, half   float64
+	fn1, fn2, fN float64
+}
+
+func newCellRule(test BinaryTest, n1, n2 int, alpha float64, sides, dir int) cellRule {
+	if sides == 2 {
+		dir = 0
+	}
 	z := ZAlpha(alpha, sides)
 	crit := z * z
 	if z < 0 {
 		crit = 0 // one-sided alpha = 0.5: z_α is zero, a rounding below it is too
 	}
-	N := n1 + n2
-	fn1, fn2, fN := float64(n1), float64(n2), float64(N)
-	switch test {
-	case ChiSquare, ChiSquareYates:
-		// Reject when N d² > crit · n1 n2 t (N − t), d = |x1 n2 − x2 n1|
-		// (less N/2 with Yates' correction): g[t] is the right side over N.
-		g := make([]float64, N+1)
-		for t := 1; t < N; t++ {
-			g[t] = crit * fn1 * fn2 * float64(t) * float64(N-t) / fN
-		}
-		half := 0.0
-		if test == ChiSquareYates {
-			half = fN / 2
-		}
-		for x1 := 0; x1 <= n1; x1++ {
-			row := rej[x1*(n2+1) : (x1+1)*(n2+1)]
-			for x2 := 0; x2 <= n2; x2++ {
-				t := x1 + x2
-				if t == 0 || t == N {
-					continue
-				}
-				d := float64(x1*n2 - x2*n1)
-				switch {
-				case dir == 0:
-					d = math.Abs(d)
-				case dir < 0:
-					d = -d
-				}
-				d -= half
-				row[x2] = d > 0 && d*d > g[t]
-			}
-		}
-	case ZUnpooled:
-		// z² = d² n1 n2 / (n2³ x1 (n1 − x1) + n1³ x2 (n2 − x2)), d = x1 n2 − x2 n1:
-		// reject when d² > a[x1] + b[x2] (and d points the planned way).
-		a := make([]float64, n1+1)
-		for x1 := range a {
-			a[x1] = crit * fn2 * fn2 * float64(x1) * float64(n1-x1) / fn1
-		}
-		b := make([]float64, n2+1)
-		for x2 := range b {
-			b[x2] = crit * fn1 * fn1 * float64(x2) * float64(n2-x2) / fn2
-		}
-		for x1 := 0; x1 <= n1; x1++ {
-			row := rej[x1*(n2+1) : (x1+1)*(n2+1)]
-			for x2 := 0; x2 <= n2; x2++ {
-				d := float64(x1*n2 - x2*n1)
-				switch {
-				case dir == 0:
-					d = math.Abs(d)
-				case dir < 0:
-					d = -d
-				}
-				row[x2] = d > 0 && d*d > a[x1]+b[x2]
-			}
-		}
+	half := 0.0
+	if test == ChiSquareYates {
+		half = float64(n1+n2) / 2
 	}
+	return cellRule{test: test, n1: n1, n2: n2, dir: dir, crit: crit, half: half,
+		fn1: float64(n1), fn2: float64(n2), fN: float64(n1 + n2)}
+}
+
+// reject decides the table with x1 and x2 events.
+func (c *cellRule) reject(x1, x2 int) bool {
+	d := float64(x1*c.n2 - x2*c.n1)
+	switch {
+	case c.dir == 0:
+		d = math.Abs(d)
+	case c.dir < 0:
+		d = -d
+	}
+	if c.test == ZUnpooled {
+		// z² = d² n1 n2 / (n2³ x1 (n1 − x1) + n1³ x2 (n2 − x2)), d = x1 n2 − x2 n1:
+		// reject when d² > a(x1) + b(x2) (and d points the planned way).
+		a := c.crit * c.fn2 * c.fn2 * float64(x1) * float64(c.n1-x1) / c.fn1
+		b := c.crit * c.fn1 * c.fn1 * float64(x2) * float64(c.n2-x2) / c.fn2
+		return d > 0 && d*d > a+b
+	}
+	// Chi-square: reject when N d² > crit · n1 n2 t (N − t), d = |x1 n2 −
+	// x2 n1| (less N/2 with Yates' correction).
+	t := x1 + x2
+	if t == 0 || t == c.n1+c.n2 {
+		return false
+	}
+	g := c.crit * c.fn1 * c.fn2 * float64(t) * float64(c.n1+c.n2-t) / c.fN
+	d -= c.half
+	return d > 0 && d*d > g
 }
 
 // fillFisher writes Fisher's decisions, one total t = x1 + x2 at a time.

@@ -74,7 +74,41 @@ func NewTwoBinomials(c TwoBinomials) Model {
 		panic("power: each group needs at least one participant")
 	}
 	checkTest(c.Alpha, c.Sides, c.Dir)
+	if cells := float64(c.N1+1) * float64(c.N2+1); cells > MaxTableCells {
+		if c.Test == Fisher {
+			panic("power: Fisher's test is too large to tabulate; check TooLargeForTable first")
+		}
+		// Too large to tabulate: decide each replicate's table directly.
+		return &twoBinomialsDirect{t1: NewBinomialTable(c.N1, c.P1), t2: NewBinomialTable(c.N2, c.P2),
+			rule: newCellRule(c.Test, c.N1, c.N2, c.Alpha, c.Sides, c.Dir)}
+	}
 	return NewTableBinomials(c.N1, c.N2, c.P1, c.P2, RejectionTable(c.Test, c.N1, c.N2, c.Alpha, c.Sides, c.Dir))
+}
+
+// MaxTableCells is the largest rejection table (n1+1)(n2+1) the
+// two-binomial model builds (16.8 million cells, about 2 MB as a bitset);
+// beyond it the chi-square family and the unpooled z test decide each
+// replicate from its counts, and Fisher's test is not simulated.
+const MaxTableCells = 1 << 24
+
+// TooLargeForTable reports whether [NewTwoBinomials] cannot simulate the
+// test at these sizes (Fisher's test beyond [MaxTableCells]).
+func TooLargeForTable(test BinaryTest, n1, n2 int) bool {
+	return test == Fisher && float64(n1+1)*float64(n2+1) > MaxTableCells
+}
+
+// twoBinomialsDirect decides each replicate from its counts.
+type twoBinomialsDirect struct {
+	t1, t2 *BinomialTable
+	rule   cellRule
+}
+
+func (m *twoBinomialsDirect) NewWorker() Worker { return &twoBinomialsDirectWorker{m: m} }
+
+type twoBinomialsDirectWorker struct{ m *twoBinomialsDirect }
+
+func (w *twoBinomialsDirectWorker) Replicate(r *rand.Rand) bool {
+	return w.m.rule.reject(w.m.t1.Draw(r), w.m.t2.Draw(r))
 }
 
 type twoBinomialsWorker struct {

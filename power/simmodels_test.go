@@ -373,3 +373,23 @@ func BenchmarkClusterBinary(b *testing.B) {
 		})
 	}
 }
+
+// TestTwoBinomialsDirect checks that the direct decision (used beyond
+// MaxTableCells) gives the same counts as the table on the same stream.
+func TestTwoBinomialsDirect(t *testing.T) {
+	for _, test := range []BinaryTest{ChiSquare, ChiSquareYates, ZUnpooled} {
+		c := TwoBinomials{N1: 300, N2: 450, P1: 0.3, P2: 0.4, Alpha: 0.05, Sides: 2, Test: test}
+		table := NewTwoBinomials(c)
+		direct := &twoBinomialsDirect{t1: NewBinomialTable(c.N1, c.P1), t2: NewBinomialTable(c.N2, c.P2),
+			rule: newCellRule(c.Test, c.N1, c.N2, c.Alpha, c.Sides, c.Dir)}
+		cfg := SimConfig{Replicates: 50000, Seed: 9}
+		a, _ := Simulate(context.Background(), table, cfg)
+		b, _ := Simulate(context.Background(), direct, cfg)
+		if a != b {
+			t.Errorf("%v: table %+v, direct %+v", test, a, b)
+		}
+	}
+	if !TooLargeForTable(Fisher, 5000, 5000) || TooLargeForTable(ChiSquare, 5000, 5000) {
+		t.Error("TooLargeForTable")
+	}
+}

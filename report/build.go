@@ -415,10 +415,10 @@ func simulationSection(r *designs.Result) *section {
 			what = "Exact power"
 		}
 
-		s.bullets = append(s.bullets, fmt.Sprintf("%s at the same sizes: %s; the simulation differs by %+.2f points and %s", what, pct1(v.ClosedFormPower), 100*v.Difference, agree))
+		s.bullets = append(s.bullets, fmt.Sprintf("%s at the same sizes: %s; the simulation differs by %s points and %s", what, pct1(v.ClosedFormPower), signed2(100*v.Difference), agree))
 	}
-	if v.Type1SE > 0 || v.Type1Error > 0 {
-		s.bullets = append(s.bullets, fmt.Sprintf("Type I error simulated at %s: %s (standard error %.2f points), against alpha %g", v.Type1At, pct1(v.Type1Error), 100*v.Type1SE, *r.Alpha))
+	if v.Type1Error != nil {
+		s.bullets = append(s.bullets, fmt.Sprintf("Type I error simulated at %s: %s (standard error %.2f points), against alpha %g", v.Type1At, pct1(*v.Type1Error), 100**v.Type1SE, *r.Alpha))
 	}
 	if so := v.Solved; so != nil {
 		n := count(so.N[0])
@@ -433,4 +433,13 @@ func simulationSection(r *designs.Result) *section {
 	}
 	s.bullets = append(s.bullets, v.Notes...)
 	return s
+}
+
+// signed2 formats a signed number with two decimals, never "-0.00".
+func signed2(x float64) string {
+	v := fmt.Sprintf("%+.2f", x)
+	if v == "-0.00" {
+		v = "+0.00"
+	}
+	return strings.Replace(v, "-", "−", 1)
 }

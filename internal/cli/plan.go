@@ -7,6 +7,7 @@ import (
 	"io"
 	"io/fs"
 	"os"
+	"path/filepath"
 	"strings"
 
 	"github.com/spf13/cobra"
@@ -142,8 +143,28 @@ func emit(out io.Writer, path string, data []byte) error {
 		_, err := out.Write(data)
 		return err
 	}
-	if st, err := os.Stat(path); err == nil && st.IsDir() {
+	st, err := os.Stat(path)
+	switch {
+	case err == nil && st.IsDir():
 		return fmt.Errorf("cannot write %s: it is a directory; allowed: a file name", path)
+	case err == nil && !st.Mode().IsRegular():
+		// A device or a pipe (such as /dev/stdout): write to it as it is.
+		f, err := os.OpenFile(path, os.O_WRONLY, 0)
+		if err != nil {
+			return fmt.Errorf("cannot write %s: %s", path, describe(err))
+		}
+		_, werr := f.Write(data)
+		if cerr := f.Close(); werr == nil {
+			werr = cerr
+		}
+		if werr != nil {
+			return fmt.Errorf("cannot write %s: %s", path, describe(werr))
+		}
+		return nil
+	}
+	// Replace the file a symbolic link points to, not the link itself.
+	if real, err := filepath.EvalSymlinks(path); err == nil {
+		path = real
 	}
 	if err := writeAtomic(path, data); err != nil {
 		return fmt.Errorf("cannot write %s: %s", path, describe(err))
