@@ -208,9 +208,18 @@ func sizesFromEnrolment(s *Spec) (sizes, error) {
 
 func fmtSizes(n []int) string {
 	if len(n) == 2 {
-		return strconv.Itoa(n[0]) + " and " + strconv.Itoa(n[1])
+		return thousands(n[0]) + " and " + thousands(n[1])
 	}
 	return fmt.Sprint(n)
+}
+
+// thousands formats a whole number with thousands separators.
+func thousands(n int) string {
+	s := strconv.Itoa(n)
+	for i := len(s) - 3; i > 0 && s[i-1] != '-'; i -= 3 {
+		s = s[:i] + "," + s[i:]
+	}
+	return s
 }
 
 func sum(xs []int) int {
@@ -377,6 +386,9 @@ func planComparison(s *Spec, res *Result, m *MethodInfo) error {
 		fillSizes(s, ans, sz)
 		if s.Solve == "power" {
 			ans.AchievedPower = ptr(calc.power(sz.eff[0], sz.eff[1]))
+			if *ans.AchievedPower < 0.8 {
+				res.Warnings = append(res.Warnings, fmt.Sprintf("The power is %.1f%%, below the customary 80%%: the study may well miss an effect of this size.", 100**ans.AchievedPower))
+			}
 		} else {
 			ans.Detectable = detectable(s, calc, sz)
 		}
@@ -397,7 +409,11 @@ func planComparison(s *Spec, res *Result, m *MethodInfo) error {
 			for _, side := range []struct {
 				v    *float64
 				what string
-			}{{ans.Detectable.Lower, "below"}, {ans.Detectable.Upper, "above"}} {
+				dir  int
+			}{{ans.Detectable.Lower, "below", -1}, {ans.Detectable.Upper, "above", 1}} {
+				if s.Sides == 1 && side.dir != oneSidedDir(s) {
+					continue
+				}
 				if side.v == nil {
 					res.Warnings = append(res.Warnings, fmt.Sprintf(
 						"No effect %s no difference reaches %.0f%% power with these sizes%s.",
@@ -576,7 +592,13 @@ func scaleValue(key string, p1, p2 float64) float64 {
 // detectable finds the smallest detectable effect in both directions.
 func detectable(s *Spec, calc calculator, sz sizes) *Detectable {
 	d := &Detectable{Scale: s.EffectKey}
-	for _, dir := range []int{-1, 1} {
+	dirs := []int{-1, 1}
+	if s.Sides == 1 {
+		// A one-sided test detects effects on its own side only.
+		dirs = []int{oneSidedDir(s)}
+		d.Direction = map[int]string{-1: "lower", 1: "upper"}[dirs[0]]
+	}
+	for _, dir := range dirs {
 		v, e, err := calc.detect(sz.eff[0], sz.eff[1], s.Power, dir)
 		if err != nil {
 			continue
@@ -588,6 +610,26 @@ func detectable(s *Spec, calc calculator, sz sizes) *Detectable {
 		}
 	}
 	return d
+}
+
+// oneSidedDir is the direction a one-sided test looks: −1 when the first
+// group is expected lower (risk, mean or hazard), +1 otherwise.
+func oneSidedDir(s *Spec) int {
+	switch s.Outcome {
+	case "continuous":
+		if s.MeanDiff < 0 {
+			return -1
+		}
+	case "time-to-event":
+		if s.HazardRatio < 1 {
+			return -1
+		}
+	default:
+		if s.P1 < s.P2 {
+			return -1
+		}
+	}
+	return 1
 }
 
 // smallCells warns when an expected cell count is small.
@@ -617,8 +659,9 @@ func methodTestNotes(s *Spec, res *Result) {
 
 // commonNotes adds notes on interpretation.
 func commonNotes(s *Spec, res *Result) {
-	if s.Design != "case-control" && s.Outcome == "binary" {
-		res.Notes = append(res.Notes, "The odds ratio approximates the risk ratio only when the outcome is rare (below about 10% in both groups).")
+	if s.Design != "case-control" && s.Outcome == "binary" && math.Max(s.P1, s.P2) > 0.1 && s.P1 != s.P2 {
+		res.Notes = append(res.Notes, fmt.Sprintf("The outcome is not rare (up to %.0f%%): the odds ratio (%.3g) lies further from 1 than the risk ratio (%.3g) and should not be read as one.",
+			100*math.Max(s.P1, s.P2), power.OddsRatio(s.P1, s.P2), s.P1/s.P2))
 	}
 	switch {
 	case s.Method == "t":
@@ -629,13 +672,16 @@ func commonNotes(s *Spec, res *Result) {
 		res.Notes = append(res.Notes, "The closed-form power counts rejections in the direction of the planned effect only, as the published formulas do; for a two-sided test the other direction adds at most alpha/2.")
 	}
 	if s.DesignEffect > 1 {
-		res.Notes = append(res.Notes, fmt.Sprintf("The design effect of %g inflates each group's size; power is evaluated at the effective sizes (analysable participants divided by the design effect).", s.DesignEffect))
+		res.Notes = append(res.Notes, fmt.Sprintf("The design effect of %.4g inflates each group's size; power is evaluated at the effective sizes (analysable participants divided by the design effect).", s.DesignEffect))
 	}
 	res.Order = []string{
 		"n* = the unrounded size of the first group from the formula; the second group has ratio x n*",
 		"analysable per group = ceil(n* x design_effect), the second group ceil(ratio x n* x design_effect)",
 		"enrolment per group = ceil(analysable / (1 - attrition))",
 		"totals are the sums of the groups; achieved power is evaluated at analysable / design_effect",
+	}
+	if s.Outcome == "time-to-event" && s.Solve == "n" {
+		res.Order = append([]string{"events D from the formula, rounded up; n* = D / (P1 + ratio x P2) with each arm's probability of an observed event"}, res.Order[1:]...)
 	}
 	if s.Solve != "n" {
 		res.Order = []string{
@@ -686,7 +732,7 @@ func planPrecision(s *Spec, res *Result) error {
 		res.Warnings = append(res.Warnings, "Fewer than 10 expected cases (or non-cases) among the effective respondents: the Wald interval is unreliable here.")
 	}
 	if s.DesignEffect > 1 {
-		res.Notes = append(res.Notes, fmt.Sprintf("The design effect of %g multiplies the simple-random-sampling size.", s.DesignEffect))
+		res.Notes = append(res.Notes, fmt.Sprintf("The design effect of %.4g multiplies the simple-random-sampling size.", s.DesignEffect))
 	}
 	res.Order = []string{
 		"n0 = z^2 p (1 - p) / margin^2 (simple random sampling)",

@@ -147,7 +147,10 @@ type Effect struct {
 // Detectable is the smallest effect detectable in each direction, on the
 // scale of the specification's effect key. A nil side cannot be reached.
 type Detectable struct {
-	Scale       string   `json:"scale"`
+	Scale string `json:"scale"`
+	// Direction is "lower" or "upper" for a one-sided test, which detects
+	// effects on its own side only; empty for a two-sided test.
+	Direction   string   `json:"direction,omitempty"`
 	Lower       *float64 `json:"lower"`
 	Upper       *float64 `json:"upper"`
 	LowerEffect *Effect  `json:"lower_effect,omitempty"`

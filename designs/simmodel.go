@@ -28,7 +28,7 @@ func simModel(s *Spec, res *Result, sizes [2]int, null bool) (simSetup, error) {
 		// sizes of simple random samples.
 		n1 = max(2, int(math.Round(float64(n1)/s.DesignEffect)))
 		n2 = max(2, int(math.Round(float64(n2)/s.DesignEffect)))
-		st.notes = append(st.notes, fmt.Sprintf("The design effect of %g is simulated as simple random samples of the effective sizes %d and %d.", s.DesignEffect, n1, n2))
+		st.notes = append(st.notes, fmt.Sprintf("The design effect of %.4g is simulated as simple random samples of the effective sizes %d and %d.", s.DesignEffect, n1, n2))
 	}
 
 	// The closed form at the same sizes.

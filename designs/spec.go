@@ -541,6 +541,15 @@ func joinWords(words []string, conj string) string {
 func (r *reader) given() []Given {
 	var out []Given
 	for _, e := range r.order {
+		if e.key == "cluster" {
+			// The cluster settings are assumptions too.
+			for _, sub := range []string{"size", "icc", "size_cv"} {
+				if se := r.nested["cluster"][sub]; se != nil && se.node.Kind == yaml.ScalarNode {
+					out = append(out, Given{Key: "cluster." + sub, Value: se.node.Value})
+				}
+			}
+			continue
+		}
 		if e.node.Kind != yaml.ScalarNode {
 			continue
 		}

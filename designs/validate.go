@@ -397,7 +397,14 @@ func (r *reader) effectToP1(s *Spec, e *entry) error {
 		p1 = x
 	}
 	if s.Solve == "effect" {
-		// The value only names the scale.
+		// The value only names the scale, and for a one-sided test the
+		// direction the test looks.
+		if p1 > 0 && p1 < 1 {
+			s.P1 = p1
+		}
+		if s.Sides == 1 && !(p1 > 0 && p1 < 1 && math.Abs(p1-p2) > 1e-12) {
+			return r.errAt(e, "%s gives no direction, and a one-sided test looks one way; allowed: a value on the side the test looks (e.g. a ratio below 1 for a lower risk in the %s)", e.node.Value, roles[s.Design].first)
+		}
 		return nil
 	}
 	ro := roles[s.Design]

@@ -486,6 +486,9 @@ func (r *reader) buildContinuous(s *Spec) error {
 	if effectEntry == nil {
 		effectEntry = fe
 	}
+	if s.Solve == "effect" && s.Sides == 1 && s.MeanDiff == 0 && effectEntry != nil {
+		return r.errAt(effectEntry, "0 gives no direction, and a one-sided test looks one way; allowed: a value on the side the test looks (e.g. -1 for a lower mean in the first group)")
+	}
 	if s.Hypothesis == "superiority" && s.MeanDiff == 0 && s.Solve != "effect" {
 		return r.errAt(effectEntry, "means no difference between the groups: nothing to detect; allowed: a difference other than 0 (or solve: effect)")
 	}
@@ -586,6 +589,9 @@ func (r *reader) buildSurvival(s *Spec) error {
 	}
 	if !(hr > 0) || math.IsInf(hr, 0) {
 		return r.errAt(he, "%s is out of range; allowed: a number above 0", he.node.Value)
+	}
+	if hr == 1 && s.Solve == "effect" && s.Sides == 1 {
+		return r.errAt(he, "1 gives no direction, and a one-sided test looks one way; allowed: a value on the side the test looks (e.g. 0.8 for a lower hazard)")
 	}
 	if hr == 1 && s.Solve != "effect" {
 		return r.errAt(he, "1 means no difference between the arms: nothing to detect; allowed: a hazard ratio other than 1 (or solve: effect)")

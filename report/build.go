@@ -34,6 +34,8 @@ var keyLabels = map[string]string{
 	"dropout": "dropout per time unit", "non_adherence": "non-adherence (intervention arm)",
 	"contamination": "contamination (control arm)", "arms": "arms", "higher_is_better": "higher is better",
 	"hypothesis": "hypothesis", "pairing": "pairing", "comparisons": "comparisons",
+	"cluster.size": "mean cluster size", "cluster.icc": "intracluster correlation (ICC)",
+	"cluster.size_cv": "coefficient of variation of cluster sizes", "n_second": "enrolment, second group",
 }
 
 func keyLabel(k string) string {
@@ -71,6 +73,16 @@ func build(r *designs.Result) *document {
 	d := &document{title: r.Title}
 	what := map[string]string{"cohort": "cohort study", "case-control": "unmatched case-control study",
 		"trial": "parallel-group randomised trial", "cross-sectional": "cross-sectional survey"}[r.Design]
+	switch {
+	case r.Spec.Pairing == "crossover":
+		what = "two-period crossover trial"
+	case r.Spec.Pairing == "paired" && r.Design == "trial":
+		what = "paired randomised trial"
+	case r.Spec.Pairing == "paired":
+		what = "paired (before-after or matched) study"
+	case r.Spec.Cluster != nil:
+		what = "cluster-randomised trial"
+	}
 	solved := map[string]string{"n": "sample size", "power": "power", "effect": "smallest detectable effect"}[r.Solve]
 	if r.Goal == "precision" && r.Solve == "effect" {
 		solved = "achievable precision"
@@ -175,7 +187,7 @@ func answerSection(r *designs.Result) section {
 	if r.Goal == "precision" {
 		if r.Solve == "n" {
 			s.bullets = append(s.bullets,
-				fmt.Sprintf("**Respondents needed: %s** (unrounded %.2f; %.2f before design effect and finite population correction)", count(a.Total), a.NStar, a.N0),
+				fmt.Sprintf("**Respondents needed: %s** (unrounded %.2f; n₀ = %.2f before design effect and finite population correction)", count(a.Total), a.NStar, a.N0),
 				fmt.Sprintf("**People to invite: %s**, allowing for %s non-response", count(a.EnrolTotal), pct(r.Attrition)),
 				fmt.Sprintf("Margin: ±%s at %s confidence", strings.TrimSuffix(pct(*a.Margin), "%")+" percentage points", pct(r.Spec.Confidence)))
 		} else {
@@ -187,10 +199,24 @@ func answerSection(r *designs.Result) section {
 	}
 	first, second := r.FirstGroup, r.SecondGroup
 	groups := func(n []int) string {
-		if len(n) == 1 {
+		switch {
+		case len(n) == 1:
 			return sizeList(n, r)
+		case r.Spec.Cluster != nil:
+			return fmt.Sprintf("%s participants in the %s and %s in the %s", count(n[0]), first, count(n[1]), second)
 		}
 		return members(n[0], first) + " and " + members(n[1], second)
+	}
+	// total ends a line of group sizes: ", N in total" (nothing more for
+	// pairs, which are their own total).
+	total := func(n int) string {
+		switch {
+		case r.Spec.Pairing == "paired":
+			return ""
+		case a.Arms > 2:
+			return ", " + count(n) + " in total over all arms"
+		}
+		return ", " + count(n) + " in total"
 	}
 	per := ""
 	if a.Arms > 2 {
@@ -199,8 +225,8 @@ func answerSection(r *designs.Result) section {
 	switch r.Solve {
 	case "n":
 		s.bullets = append(s.bullets,
-			fmt.Sprintf("**Analysable%s: %s, %s in total**", per, groups(a.N), count(a.Total)),
-			fmt.Sprintf("**Enrolment target%s: %s, %s in total**", per, groups(a.Enrol), count(a.EnrolTotal)),
+			fmt.Sprintf("**Analysable%s: %s%s**", per, groups(a.N), total(a.Total)),
+			fmt.Sprintf("**Enrolment target%s: %s%s**", per, groups(a.Enrol), total(a.EnrolTotal)),
 			fmt.Sprintf("Achieved power at the analysable sizes: %s (target %s)", pct1(*a.AchievedPower), pct1(*r.Power)))
 		if a.NStar > 0 {
 			s.bullets = append(s.bullets, fmt.Sprintf("Unrounded size of the first group from the method: %.2f", a.NStar))
@@ -208,8 +234,8 @@ func answerSection(r *designs.Result) section {
 	case "power":
 		s.bullets = append(s.bullets,
 			fmt.Sprintf("**Power: %s**", pct1(*a.AchievedPower)),
-			fmt.Sprintf("Enrolled%s: %s, %s in total", per, groups(a.Enrol), count(a.EnrolTotal)),
-			fmt.Sprintf("Analysable after %s attrition: %s, %s in total", pct(r.Attrition), sizeList(a.N, r), count(a.Total)))
+			fmt.Sprintf("Enrolled%s: %s%s", per, groups(a.Enrol), total(a.EnrolTotal)),
+			fmt.Sprintf("Analysable after %s attrition: %s%s", pct(r.Attrition), sizeList(a.N, r), total(a.Total)))
 	case "effect":
 		det := a.Detectable
 		scale := keyLabel(det.Scale)
@@ -218,6 +244,9 @@ func answerSection(r *designs.Result) section {
 			e    *designs.Effect
 			name string
 		}{{det.Lower, det.LowerEffect, "below no difference"}, {det.Upper, det.UpperEffect, "above no difference"}} {
+			if det.Direction != "" && (det.Direction == "lower") != strings.HasPrefix(side.name, "below") {
+				continue // a one-sided test does not look this way
+			}
 			if side.v == nil {
 				s.bullets = append(s.bullets, fmt.Sprintf("%s: cannot be reached with these sizes", capitalise(side.name)))
 				continue
@@ -292,9 +321,16 @@ func effectSection(r *designs.Result) *section {
 	}
 	s := &section{heading: "The planned effect on every scale"}
 	if e.MeanDifference != nil {
-		s.bullets = []string{
-			fmt.Sprintf("Difference in means (%s minus %s): %s", r.FirstGroup, r.SecondGroup, num(*e.MeanDifference)),
-			fmt.Sprintf("In standard deviations (Cohen's d): %s", num(*e.StandardizedDifference)),
+		if r.Spec.Pairing != "" {
+			s.bullets = []string{
+				fmt.Sprintf("Mean within-participant difference: %s", num(*e.MeanDifference)),
+				fmt.Sprintf("In standard deviations of that difference (d_z): %s", num(*e.StandardizedDifference)),
+			}
+		} else {
+			s.bullets = []string{
+				fmt.Sprintf("Difference in means (%s minus %s): %s", r.FirstGroup, r.SecondGroup, num(*e.MeanDifference)),
+				fmt.Sprintf("In standard deviations of the outcome (Cohen's d): %s", num(*e.StandardizedDifference)),
+			}
 		}
 		if d := r.Result.DilutedEffect; d != nil {
 			s.bullets = append(s.bullets, fmt.Sprintf("Seen by an intention-to-treat analysis after dilution: %s", num(*d.MeanDifference)))

@@ -24,7 +24,7 @@ func num(x float64) string {
 }
 
 func numASCII(x float64) string {
-	if x == math.Trunc(x) && math.Abs(x) < 1e6 {
+	if x == math.Trunc(x) && math.Abs(x) < 1e15 {
 		return strconv.FormatFloat(x, 'f', -1, 64)
 	}
 	s := strconv.FormatFloat(x, 'g', 3, 64)

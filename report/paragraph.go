@@ -236,6 +236,9 @@ func survivalText(s *designs.Spec) string {
 
 // singular drops a plural s from a time unit: months → month.
 func singular(unit string) string {
+	if unit == "" {
+		return unit
+	}
 	if strings.HasSuffix(unit, "s") && unit != "time units" {
 		return strings.TrimSuffix(unit, "s")
 	}
@@ -392,7 +395,11 @@ func conclude(b *strings.Builder, r *designs.Result) {
 		if a.ExpectedEvents != nil {
 			fmt.Fprintf(b, ", and is expected to yield %.1f events", *a.ExpectedEvents)
 		}
-		fmt.Fprintf(b, ". Under these assumptions %s gives a power of %s. ", method, pct1(*a.AchievedPower))
+		if s.Cluster != nil && a.Clusters != nil {
+			fmt.Fprintf(b, ". Under these assumptions a t test on the cluster summaries (%d degrees of freedom) has a power of %s. ", a.Clusters[0]+a.Clusters[1]-2, pct1(*a.AchievedPower))
+		} else {
+			fmt.Fprintf(b, ". Under these assumptions %s gives a power of %s. ", method, pct1(*a.AchievedPower))
+		}
 		clusterSentence(b, r)
 	case "effect":
 		fmt.Fprintf(b, "With %s enrolled (%s analysable", enrolList(r), sizeList(a.N, r))
@@ -409,7 +416,7 @@ func conclude(b *strings.Builder, r *designs.Result) {
 			if side.v == nil {
 				continue
 			}
-			text := fmt.Sprintf("a %s of %s", keyLabel(det.Scale), valueOn(det.Scale, *side.v))
+			text := fmt.Sprintf("%s %s of %s", article(keyLabel(det.Scale)), keyLabel(det.Scale), valueOn(det.Scale, *side.v))
 			if side.e != nil && (side.e.FirstRisk != nil || side.e.CaseExposure != nil) {
 				text += " (" + restateShort(r, side.e) + ")"
 			}
@@ -534,7 +541,7 @@ func precisionParagraph(r *designs.Result) string {
 		outcome, pct(s.ExpectedPrevalence), source(r, "expected_prevalence"), pct(s.Confidence))
 	marg := strings.TrimSuffix(pct(*a.Margin), "%")
 	if r.Solve == "n" {
-		fmt.Fprintf(&b, "For a margin of ±%s percentage points, simple random sampling needs n₀ = %.1f respondents (unrounded)", marg, a.N0)
+		fmt.Fprintf(&b, "For a margin of ±%s percentage points, simple random sampling needs n₀ = %.2f respondents (unrounded)", marg, a.N0)
 		if r.DesignEff > 1 {
 			fmt.Fprintf(&b, "; the design effect of %g%s raises this", r.DesignEff, source(r, "design_effect"))
 		}
@@ -558,6 +565,14 @@ func precisionParagraph(r *designs.Result) string {
 		fmt.Fprintf(&b, ", the estimate will lie within ±%s percentage points of the true prevalence at that confidence level.", marg)
 	}
 	return b.String()
+}
+
+// article returns "an" before a vowel and "a" otherwise.
+func article(word string) string {
+	if word != "" && strings.ContainsAny(word[:1], "aeiouAEIOU") {
+		return "an"
+	}
+	return "a"
 }
 
 // members phrases a group size: "734 in the follow-up arm" for a label that

@@ -49,7 +49,7 @@ type SimFlags struct {
 func addSimFlags(cmd *cobra.Command, f *SimFlags) {
 	cmd.Flags().IntVar(&f.Workers, "workers", 0, "goroutines for the simulation (0: one per core); the result does not depend on it")
 	cmd.Flags().BoolVarP(&f.Quiet, "quiet", "q", false, "no progress bar on standard error")
-	cmd.Flags().Float64Var(&f.MaxSeconds, "max-seconds", 600, "refuse a simulation predicted to take longer than this")
+	cmd.Flags().Float64Var(&f.MaxSeconds, "max-seconds", 600, "refuse a simulation predicted to take longer than this many seconds (0: no limit)")
 	cmd.Flags().Int64Var(&f.Replicates, "replicates", 0, "override simulate.replicates")
 	cmd.Flags().Int64Var(&f.Seed, "seed", -1, "override simulate.seed (a whole number of at least 0)")
 	cmd.Flags().Int64Var(&f.MaxReplicates, "max-replicates", 1_000_000_000, "refuse more replicates than this unless raised")

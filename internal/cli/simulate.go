@@ -78,6 +78,12 @@ func simulate(spec *designs.Spec, res *designs.Result, opts *PlanOptions) error 
 	if f.Workers < 0 {
 		return &inputError{msg: "--workers: allowed: 0 (one per core) or more"}
 	}
+	if f.MaxSeconds < 0 {
+		return &inputError{msg: fmt.Sprintf("--max-seconds: %g is out of range; allowed: 0 (no limit) or more", f.MaxSeconds)}
+	}
+	if f.Replicates < 0 {
+		return &inputError{msg: fmt.Sprintf("--replicates: %d is out of range; allowed: at least 100 (0 keeps the specification's)", f.Replicates)}
+	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
 	if !f.Quiet && isTerminal(opts.IO.ErrOut) {
