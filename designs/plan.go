@@ -364,7 +364,7 @@ func planComparison(s *Spec, res *Result, m *MethodInfo) error {
 				}
 			}
 		}
-		if len(differ) > 0 {
+		if len(differ) > 0 && m.ID != "exact" {
 			res.Warnings = append(res.Warnings, fmt.Sprintf(
 				"The choice of formula matters here: %s asks for %s (%s), while %s. The difference exceeds one participant per group.",
 				m.Name, fmtSizes(main.sz.n), groupsPhrase(s, res), andList(differ)))

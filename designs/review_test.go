@@ -83,3 +83,27 @@ func TestReviewClusterAttrition(t *testing.T) {
 		}
 	}
 }
+
+// TestReviewOneSidedEffect: a one-sided test's detectable effect lies on its
+// own side only.
+func TestReviewOneSidedEffect(t *testing.T) {
+	res := mustPlan(t, "version: 1\ndesign: trial\nsolve: effect\nn: 200\ncontrol_risk: 0.3\nrisk_ratio: 0.8\nsides: 1\npower: 0.8\n")
+	d := res.Result.Detectable
+	if d.Direction != "lower" || d.Lower == nil || d.Upper != nil {
+		t.Errorf("detectable %+v", d)
+	}
+	if _, err := Parse("s.yaml", []byte("version: 1\ndesign: trial\nsolve: effect\nn: 200\ncontrol_risk: 0.3\nrisk_ratio: 1\nsides: 1\npower: 0.8\n"), nil); err == nil {
+		t.Error("a one-sided effect solve without a direction was accepted")
+	}
+}
+
+// TestReviewClusterZ: with method z a cluster plan still reaches the target
+// in the cluster-level t test (t distribution on k1 + k2 − 2 df).
+func TestReviewClusterZ(t *testing.T) {
+	spec := "version: 1\ndesign: trial\noutcome: continuous\nmethod: z\nalpha: 0.042\nsides: 1\npower: 0.798\ncluster: {size: 31.7, icc: 0.147, size_cv: 0.17}\nmean_difference: 7.191\nsd: 8.11\n"
+	res := mustPlan(t, spec)
+	withT := mustPlan(t, strings.Replace(spec, "method: z", "method: t", 1))
+	if res.Result.N[0] != withT.Result.N[0] || *res.Result.AchievedPower < 0.798 {
+		t.Errorf("z cluster plan %v (power %v), t cluster plan %v", res.Result.N, *res.Result.AchievedPower, withT.Result.N)
+	}
+}
