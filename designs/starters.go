@@ -23,8 +23,10 @@ func Starter(design, goal, outcome string) ([]byte, error) {
 	case outcome == "" || outcome == "binary":
 	case design == "trial" && (outcome == "continuous" || outcome == "time-to-event"):
 		name = "trial-" + outcome
+	case design == "cohort" && outcome == "continuous":
+		name = "cohort-continuous"
 	default:
-		return nil, fmt.Errorf("outcome %q; allowed: binary, or continuous and time-to-event with design trial", outcome)
+		return nil, fmt.Errorf("outcome %q; allowed: binary, continuous (trial or cohort) or time-to-event (trial)", outcome)
 	}
 	data, err := starters.ReadFile("starters/" + name + ".yaml")
 	if err != nil {
