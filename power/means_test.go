@@ -186,9 +186,9 @@ func TestMeansTTestNReference(t *testing.T) {
 // TestNoncentralTCDFReference checks gonum's distuv.NoncentralT.CDF, on
 // which TTestPower is built, against trials_pt.tsv's value_quad column: an
 // independent quadrature in R (script trials_make.R), confirmed by a second
-// one in scipy to 1.7e-13 relative. An upper tail is taken the way
-// means.go takes it, by the reflection P(T'(ncp) > q) = P(T'(−ncp) < −q),
-// and also as the plain complement 1 − CDF(q).
+// one in scipy to 1.7e-13 relative. An upper tail is checked both by the
+// reflection P(T'(ncp) > q) = P(T'(−ncp) < −q) and as the plain complement
+// 1 − CDF(q), which means.go uses below noncentrality 30.
 func TestNoncentralTCDFReference(t *testing.T) {
 	// AS 243 (which gonum implements) sums its series until the error
 	// bound is below 1e-12 absolute; the largest difference seen on these
