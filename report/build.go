@@ -384,7 +384,7 @@ func effectSection(r *designs.Result) *section {
 
 func alternativeSection(r *designs.Result) section {
 	s := section{heading: "Other applicable methods"}
-	s.paras = []string{fmt.Sprintf("The chosen method is %s (%s). The same question answered by the other methods that serve this design:", r.MethodName, r.Short)}
+	s.paras = []string{fmt.Sprintf("The chosen method: %s (%s). The same question answered by the other methods that serve this design:", r.MethodName, r.Short)}
 	for _, alt := range r.Alternatives {
 		var line string
 		switch r.Solve {
