@@ -25,7 +25,6 @@ type effects struct {
 	diff     float64 // continuous
 	hr       float64 // time-to-event
 	diluted  bool
-	factor   float64 // 1 − non_adherence − contamination
 	alpha    float64 // per comparison (Bonferroni over the arms)
 	clusterK [2]int  // clusters per arm, for a cluster-level t test (0: none)
 }
@@ -33,16 +32,16 @@ type effects struct {
 // plannedEffects applies the dilution of an intention-to-treat analysis and
 // the multiplicity correction.
 func plannedEffects(s *Spec) effects {
-	e := effects{p1: s.P1, p2: s.P2, diff: s.MeanDiff, hr: s.HazardRatio, factor: 1, alpha: s.Alpha}
+	e := effects{p1: s.P1, p2: s.P2, diff: s.MeanDiff, hr: s.HazardRatio, alpha: s.Alpha}
 	if s.NonAdherence > 0 || s.Contamination > 0 {
 		e.diluted = true
 		na, c := s.NonAdherence, s.Contamination
-		e.factor = 1 - na - c
+		factor := 1 - na - c
 		e.p1 = (1-na)*s.P1 + na*s.P2
 		e.p2 = (1-c)*s.P2 + c*s.P1
-		e.diff = s.MeanDiff * e.factor
+		e.diff = s.MeanDiff * factor
 		if s.HazardRatio > 0 {
-			e.hr = math.Exp(math.Log(s.HazardRatio) * e.factor)
+			e.hr = math.Exp(math.Log(s.HazardRatio) * factor)
 		}
 	}
 	if k := comparisons(s); k > 1 {

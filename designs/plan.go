@@ -222,14 +222,6 @@ func thousands(n int) string {
 	return s
 }
 
-func sum(xs []int) int {
-	t := 0
-	for _, x := range xs {
-		t += x
-	}
-	return t
-}
-
 // solved is one method's answer at the rounded sizes.
 type solved struct {
 	nstar float64

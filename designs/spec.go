@@ -118,8 +118,6 @@ type Spec struct {
 
 	// Ignored lists keys given but not used by this solve, with the reason.
 	Ignored []string
-
-	lines map[string]int
 }
 
 // SimulateSpec is the simulate block: how to verify the plan by simulation.

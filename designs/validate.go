@@ -10,9 +10,6 @@ import (
 // Designs lists the study designs of specification version 1.
 var Designs = []string{"cohort", "case-control", "trial", "cross-sectional"}
 
-// testsBinary lists the planned analyses of a two-group binary comparison.
-var testsBinary = []string{"chi-square", "chi-square-yates", "fisher", "z-unpooled"}
-
 // build validates the collected keys into a Spec.
 func (r *reader) build() (*Spec, error) {
 	s := &Spec{Sources: r.sourceMap()}
