@@ -308,31 +308,8 @@ func (m MarginMethod) EquivalenceN(p1, p2, r, margin, alpha, power float64) (flo
 	if f(0) >= 0 {
 		return math.NaN(), ErrUnreachable
 	}
-	// Upper end: each one-sided power at least (1 + power)/2.
-	hi := 0.0
-	for _, d0 := range []float64{-margin, margin} {
-		n, err := m.NonInferiorityN(p1, p2, r, d0, alpha, (1+power)/2)
-		if err == nil {
-			hi = math.Max(hi, n)
-		}
-	}
-	if hi == 0 {
-		hi = 1
-	}
-	// Guard against rounding at the bound itself.
-	for i := 0; f(hi) < 0; i++ {
-		if i == 64 {
-			return math.NaN(), ErrUnreachable
-		}
-		hi *= 2
-	}
-	// Lower end: each one-sided power at most the target.
-	lo := 0.0
-	for _, d0 := range []float64{-margin, margin} {
-		n, err := m.NonInferiorityN(p1, p2, r, d0, alpha, power)
-		if err == nil && n < hi && f(n) < 0 {
-			lo = math.Max(lo, n)
-		}
-	}
-	return FindRoot(f, lo, hi, 1e-12*hi)
+	bounds := [2]float64{-margin, margin}
+	return equivalenceRoot(f, power, func(i int, pw float64) (float64, error) {
+		return m.NonInferiorityN(p1, p2, r, bounds[i], alpha, pw)
+	})
 }
