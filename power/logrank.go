@@ -208,32 +208,111 @@ type logRankModel struct {
 	n1, n2     int
 	mean1      float64 // 1/h1
 	mean2      float64 // 1/h2
+	cross1     float64 // share of group 1 with hazard h2
+	cross2     float64 // share of group 2 with hazard h1
 	meanDrop   float64 // 1/dropout hazard, 0 for none
 	accrual    float64
 	end        float64 // accrual + follow-up
 	scale      float64 // fixed-point time units per time unit
-	crit2      float64 // squared critical value
+	crit2      float64 // squared critical value (superiority)
 	sides, dir int
+	test       lrTest
+	z          float64 // one-sided critical value (margin tests)
+	lnM        float64 // ln Margin (margin tests)
+}
+
+// lrTest is the hypothesis a simulated log-rank analysis tests.
+type lrTest int
+
+const (
+	lrSuperiority    lrTest = iota // H0: HR = 1
+	lrNonInferiority               // H0: HR = Margin, one-sided
+	lrEquivalence                  // two one-sided tests at 1/Margin and Margin
+)
+
+// SurvivalSim describes a simulated two-arm survival study analysed with
+// the log-rank test; see [NewSurvivalSim].
+type SurvivalSim struct {
+	// N1 and N2 are the group sizes; each at least 1.
+	N1, N2 int
+	// H1 and H2 are the hazards of each arm's own treatment, positive and
+	// finite; the hazard ratio is H1/H2.
+	H1, H2 float64
+	// Cross1 is the fraction of group 1 whose hazard is H2 (non-adherence),
+	// Cross2 the fraction of group 2 whose hazard is H1 (contamination).
+	// Each participant crosses independently with that probability. Both
+	// must be in [0, 1]; 0 for none.
+	Cross1, Cross2 float64
+	// Entry is recruitment, follow-up and loss to follow-up.
+	Entry Entry
+	// Alpha is the level in (0, 1): of the test with Sides sides for
+	// superiority, of each one-sided test with a margin.
+	Alpha float64
+	// Sides (1 or 2) and Dir (−1 or +1 when one-sided) set a superiority
+	// test as in [NewSurvivalModel]. With a margin, Sides must be 1 and
+	// Dir 0 or the margin's side (−1 when Margin > 1, +1 when Margin < 1);
+	// with Equivalence, Dir must be 0.
+	Sides, Dir int
+	// Margin, when not 0 or 1, makes the test one of H0: HR = Margin,
+	// positive and finite, on the Peto log-hazard-ratio estimate U/V (U =
+	// O1 − E1, V the log-rank variance):
+	//
+	//	Z = (U − V ln M)/√V
+	//
+	// one-sided at level Alpha, rejecting for Z < −z when M > 1 (a lower
+	// hazard is better) and Z > z when M < 1, z = [ZAlpha](Alpha, 1).
+	Margin float64
+	// Equivalence, with Margin M > 1, rejects when both
+	// (U − V ln(1/M))/√V > z and (U − V ln M)/√V < −z: two one-sided tests
+	// of the interval (1/M, M), each at level Alpha.
+	Equivalence bool
 }
 
 // NewSurvivalModel returns the Monte-Carlo model of a two-arm survival
 // study analysed with the log-rank test, the setting of Schoenfeld's
-// events formula. Each replicate draws, for each of n1 participants of
-// group 1 and n2 of group 2, an entry time uniform on [0, e.Accrual), an
-// exponential event time with hazard h1 (group 1) or h2 (group 2), and an
-// exponential dropout time with hazard e.Dropout (none when 0). It
-// observes the earliest of the event, the dropout and the administrative
-// end e.Accrual + e.FollowUp − entry, an event only when the event comes
-// first. Exponentials use [rand.Rand.ExpFloat64], the ziggurat method of
-// Marsaglia G, Tsang WW (2000), J Stat Softw 5(8).
+// events formula: [NewSurvivalSim] with no crossing-over and no margin,
 //
-// The test is the log-rank test of [LogRankTest]. Two-sided (sides 2),
-// it rejects when the chi-square exceeds qchisq(1 − alpha, 1) = z², z =
-// [ZAlpha](alpha, 2), and dir is ignored. One-sided (sides 1), it rejects
-// when the signed statistic Z = (O − E)/√V of group 1 is beyond z =
-// [ZAlpha](alpha, 1) in direction dir: dir −1 rejects for Z < −z (group 1
-// has fewer events than expected: hazard ratio h1/h2 below 1), dir +1 for
-// Z > z.
+//	NewSurvivalSim(SurvivalSim{N1: n1, N2: n2, H1: h1, H2: h2, Entry: e, Alpha: alpha, Sides: sides, Dir: dir})
+//
+// It panics as NewSurvivalSim does.
+func NewSurvivalModel(n1, n2 int, h1, h2 float64, e Entry, alpha float64, sides, dir int) Model {
+	return NewSurvivalSim(SurvivalSim{N1: n1, N2: n2, H1: h1, H2: h2, Entry: e, Alpha: alpha, Sides: sides, Dir: dir})
+}
+
+// NewSurvivalSim returns the Monte-Carlo model of a two-arm survival
+// study analysed with the log-rank test. Each replicate draws, for each of
+// c.N1 participants of group 1 and c.N2 of group 2, whether the
+// participant crosses over (a uniform, drawn only when the group's
+// crossing fraction is above 0), an entry time uniform on
+// [0, Entry.Accrual), an exponential event time with the hazard of the
+// treatment received (group 1: H1, or H2 after crossing; group 2: H2, or
+// H1), and an exponential dropout time with hazard Entry.Dropout (none
+// when 0). It observes the earliest of the event, the dropout and the
+// administrative end Entry.Accrual + Entry.FollowUp − entry, an event only
+// when the event comes first. Participants are analysed in the group they
+// were randomised to (intention to treat), so crossing-over dilutes the
+// hazard ratio, and hazards are no longer proportional. Exponentials use
+// [rand.Rand.ExpFloat64], the ziggurat method of Marsaglia G, Tsang WW
+// (2000), J Stat Softw 5(8).
+//
+// The superiority test (Margin 0 or 1) is the log-rank test of
+// [LogRankTest]. Two-sided (Sides 2), it rejects when the chi-square
+// exceeds qchisq(1 − Alpha, 1) = z², z = [ZAlpha](Alpha, 2), and Dir is
+// ignored. One-sided (Sides 1), it rejects when the signed statistic Z =
+// (O − E)/√V of group 1 is beyond z = [ZAlpha](Alpha, 1) in direction Dir:
+// Dir −1 rejects for Z < −z (group 1 has fewer events than expected:
+// hazard ratio H1/H2 below 1), Dir +1 for Z > z.
+//
+// With a margin M (see [SurvivalSim]) the statistic is the Peto one-step
+// estimate of the log hazard ratio, U/V, whose standard error is taken as
+// 1/√V, tested against ln M. It is the test whose power Schoenfeld's
+// formula with a log margin ([EventsMethod.NonInferiorityEvents])
+// approximates. It is approximate: U/V is close to the log hazard ratio
+// only near HR = 1 and with balanced groups, so at HR = M its size departs
+// from Alpha as |ln M| and the imbalance grow. For a nominal 0.025 with
+// some 230 events: 0.0257 (R) at M = 1.3 and 0.0225 at M = 2 with equal
+// groups, but 0.057 (R) with 200 against 100 at M = 2 and 0.0096 with 100
+// against 200 (testdata/reference/survmargin_README.md).
 //
 // For speed, the observed times are recorded as 32-bit fixed-point
 // fractions of the study length (a resolution of 2⁻³² of accrual plus
@@ -241,33 +320,72 @@ type logRankModel struct {
 // times that fall in the same step are a tie, handled exactly as
 // [LogRankTest] handles ties.
 //
-// It panics if n1 or n2 is below 1, h1 or h2 is not positive and finite,
-// e is invalid (see [Entry]), alpha is not in (0, 1), sides is not 1 or 2,
-// or sides is 1 and dir is 0.
+// It panics if N1 or N2 is below 1, H1 or H2 is not positive and finite,
+// Cross1 or Cross2 is not in [0, 1], Entry is invalid (see [Entry]),
+// Alpha is not in (0, 1), Sides is not 1 or 2, Sides is 1 and Dir is 0
+// for superiority, Margin is negative, infinite or NaN, or Sides and Dir
+// do not fit a margin test as stated in [SurvivalSim], or Equivalence is
+// set without a Margin above 1.
 //
 // References: Schoenfeld DA (1983). Sample-size formula for the
-// proportional-hazards regression model. Biometrics 39:499–503.
-func NewSurvivalModel(n1, n2 int, h1, h2 float64, e Entry, alpha float64, sides, dir int) Model {
-	if n1 < 1 || n2 < 1 {
-		panic(fmt.Sprintf("power: group sizes must be at least 1, got %d and %d", n1, n2))
+// proportional-hazards regression model. Biometrics 39:499–503. Berry G,
+// Kitchin RM, Mock PA (1991). A comparison of two simple hazard ratio
+// estimators based on the logrank test. Statistics in Medicine 10:749–755
+// (the bias of the Peto one-step estimate U/V as the hazard ratio grows).
+// Schuirmann DJ (1987). A comparison of the two one-sided tests procedure
+// and the power approach for assessing the equivalence of average
+// bioavailability. J Pharmacokinet Biopharm 15:657–680.
+func NewSurvivalSim(c SurvivalSim) Model {
+	if c.N1 < 1 || c.N2 < 1 {
+		panic(fmt.Sprintf("power: group sizes must be at least 1, got %d and %d", c.N1, c.N2))
 	}
-	checkHazard(h1)
-	checkHazard(h2)
-	e.check()
-	z := ZAlpha(alpha, sides)
-	if sides == 1 && dir == 0 {
+	checkHazard(c.H1)
+	checkHazard(c.H2)
+	for _, x := range []float64{c.Cross1, c.Cross2} {
+		if !(x >= 0 && x <= 1) {
+			panic(fmt.Sprintf("power: crossing-over fraction must be in [0, 1], got %v", x))
+		}
+	}
+	c.Entry.check()
+	z := ZAlpha(c.Alpha, c.Sides)
+	m := &logRankModel{
+		n1: c.N1, n2: c.N2,
+		mean1: 1 / c.H1, mean2: 1 / c.H2,
+		cross1: c.Cross1, cross2: c.Cross2,
+		accrual: c.Entry.Accrual,
+		end:     c.Entry.Accrual + c.Entry.FollowUp,
+		crit2:   z * z,
+		sides:   c.Sides, dir: c.Dir,
+	}
+	switch {
+	case !(c.Margin >= 0) || math.IsInf(c.Margin, 1):
+		panic(fmt.Sprintf("power: hazard-ratio margin must be non-negative and finite, got %v", c.Margin))
+	case c.Equivalence:
+		if !(c.Margin > 1) {
+			panic(fmt.Sprintf("power: equivalence needs a hazard-ratio margin above 1, got %v", c.Margin))
+		}
+		if c.Sides != 1 || c.Dir != 0 {
+			panic(fmt.Sprintf("power: equivalence takes sides 1 and dir 0, got %d and %d", c.Sides, c.Dir))
+		}
+		m.test = lrEquivalence
+	case c.Margin != 0 && c.Margin != 1:
+		side := 1 // the alternative HR > M
+		if c.Margin > 1 {
+			side = -1
+		}
+		if c.Sides != 1 || (c.Dir != 0 && c.Dir != side) {
+			panic(fmt.Sprintf("power: margin %v takes sides 1 and dir 0 or %+d, got %d and %d",
+				c.Margin, side, c.Sides, c.Dir))
+		}
+		m.test = lrNonInferiority
+	case c.Sides == 1 && c.Dir == 0:
 		panic("power: a one-sided test needs dir −1 or +1")
 	}
-	m := &logRankModel{
-		n1: n1, n2: n2,
-		mean1: 1 / h1, mean2: 1 / h2,
-		accrual: e.Accrual,
-		end:     e.Accrual + e.FollowUp,
-		crit2:   z * z,
-		sides:   sides, dir: dir,
+	if m.test != lrSuperiority {
+		m.z, m.lnM = z, math.Log(c.Margin)
 	}
-	if e.Dropout > 0 {
-		m.meanDrop = 1 / e.Dropout
+	if c.Entry.Dropout > 0 {
+		m.meanDrop = 1 / c.Entry.Dropout
 	}
 	m.scale = math.MaxUint32 / m.end
 	return m
@@ -294,9 +412,12 @@ func (w *logRankWorker) draw(rng *rand.Rand) {
 	c := &w.count
 	keys := w.keys
 	for i := range keys {
-		mean, flag := m.mean1, uint64(0)
+		mean, other, cross, flag := m.mean1, m.mean2, m.cross1, uint64(0)
 		if i >= m.n1 {
-			mean, flag = m.mean2, lrGroup2
+			mean, other, cross, flag = m.mean2, m.mean1, m.cross2, lrGroup2
+		}
+		if cross > 0 && rng.Float64() < cross {
+			mean = other
 		}
 		left := m.end
 		if m.accrual > 0 {
@@ -329,7 +450,7 @@ func (w *logRankWorker) stat() (u, v float64) {
 	return o - e, v
 }
 
-// Replicate simulates one study and reports whether the log-rank test
+// Replicate simulates one study and reports whether the planned test
 // rejects.
 func (w *logRankWorker) Replicate(rng *rand.Rand) bool {
 	w.draw(rng)
@@ -338,6 +459,19 @@ func (w *logRankWorker) Replicate(rng *rand.Rand) bool {
 		return false
 	}
 	m := w.m
+	switch m.test {
+	case lrNonInferiority:
+		// Z = (U − V ln M)/√V against ∓z.
+		s := u - v*m.lnM
+		if m.lnM > 0 {
+			return s < -m.z*math.Sqrt(v)
+		}
+		return s > m.z*math.Sqrt(v)
+	case lrEquivalence:
+		// Both (U + V ln M)/√V > z and (U − V ln M)/√V < −z.
+		zv, vl := m.z*math.Sqrt(v), v*m.lnM
+		return u+vl > zv && u-vl < -zv
+	}
 	if m.sides == 1 && (u < 0) != (m.dir < 0) {
 		return false
 	}
