@@ -1,47 +1,69 @@
 package designs
 
 import (
+	"fmt"
 	"math"
 
 	"enough/power"
 )
 
-// calculator answers the three questions of one method for one
-// specification, at effective sizes (analysable / design effect).
+// calculator answers two questions of one method for one specification,
+// at effective sizes (analysable / design effect): the size for a target
+// power, and the power at given sizes. The third question, the smallest
+// detectable effect, is answered for every method alike by searching the
+// effect at which power reaches the target (see detectEffect), so that the
+// three answers can never disagree.
 type calculator interface {
-	// nStar is the unrounded first-group size at the target power.
-	nStar(target float64) (float64, error)
-	// power at sizes n1 and n2.
+	// nStar is the unrounded first-group size at the target power; it
+	// records its steps on tr.
+	nStar(target float64, tr *trail) (float64, error)
+	// power at effective sizes n1 and n2.
 	power(n1, n2 float64) float64
-	// detect is the smallest effect detectable in direction dir, on the
-	// scale of the specification's effect key, with its restatement.
-	detect(n1, n2, target float64, dir int) (float64, *Effect, error)
+	// powerName names the power computation in the steps.
+	powerName() string
+	// params names the values, other than the sizes, that the size and
+	// power computations use, for the steps.
+	params() []Input
 }
 
-// effects holds the planned effect after dilution by non-adherence and
-// contamination (Lachin & Foulkes 1986, Biometrics 42:507–519).
+// effects holds the effect an analysis sees: the planned (undiluted) effect
+// diluted by non-adherence and contamination (Lachin & Foulkes 1986,
+// Biometrics 42:507–519), and the alpha of each comparison.
 type effects struct {
-	p1, p2   float64 // binary
-	diff     float64 // continuous
-	hr       float64 // time-to-event
-	diluted  bool
-	alpha    float64 // per comparison (Bonferroni over the arms)
-	clusterK [2]int  // clusters per arm, for a cluster-level t test (0: none)
+	p1, p2    float64 // binary: the risks an intention-to-treat analysis sees
+	diff      float64 // continuous: the diluted difference in means
+	hr        float64 // time-to-event: the diluted hazard ratio
+	plannedHR float64 // time-to-event: the hazard ratio of receiving the intervention
+	na, c     float64 // non-adherence and contamination
+	diluted   bool
+	alpha     float64 // per comparison (Bonferroni over the arms)
+	clusterK  [2]int  // clusters per arm, for a cluster-level t test (0: none)
 }
 
 // plannedEffects applies the dilution of an intention-to-treat analysis and
-// the multiplicity correction.
+// the multiplicity correction to the specification's effect.
 func plannedEffects(s *Spec) effects {
-	e := effects{p1: s.P1, p2: s.P2, diff: s.MeanDiff, hr: s.HazardRatio, alpha: s.Alpha}
+	return effectsAt(s, s.P1, s.MeanDiff, s.HazardRatio)
+}
+
+// effectsAt is plannedEffects for another undiluted effect: the first
+// group's risk p1, the difference in means diff or the hazard ratio hr
+// (the second group's risk and everything else as specified).
+//
+//	p1′ = (1 − na) p1 + na p2,  p2′ = (1 − c) p2 + c p1
+//	Δ′ = (1 − na − c) Δ,  ln HR′ = (1 − na − c) ln HR
+func effectsAt(s *Spec, p1, diff, hr float64) effects {
+	e := effects{p1: p1, p2: s.P2, diff: diff, hr: hr, plannedHR: hr, alpha: s.Alpha}
 	if s.NonAdherence > 0 || s.Contamination > 0 {
 		e.diluted = true
 		na, c := s.NonAdherence, s.Contamination
+		e.na, e.c = na, c
 		factor := 1 - na - c
-		e.p1 = (1-na)*s.P1 + na*s.P2
-		e.p2 = (1-c)*s.P2 + c*s.P1
-		e.diff = s.MeanDiff * factor
-		if s.HazardRatio > 0 {
-			e.hr = math.Exp(math.Log(s.HazardRatio) * factor)
+		e.p1 = (1-na)*p1 + na*s.P2
+		e.p2 = (1-c)*s.P2 + c*p1
+		e.diff = diff * factor
+		if hr > 0 {
+			e.hr = math.Exp(math.Log(hr) * factor)
 		}
 	}
 	if k := comparisons(s); k > 1 {
@@ -70,27 +92,55 @@ func newCalculator(s *Spec, m *MethodInfo, e effects) calculator {
 			// The cluster-level analysis is a t test whatever the method.
 			mm = power.T
 		}
-		return meansCalc{s: s, m: mm, mc: meanComparison(s, e)}
+		return meansCalc{s: s, m: mm, id: m.ID, mc: meanComparison(s, e)}
 	case s.Outcome == "time-to-event":
-		return survivalCalc{s: s, m: m.events, e: e}
+		return survivalCalc{s: s, m: m.events, id: m.ID, e: e}
 	case m.margin != 0:
-		return marginCalc{s: s, m: m.margin, e: e}
+		return marginCalc{s: s, m: m.margin, id: m.ID, e: e}
 	}
-	return binaryCalc{s: s, m: m.engine, e: e}
+	return binaryCalc{s: s, m: m.engine, id: m.ID, e: e}
+}
+
+// alphaInput names the alpha of one comparison for the steps.
+func alphaInput(s *Spec, e effects) Input {
+	if comparisons(s) > 1 {
+		return in("alpha_per_comparison", e.alpha)
+	}
+	return in("alpha", e.alpha)
+}
+
+// riskInputs names the risks a binary calculation uses.
+func riskInputs(e effects) []Input {
+	if e.diluted {
+		return []Input{in("diluted_first_risk", e.p1), in("diluted_second_risk", e.p2)}
+	}
+	return []Input{in("first_risk", e.p1), in("second_risk", e.p2)}
 }
 
 // binaryCalc serves the superiority methods for two risks.
 type binaryCalc struct {
-	s *Spec
-	m power.Method
-	e effects
+	s  *Spec
+	m  power.Method
+	id string
+	e  effects
 }
 
 func (c binaryCalc) tp() power.TwoProportions {
 	return power.TwoProportions{P1: c.e.p1, P2: c.e.p2, Alpha: c.e.alpha, Sides: c.s.Sides}
 }
 
-func (c binaryCalc) nStar(target float64) (float64, error) { return c.m.N(c.tp(), c.s.Ratio, target) }
+func (c binaryCalc) nStar(target float64, tr *trail) (float64, error) {
+	n, err := c.m.N(c.tp(), c.s.Ratio, target)
+	if err == nil && tr != nil {
+		ins := append(c.params(), in("target_power", target), in("ratio", c.s.Ratio))
+		tr.add("n_star", fmt.Sprintf("the unrounded size of the first group from %s", MethodByID(c.id).Name), n, ins...)
+	}
+	return n, err
+}
+
+func (c binaryCalc) params() []Input {
+	return append(riskInputs(c.e), alphaInput(c.s, c.e), inInt("sides", c.s.Sides))
+}
 
 func (c binaryCalc) power(n1, n2 float64) float64 {
 	if c.e.clusterK[0] > 0 {
@@ -99,12 +149,11 @@ func (c binaryCalc) power(n1, n2 float64) float64 {
 	return c.m.Power(c.tp(), n1, n2)
 }
 
-func (c binaryCalc) detect(n1, n2, target float64, dir int) (float64, *Effect, error) {
-	p1, err := c.m.Detectable(c.tp(), n1, n2, target, dir)
-	if err != nil {
-		return math.NaN(), nil, err
+func (c binaryCalc) powerName() string {
+	if c.e.clusterK[0] > 0 {
+		return "the power of a t test on cluster proportions with clusters_first + clusters_second − 2 degrees of freedom"
 	}
-	return scaleValue(c.s.EffectKey, p1, c.s.P2), effectOf(c.s.Design, p1, c.s.P2), nil
+	return "the power from " + MethodByID(c.id).Name
 }
 
 // clusterTBinary is the power of a t test on cluster proportions with
@@ -114,13 +163,16 @@ func clusterTBinary(e effects, sides int, n1, n2 float64) float64 {
 	return power.TTestPower(math.Abs(e.p1-e.p2)/se, float64(e.clusterK[0]+e.clusterK[1]-2), e.alpha, sides)
 }
 
-// marginCalc serves non-inferiority and equivalence for two risks.
+// marginCalc serves non-inferiority and equivalence for two risks, on the
+// difference or the ratio scale.
 type marginCalc struct {
-	s *Spec
-	m power.MarginMethod
-	e effects
+	s  *Spec
+	m  power.MarginMethod
+	id string
+	e  effects
 }
 
+// d0 is the margin as a signed difference p1 − p2 under the null.
 func (c marginCalc) d0() float64 {
 	if c.s.HigherIsBetter {
 		return -c.s.Margin
@@ -128,23 +180,49 @@ func (c marginCalc) d0() float64 {
 	return c.s.Margin
 }
 
-func (c marginCalc) nStar(target float64) (float64, error) {
-	if c.s.Hypothesis == "equivalence" {
-		return c.m.EquivalenceN(c.e.p1, c.e.p2, c.s.Ratio, c.s.Margin, c.e.alpha, target)
+func (c marginCalc) ratio() bool { return c.s.MarginScale == "ratio" }
+
+func (c marginCalc) nStar(target float64, tr *trail) (float64, error) {
+	var n float64
+	var err error
+	switch {
+	case c.ratio() && c.s.Hypothesis == "equivalence":
+		n, err = power.RatioEquivalenceN(c.e.p1, c.e.p2, c.s.Ratio, c.s.Margin, c.e.alpha, target)
+	case c.ratio():
+		n, err = power.RatioNonInferiorityN(c.e.p1, c.e.p2, c.s.Ratio, c.s.Margin, c.e.alpha, target)
+	case c.s.Hypothesis == "equivalence":
+		n, err = c.m.EquivalenceN(c.e.p1, c.e.p2, c.s.Ratio, c.s.Margin, c.e.alpha, target)
+	default:
+		n, err = c.m.NonInferiorityN(c.e.p1, c.e.p2, c.s.Ratio, c.d0(), c.e.alpha, target)
 	}
-	return c.m.NonInferiorityN(c.e.p1, c.e.p2, c.s.Ratio, c.d0(), c.e.alpha, target)
+	if err == nil && tr != nil {
+		ins := append(c.params(), in("target_power", target), in("ratio", c.s.Ratio))
+		tr.add("n_star", fmt.Sprintf("the unrounded size of the first group from %s (%s, margin on the %s scale)", MethodByID(c.id).Name, c.s.Hypothesis, c.s.MarginScale), n, ins...)
+	}
+	return n, err
+}
+
+func (c marginCalc) params() []Input {
+	margin := in("margin", c.s.Margin)
+	if !c.ratio() && c.s.Hypothesis == "non-inferiority" {
+		margin = in("margin_difference", c.d0())
+	}
+	return append(riskInputs(c.e), margin, alphaInput(c.s, c.e))
 }
 
 func (c marginCalc) power(n1, n2 float64) float64 {
-	if c.s.Hypothesis == "equivalence" {
+	switch {
+	case c.ratio() && c.s.Hypothesis == "equivalence":
+		return power.RatioEquivalencePower(c.e.p1, c.e.p2, n1, n2, c.s.Margin, c.e.alpha)
+	case c.ratio():
+		return power.RatioNonInferiorityPower(c.e.p1, c.e.p2, n1, n2, c.s.Margin, c.e.alpha)
+	case c.s.Hypothesis == "equivalence":
 		return c.m.EquivalencePower(c.e.p1, c.e.p2, n1, n2, c.s.Margin, c.e.alpha)
 	}
 	return c.m.NonInferiorityPower(c.e.p1, c.e.p2, n1, n2, c.d0(), c.e.alpha)
 }
 
-func (c marginCalc) detect(float64, float64, float64, int) (float64, *Effect, error) {
-	return math.NaN(), nil, power.ErrUnreachable
-}
+func (c marginCalc) powerName() string { return "the power from " + MethodByID(c.id).Name }
 
 // meanComparison maps a continuous specification onto the engine.
 func meanComparison(s *Spec, e effects) power.MeanComparison {
@@ -176,19 +254,45 @@ func meanComparison(s *Spec, e effects) power.MeanComparison {
 type meansCalc struct {
 	s  *Spec
 	m  power.MeansMethod
+	id string
 	mc power.MeanComparison
 }
 
-func (c meansCalc) nStar(target float64) (float64, error) { return c.m.N(c.mc, c.s.Ratio, target) }
+func (c meansCalc) nStar(target float64, tr *trail) (float64, error) {
+	n, err := c.m.N(c.mc, c.s.Ratio, target)
+	if err == nil && tr != nil {
+		ins := append(c.params(), in("target_power", target), in("ratio", c.s.Ratio))
+		tr.add("n_star", fmt.Sprintf("the unrounded size of the first group from %s", MethodByID(c.id).Name), n, ins...)
+	}
+	return n, err
+}
+
+func (c meansCalc) params() []Input {
+	name := "difference"
+	if c.s.NonAdherence > 0 || c.s.Contamination > 0 {
+		name = "diluted_difference"
+	}
+	ins := []Input{in(name, c.mc.Diff), in("sd_first", c.mc.SD1)}
+	if c.mc.Layout != power.Paired {
+		ins = append(ins, in("sd_second", c.mc.SD2))
+	}
+	if c.s.Hypothesis != "superiority" {
+		ins = append(ins, in("margin", c.mc.Bound))
+	}
+	ins = append(ins, in("alpha", c.mc.Alpha))
+	if c.s.Hypothesis == "superiority" {
+		ins = append(ins, inInt("sides", c.mc.Sides))
+	}
+	return ins
+}
 
 func (c meansCalc) power(n1, n2 float64) float64 { return c.m.Power(c.mc, n1, n2) }
 
-func (c meansCalc) detect(n1, n2, target float64, dir int) (float64, *Effect, error) {
-	d, err := c.m.DetectableDiff(c.mc, n1, n2, target, dir)
-	if err != nil {
-		return math.NaN(), nil, err
+func (c meansCalc) powerName() string {
+	if c.mc.DF > 0 {
+		return "the power of a t test on cluster means with clusters_first + clusters_second − 2 degrees of freedom"
 	}
-	return d, meansEffect(c.s, d), nil
+	return "the power from " + MethodByID(c.id).Name
 }
 
 // meansEffect restates a mean difference, also in standard deviations of
@@ -205,9 +309,10 @@ func meansEffect(s *Spec, d float64) *Effect {
 // survivalCalc serves the events methods, converting events to
 // participants through each arm's probability of an observed event.
 type survivalCalc struct {
-	s *Spec
-	m power.EventsMethod
-	e effects
+	s  *Spec
+	m  power.EventsMethod
+	id string
+	e  effects
 }
 
 func (c survivalCalc) entry() power.Entry {
@@ -215,40 +320,90 @@ func (c survivalCalc) entry() power.Entry {
 }
 
 // probabilities returns the probability of an observed event in each arm.
-func (c survivalCalc) probabilities(hr float64) (float64, float64) {
+// With non-adherence and contamination each arm is a mixture of those
+// receiving the intervention (hazard HR·h) and those not (hazard h):
+//
+//	P1 = (1 − na) P(HR h) + na P(h),  P2 = (1 − c) P(h) + c P(HR h)
+func (c survivalCalc) probabilities() (float64, float64) {
 	en := c.entry()
-	return power.EventProbability(hr*c.s.ControlHazard, en), power.EventProbability(c.s.ControlHazard, en)
+	h := c.s.ControlHazard
+	pi, pc := power.EventProbability(c.e.plannedHR*h, en), power.EventProbability(h, en)
+	return (1-c.e.na)*pi + c.e.na*pc, (1-c.e.c)*pc + c.e.c*pi
 }
 
+// events is the unrounded number of events for the target power.
 func (c survivalCalc) events(target float64) (float64, error) {
+	switch c.s.Hypothesis {
+	case "non-inferiority":
+		return c.m.NonInferiorityEvents(c.e.hr, c.s.Margin, c.s.Ratio, c.e.alpha, target)
+	case "equivalence":
+		return c.m.EquivalenceEvents(c.e.hr, c.s.Margin, c.s.Ratio, c.e.alpha, target)
+	}
 	return c.m.Events(c.e.hr, c.s.Ratio, c.e.alpha, c.s.Sides, target)
 }
 
-func (c survivalCalc) nStar(target float64) (float64, error) {
+func (c survivalCalc) nStar(target float64, tr *trail) (float64, error) {
 	d, err := c.events(target)
 	if err != nil {
 		return math.NaN(), err
 	}
-	p1, p2 := c.probabilities(c.e.hr)
+	var ins []Input
+	if tr != nil {
+		ins = append(c.params(), in("target_power", target), in("ratio", c.s.Ratio))
+	}
+	tr.add("events_star", fmt.Sprintf("the unrounded number of events from %s", MethodByID(c.id).Name), d, ins...)
+	dn := tr.addInt("events", "ceil(events_star)", ceilTol(d), in("events_star", d))
+	p1, p2 := c.probabilities()
+	c.recordProbabilities(tr, p1, p2)
 	r := c.s.Ratio
 	// The whole number of events required, then participants to expect
-	// them: ceil(D) = n1 P1 + r n1 P2.
-	return float64(ceilTol(d)) / (p1 + r*p2), nil
+	// them: events = n1 P1 + r n1 P2.
+	return tr.add("n_star", "events / (event_probability_first + ratio × event_probability_second)",
+		float64(dn)/(p1+r*p2), inInt("events", dn), in("event_probability_first", p1), in("event_probability_second", p2), in("ratio", r)), nil
+}
+
+func (c survivalCalc) params() []Input {
+	hrName := "hazard_ratio"
+	if c.e.diluted {
+		hrName = "diluted_hazard_ratio"
+	}
+	ins := []Input{in(hrName, c.e.hr)}
+	if c.s.Hypothesis != "superiority" {
+		ins = append(ins, in("margin", c.s.Margin))
+	}
+	ins = append(ins, alphaInput(c.s, c.e))
+	if c.s.Hypothesis == "superiority" {
+		ins = append(ins, inInt("sides", c.s.Sides))
+	}
+	return ins
+}
+
+// recordProbabilities records the event probabilities of both arms.
+func (c survivalCalc) recordProbabilities(tr *trail, p1, p2 float64) {
+	rule := "the probability of an observed event under exponential survival with uniform entry over the accrual period, follow-up after the last entry and exponential dropout (Lachin & Foulkes 1986)"
+	if c.e.diluted {
+		rule += ", mixed over those receiving the intervention and those not"
+	}
+	tr.add("event_probability_first", rule, p1)
+	tr.add("event_probability_second", rule, p2)
 }
 
 func (c survivalCalc) expectedEvents(n1, n2 float64) float64 {
-	p1, p2 := c.probabilities(c.e.hr)
+	p1, p2 := c.probabilities()
 	return n1*p1 + n2*p2
 }
 
 func (c survivalCalc) power(n1, n2 float64) float64 {
-	return c.m.EventsPower(c.e.hr, n2/n1, c.e.alpha, c.s.Sides, c.expectedEvents(n1, n2))
+	d := c.expectedEvents(n1, n2)
+	switch c.s.Hypothesis {
+	case "non-inferiority":
+		return c.m.NonInferiorityEventsPower(c.e.hr, c.s.Margin, n2/n1, c.e.alpha, d)
+	case "equivalence":
+		return c.m.EquivalenceEventsPower(c.e.hr, c.s.Margin, n2/n1, c.e.alpha, d)
+	}
+	return c.m.EventsPower(c.e.hr, n2/n1, c.e.alpha, c.s.Sides, d)
 }
 
-func (c survivalCalc) detect(n1, n2, target float64, dir int) (float64, *Effect, error) {
-	hr, err := c.m.DetectableHazardRatio(c.s.ControlHazard, c.entry(), n1, n2, c.e.alpha, c.s.Sides, target, dir)
-	if err != nil {
-		return math.NaN(), nil, err
-	}
-	return hr, &Effect{HazardRatio: ptr(hr)}, nil
+func (c survivalCalc) powerName() string {
+	return "the power from " + MethodByID(c.id).Name + " with the expected events"
 }

@@ -59,6 +59,14 @@ func Exact(s *Spec, res *Result) error {
 		}
 		a.ExactPower = ptr(power.ExactPower(test, a.N[0], a.N[1], e.p1, e.p2, e.alpha, s.Sides, dir))
 		a.AchievedPower = a.ExactPower
+		// The exact power replaces the closed form's as the last step.
+		if k := len(res.Steps) - 1; k >= 0 && res.Steps[k].Name == "power" {
+			res.Steps = res.Steps[:k]
+		}
+		tr := &trail{steps: res.Steps}
+		tr.add("power", "the exact power of "+TestName(s.Test)+", summed over every pair of counts", *a.ExactPower,
+			append([]Input{inInt("analysable_first", a.N[0]), inInt("analysable_second", a.N[1])}, append(riskInputs(e), alphaInput(s, e), inInt("sides", s.Sides))...)...)
+		res.Steps = tr.steps
 		return nil
 	}
 	// Centre the window on the closed form that suits the test: with a
@@ -93,14 +101,38 @@ func Exact(s *Spec, res *Result) error {
 		return err
 	}
 	a.Exact = &ExactSearch{First: st.First, Stable: st.Stable, Window: []int{st.Low, st.High}, ClosedForm: cf}
+	// The steps: those before the closed form's (dilution, alpha), then
+	// the search.
+	var prefix []Step
+	for _, x := range res.Steps {
+		if x.Name == "n_star" {
+			break
+		}
+		prefix = append(prefix, x)
+	}
+	tr := &trail{steps: prefix}
+	params := append(riskInputs(e), alphaInput(s, e), inInt("sides", s.Sides))
+	tr.add("n_star", "the unrounded size of the first group from "+map[power.Method]string{power.Fleiss: "Fleiss, no continuity correction", power.FleissCC: "Fleiss with continuity correction"}[engine]+", the closed form that centres the exact search", nstar,
+		append(params, in("target_power", s.Power), in("ratio", s.Ratio))...)
+	tr.addInt("closed_form_first", "ceil(n_star)", cf, in("n_star", nstar))
 	n1 := st.First
-	n2 := ceilTol(s.Ratio*float64(n1) - 1e-9)
+	ins := []Input{inInt("window_low", st.Low), inInt("window_high", st.High), in("target_power", s.Power), in("power_at_output", st.Powers[n1-st.Low])}
+	if n1 > st.Low {
+		ins = append(ins, in("power_one_below", st.Powers[n1-1-st.Low]))
+	}
+	tr.addInt("analysable_first", "the smallest first-group size from window_low to window_high (around closed_form_first) at which the exact power of "+TestName(s.Test)+", summed over every pair of counts with the second group ceil(ratio × first), reaches the target", n1, ins...)
+	n2 := tr.addInt("analysable_second", "ceil(ratio × analysable_first)", ceilTol(s.Ratio*float64(n1)-1e-9), in("ratio", s.Ratio), inInt("analysable_first", n1))
 	a.ExactPower = ptr(st.Powers[n1-st.Low])
 	a.NStar = 0
 	sz := sizes{n: []int{n1, n2}}
-	sz.enrol = []int{ceilTol(float64(n1) / (1 - s.Attrition)), ceilTol(float64(n2) / (1 - s.Attrition))}
+	sz.enrol = []int{enrolFor(s, "enrol_first", n1, tr), enrolFor(s, "enrol_second", n2, tr)}
 	fillSizes(s, a, sz)
+	recordTotals(s, tr, "analysable", sz.n)
+	recordTotals(s, tr, "enrol", sz.enrol)
 	a.AchievedPower = a.ExactPower
+	tr.add("achieved_power", "the exact power of "+TestName(s.Test)+" at the analysable sizes (power_at_output of the search)", *a.ExactPower,
+		append([]Input{inInt("analysable_first", n1), inInt("analysable_second", n2)}, params...)...)
+	res.Steps = tr.steps
 	if st.First == st.Low && st.Low > 2 {
 		res.Warnings = append(res.Warnings, fmt.Sprintf("The exact search found the target already at the lower end of its window (%d); a smaller size may also reach it.", st.Low))
 	}

@@ -90,6 +90,8 @@ var specKeys = map[string]keyInfo{
 	"contamination":        {kindNumber, "a fraction in [0, 1)"},
 	"arms":                 {kindWhole, "a whole number from 2 to 20"},
 	"comparisons":          {kindText, "each-vs-control or all-pairs"},
+	"direction":            {kindText, "first-higher or first-lower"},
+	"margin_scale":         {kindText, "difference or ratio"},
 	"simulate":             {kindMap, "a map with replicates (100 to 1e9), seed (a whole number of at least 0) and optionally n (the first group's size to simulate at)"},
 }
 
@@ -122,7 +124,7 @@ var commonKeys = []string{"version", "title", "design", "outcome", "solve", "met
 	"attrition", "design_effect", "sources", "primary_outcome"}
 
 // comparisonKeys are shared by every two-group comparison.
-var comparisonKeys = []string{"test", "alpha", "sides", "power", "first_group", "second_group", "simulate"}
+var comparisonKeys = []string{"test", "alpha", "sides", "power", "first_group", "second_group", "simulate", "direction"}
 
 // designRoles names, for each two-group design, the reference-group key and
 // the effect keys of a binary outcome, in the order they are documented.
@@ -202,6 +204,9 @@ func keysFor(sel selector) map[string]bool {
 		add("hypothesis", "non_adherence", "contamination", "arms", "comparisons")
 		if sel.hypothesis == "non-inferiority" || sel.hypothesis == "equivalence" {
 			add("margin", "higher_is_better")
+			if sel.outcome == "binary" {
+				add("margin_scale")
+			}
 		}
 	}
 	switch sel.outcome {

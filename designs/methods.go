@@ -84,7 +84,7 @@ var Methods = []MethodInfo{
 		Designs:     []string{"trial"},
 		Hypotheses:  []string{"non-inferiority", "equivalence"},
 		DefaultTest: "score",
-		Note:        "non-inferiority and equivalence of two risks; variance under the margin from the restricted maximum-likelihood risks",
+		Note:        "non-inferiority and equivalence of two risks, with a margin on the difference or the ratio scale; variance under the margin from the restricted maximum-likelihood risks",
 		margin:      power.FarringtonManning,
 	},
 	{
@@ -123,8 +123,9 @@ var Methods = []MethodInfo{
 		Citation:    "Schoenfeld DA (1983). Sample-size formula for the proportional-hazards regression model. Biometrics 39:499-503",
 		Designs:     []string{"trial"},
 		Outcome:     "time-to-event",
+		Hypotheses:  []string{"superiority", "non-inferiority", "equivalence"},
 		DefaultTest: "log-rank",
-		Note:        "events for a hazard ratio under proportional hazards; the default for time-to-event outcomes",
+		Note:        "events for a hazard ratio under proportional hazards (non-inferiority and equivalence with a log hazard-ratio margin); the default for time-to-event outcomes",
 		events:      power.Schoenfeld,
 	},
 	{

@@ -82,31 +82,43 @@ func orDefault(s, def string) string {
 
 func ptr[T any](x T) *T { return &x }
 
+// textKeys are the keys that are not assumptions (settings and labels).
+var textKeys = map[string]bool{"version": true, "title": true, "design": true, "outcome": true,
+	"solve": true, "method": true, "test": true, "goal": true, "primary_outcome": true,
+	"first_group": true, "second_group": true, "time_unit": true, "hypothesis": true,
+	"pairing": true, "comparisons": true, "margin_scale": true, "direction": true}
+
 // assumptions lists the numeric inputs with their sources, in file order.
 func assumptions(s *Spec) []Assumption {
 	var out []Assumption
-	skip := map[string]bool{"version": true, "title": true, "design": true, "outcome": true,
-		"solve": true, "method": true, "test": true, "goal": true, "primary_outcome": true,
-		"first_group": true, "second_group": true, "time_unit": true, "hypothesis": true,
-		"pairing": true, "comparisons": true}
 	// Keys the solve ignores are left out (a warning names them).
-	switch s.Solve {
-	case "n":
-		skip["n"], skip["total"] = true, true
-	case "power":
-		skip["power"] = true
-	case "effect":
-		skip["margin"] = true
+	skip := func(k string) bool {
+		switch s.Solve {
+		case "n":
+			return k == "n" || k == "total" || textKeys[k]
+		case "power":
+			return k == "power" || textKeys[k]
+		case "effect":
+			return k == "margin" || textKeys[k]
+		}
+		return textKeys[k]
 	}
 	for _, g := range s.Given {
-		if skip[g.Key] {
+		if skip(g.Key) {
 			continue
 		}
 		v := g.Value
 		if s.Solve == "effect" && g.Key == s.EffectKey {
 			v = "solved (the key names the scale of the answer)"
 		}
-		out = append(out, Assumption{Key: g.Key, Value: v, Source: s.Sources[g.Key]})
+		a := Assumption{Key: g.Key, Value: v, Source: s.Sources[g.Key]}
+		if fv, ok := s.Overridden[g.Key]; ok {
+			a.SetOnCommandLine = true
+			if fv != (FileValue{}) {
+				a.File = &fv
+			}
+		}
+		out = append(out, a)
 	}
 	return out
 }
@@ -133,77 +145,150 @@ func checkSizes(s *Spec, xs ...float64) error {
 	return nil
 }
 
+// least is the smallest analysable group: two for a t test, else one.
+func least(s *Spec) int {
+	if s.Outcome == "continuous" {
+		return 2
+	}
+	return 1
+}
+
+// firstFromNStar rounds the first group: ceil(n* × design effect), at
+// least two for a t test.
+func firstFromNStar(s *Spec, nstar float64, tr *trail, name string) int {
+	rule := "ceil(n_star × design_effect)"
+	if least(s) > 1 {
+		rule = "max(2, ceil(n_star × design_effect))"
+	}
+	return tr.addInt(name, rule, max(least(s), ceilTol(nstar*s.DesignEffect)), in("n_star", nstar), in("design_effect", s.DesignEffect))
+}
+
+// enrolFor inflates an analysable size for attrition.
+func enrolFor(s *Spec, name string, n int, tr *trail) int {
+	a, rule := "analysable_first", "ceil(analysable_first / (1 − attrition))"
+	if name == "enrol_second" {
+		a, rule = "analysable_second", "ceil(analysable_second / (1 − attrition))"
+	}
+	return tr.addInt(name, rule, ceilTol(float64(n)/(1-s.Attrition)), inInt(a, n), in("attrition", s.Attrition))
+}
+
+// restFromNStar completes the sizes from n* and the rounded first group:
+// the second group ceil(ratio × n* × design effect), then each enrolment
+// ceil(analysable / (1 − attrition)).
+func restFromNStar(s *Spec, nstar float64, n1 int, tr *trail) sizes {
+	if s.Pairing == "paired" {
+		return sizes{
+			n:     []int{n1},
+			enrol: []int{enrolFor(s, "enrol_first", n1, tr)},
+			eff:   [2]float64{float64(n1) / s.DesignEffect, float64(n1) / s.DesignEffect},
+		}
+	}
+	rule := "ceil(ratio × n_star × design_effect)"
+	if least(s) > 1 {
+		rule = "max(2, ceil(ratio × n_star × design_effect))"
+	}
+	n2 := tr.addInt("analysable_second", rule, max(least(s), ceilTol(s.Ratio*nstar*s.DesignEffect)),
+		in("ratio", s.Ratio), in("n_star", nstar), in("design_effect", s.DesignEffect))
+	return sizes{
+		n:     []int{n1, n2},
+		enrol: []int{enrolFor(s, "enrol_first", n1, tr), enrolFor(s, "enrol_second", n2, tr)},
+		eff:   [2]float64{float64(n1) / s.DesignEffect, float64(n2) / s.DesignEffect},
+	}
+}
+
 // sizesFromNStar applies the documented rounding and inflation order to the
-// unrounded first-group size: n = ceil(n* × deff) per group, then
-// enrolment = ceil(n / (1 − attrition)).
-func sizesFromNStar(s *Spec, nstar float64) (sizes, error) {
+// unrounded first-group size (no cluster search).
+func sizesFromNStar(s *Spec, nstar float64, tr *trail) (sizes, error) {
 	f1, f2 := nstar*s.DesignEffect, s.Ratio*nstar*s.DesignEffect
 	if err := checkSizes(s, f1, f2, f1/(1-s.Attrition), f2/(1-s.Attrition)); err != nil {
 		return sizes{}, err
 	}
-	n1, n2 := ceilTol(f1), ceilTol(f2)
-	if s.Outcome == "continuous" {
-		// A t test needs at least two observations per group.
-		n1, n2 = max(n1, 2), max(n2, 2)
-	}
-	if s.Pairing == "paired" {
-		return sizes{
-			n:     []int{n1},
-			enrol: []int{ceilTol(float64(n1) / (1 - s.Attrition))},
-			eff:   [2]float64{float64(n1) / s.DesignEffect, float64(n1) / s.DesignEffect},
-		}, nil
-	}
-	return sizes{
-		n:     []int{n1, n2},
-		enrol: []int{ceilTol(float64(n1) / (1 - s.Attrition)), ceilTol(float64(n2) / (1 - s.Attrition))},
-		eff:   [2]float64{float64(n1) / s.DesignEffect, float64(n2) / s.DesignEffect},
-	}, nil
+	return restFromNStar(s, nstar, firstFromNStar(s, nstar, tr, "analysable_first"), tr), nil
 }
 
 // sizesFromEnrolment turns the specification's enrolment into analysable
 // and effective sizes: analysable = floor(enrolment × (1 − attrition)).
-func sizesFromEnrolment(s *Spec) (sizes, error) {
+func sizesFromEnrolment(s *Spec, tr *trail) (sizes, error) {
 	var sz sizes
-	if s.Design == "cross-sectional" {
-		e := s.ExposurePrevalence
-		a := floorTol(float64(s.Total) * (1 - s.Attrition))
-		first := int(math.Round(e * float64(a)))
-		efirst := int(math.Round(e * float64(s.Total)))
+	floorRule := func(name string) string {
+		return "floor(enrol_" + name + " × (1 − attrition))"
+	}
+	switch {
+	case s.Design == "cross-sectional":
+		e, deff := s.ExposurePrevalence, s.DesignEffect
+		a := tr.addInt("analysable_total", "floor(total × (1 − attrition))", floorTol(float64(s.Total)*(1-s.Attrition)), inInt("total", s.Total), in("attrition", s.Attrition))
+		first := tr.addInt("analysable_first", "round(exposure_prevalence × analysable_total)", int(math.Round(e*float64(a))), in("exposure_prevalence", e), inInt("analysable_total", a))
+		second := tr.addInt("analysable_second", "analysable_total − analysable_first", a-first, inInt("analysable_total", a), inInt("analysable_first", first))
+		efirst := tr.addInt("enrol_first", "round(exposure_prevalence × total)", int(math.Round(e*float64(s.Total))), in("exposure_prevalence", e), inInt("total", s.Total))
+		esecond := tr.addInt("enrol_second", "total − enrol_first", s.Total-efirst, inInt("total", s.Total), inInt("enrol_first", efirst))
 		sz = sizes{
-			n:     []int{first, a - first},
-			enrol: []int{efirst, s.Total - efirst},
-			eff:   [2]float64{e * float64(a) / s.DesignEffect, (1 - e) * float64(a) / s.DesignEffect},
+			n:     []int{first, second},
+			enrol: []int{efirst, esecond},
+			eff: [2]float64{
+				tr.add("effective_first", "exposure_prevalence × analysable_total / design_effect", e*float64(a)/deff, in("exposure_prevalence", e), inInt("analysable_total", a), in("design_effect", deff)),
+				tr.add("effective_second", "(1 − exposure_prevalence) × analysable_total / design_effect", (1-e)*float64(a)/deff, in("exposure_prevalence", e), inInt("analysable_total", a), in("design_effect", deff)),
+			},
 		}
-	} else if s.Pairing == "paired" {
-		a := floorTol(float64(s.N) * (1 - s.Attrition))
-		sz = sizes{n: []int{a}, enrol: []int{s.N}, eff: [2]float64{float64(a) / s.DesignEffect, float64(a) / s.DesignEffect}}
-	} else {
+	case s.Pairing == "paired":
+		en := tr.addInt("enrol_first", "n, as given (pairs)", s.N, inInt("n", s.N))
+		a := tr.addInt("analysable_first", floorRule("first"), floorTol(float64(en)*(1-s.Attrition)), inInt("enrol_first", en), in("attrition", s.Attrition))
+		sz = sizes{n: []int{a}, enrol: []int{en}, eff: [2]float64{float64(a) / s.DesignEffect, float64(a) / s.DesignEffect}}
+		recordEffective(s, tr, sz)
+	default:
 		if err := checkSizes(s, s.Ratio*float64(s.N)); err != nil {
 			return sz, err
 		}
-		e1, e2 := s.N, ceilTol(s.Ratio*float64(s.N))
+		e1 := tr.addInt("enrol_first", "n, as given", s.N, inInt("n", s.N))
+		var e2 int
 		if s.NSecond > 0 {
-			e2 = s.NSecond
+			e2 = tr.addInt("enrol_second", "n_second, as given", s.NSecond, inInt("n_second", s.NSecond))
+		} else {
+			e2 = tr.addInt("enrol_second", "ceil(ratio × enrol_first)", ceilTol(s.Ratio*float64(s.N)), in("ratio", s.Ratio), inInt("enrol_first", e1))
 		}
-		a1, a2 := floorTol(float64(e1)*(1-s.Attrition)), floorTol(float64(e2)*(1-s.Attrition))
+		a1 := tr.addInt("analysable_first", floorRule("first"), floorTol(float64(e1)*(1-s.Attrition)), inInt("enrol_first", e1), in("attrition", s.Attrition))
+		a2 := tr.addInt("analysable_second", floorRule("second"), floorTol(float64(e2)*(1-s.Attrition)), inInt("enrol_second", e2), in("attrition", s.Attrition))
 		sz = sizes{
 			n:     []int{a1, a2},
 			enrol: []int{e1, e2},
 			eff:   [2]float64{float64(a1) / s.DesignEffect, float64(a2) / s.DesignEffect},
 		}
+		recordEffective(s, tr, sz)
 	}
-	least := 1.0
-	if s.Outcome == "continuous" {
-		least = 2
-	}
-	if !(sz.eff[0] >= least && sz.eff[1] >= least) {
+	if !(sz.eff[0] >= float64(least(s)) && sz.eff[1] >= float64(least(s))) {
 		key := "n"
 		if s.Design == "cross-sectional" {
 			key = "total"
 		}
-		return sz, &SpecError{File: s.File, Key: key, Msg: fmt.Sprintf("after attrition, design effect and allocation a group has fewer than %g analysable participants (%s); allowed: a larger %s", least, fmtSizes(sz.n), key)}
+		return sz, &SpecError{File: s.File, Key: key, Msg: fmt.Sprintf("after attrition, design effect and allocation a group has fewer than %d analysable participants (%s); allowed: a larger %s", least(s), fmtSizes(sz.n), key)}
 	}
 	return sz, nil
+}
+
+// recordEffective records the effective sizes when a design effect makes
+// them differ from the analysable ones.
+func recordEffective(s *Spec, tr *trail, sz sizes) {
+	if s.DesignEffect == 1 {
+		return
+	}
+	tr.add("effective_first", "analysable_first / design_effect", sz.eff[0], inInt("analysable_first", sz.n[0]), in("design_effect", s.DesignEffect))
+	if len(sz.n) == 2 {
+		tr.add("effective_second", "analysable_second / design_effect", sz.eff[1], inInt("analysable_second", sz.n[1]), in("design_effect", s.DesignEffect))
+	}
+}
+
+// sizeInputs names the sizes at which power is evaluated: the effective
+// sizes when the steps computed them, else the analysable ones.
+func sizeInputs(s *Spec, tr *trail, sz sizes) []Input {
+	if tr.has("effective_first") {
+		if len(sz.n) == 1 {
+			return []Input{in("effective_first", sz.eff[0])}
+		}
+		return []Input{in("effective_first", sz.eff[0]), in("effective_second", sz.eff[1])}
+	}
+	if len(sz.n) == 1 {
+		return []Input{inInt("analysable_first", sz.n[0])}
+	}
+	return []Input{inInt("analysable_first", sz.n[0]), inInt("analysable_second", sz.n[1])}
 }
 
 func fmtSizes(n []int) string {
@@ -232,55 +317,75 @@ type solved struct {
 
 // solveN finds the sizes for the target power: the formula's n*, the
 // documented rounding and inflation, and for a cluster design the smallest
-// size, from ceil(n* × design effect) upwards, whose clusters (at least two
-// per arm) reach the target in a cluster-level t test on k1 + k2 − 2 degrees
-// of freedom.
-func solveN(s *Spec, m *MethodInfo, e effects) (solved, error) {
+// size whose clusters (at least two per arm) reach the target in a
+// cluster-level t test on k1 + k2 − 2 degrees of freedom (the search
+// starts at ceil(n* × design effect)). It records its steps on tr.
+func solveN(s *Spec, m *MethodInfo, e effects, tr *trail) (solved, error) {
 	calc := newCalculator(s, m, e)
-	nstar, err := calc.nStar(s.Power)
+	nstar, err := calc.nStar(s.Power, tr)
 	if err != nil {
 		return solved{}, solveError(s, err)
 	}
-	sz, err := sizesFromNStar(s, nstar)
-	if err != nil {
+	if s.Cluster == nil {
+		sz, err := sizesFromNStar(s, nstar, tr)
+		return solved{nstar, sz, calc, e}, err
+	}
+	f1, f2 := nstar*s.DesignEffect, s.Ratio*nstar*s.DesignEffect
+	if err := checkSizes(s, f1, f2, f1/(1-s.Attrition), f2/(1-s.Attrition)); err != nil {
 		return solved{}, err
 	}
-	if s.Cluster == nil {
-		return solved{nstar, sz, calc, e}, nil
+	n1 := firstFromNStar(s, nstar, tr, "formula_first")
+	if s.Ratio*float64(n1) > MaxSize {
+		return solved{}, checkSizes(s, s.Ratio*float64(n1))
 	}
 	// The smallest first-arm size, from the formula's upwards, whose
 	// clusters give the target power in a cluster-level t test.
 	at := func(n1 int) (sizes, effects, calculator) {
-		sz := clusterSizes(s, n1)
+		sz := clusterSizes(s, n1, nil)
 		ec := e
 		ec.clusterK = clustersFor(s, sz.enrol)
 		return sz, ec, newCalculator(s, m, ec)
 	}
-	ok := func(n1 int) bool {
+	powerAt := func(n1 int) float64 {
 		sz, _, c := at(n1)
-		return c.power(sz.eff[0], sz.eff[1]) >= s.Power
+		return c.power(sz.eff[0], sz.eff[1])
 	}
-	lo := max(sz.n[0], ceilTol(2*s.Cluster.Size), ceilTol(2*s.Cluster.Size/s.Ratio))
-	if !ok(lo) {
-		hi := lo
+	ok := func(n1 int) bool { return powerAt(n1) >= s.Power }
+	size := s.Cluster.Size
+	least := tr.addInt("cluster_minimum", "max(ceil(2 × cluster_size), ceil(2 × cluster_size / ratio)): at least two clusters per arm",
+		max(ceilTol(2*size), ceilTol(2*size/s.Ratio)), in("cluster_size", size), in("ratio", s.Ratio))
+	// Power grows with n1 (clusters never fall and effective sizes rise),
+	// so the smallest size that reaches the target is found by bisection,
+	// starting from the individual-level answer.
+	lo, hi := least-1, max(least, n1)
+	if ok(least) {
+		hi = least
+	} else {
 		for step := 1; !ok(hi); step *= 2 {
 			lo, hi = hi, hi+step
 			if hi > MaxSize {
 				return solved{}, checkSizes(s, float64(hi))
 			}
 		}
-		for hi-lo > 1 {
-			mid := lo + (hi-lo)/2
-			if ok(mid) {
-				hi = mid
-			} else {
-				lo = mid
-			}
-		}
-		lo = hi
 	}
-	sz, e, calc = at(lo)
-	return solved{nstar, sz, calc, e}, nil
+	for hi-lo > 1 {
+		mid := lo + (hi-lo)/2
+		if ok(mid) {
+			hi = mid
+		} else {
+			lo = mid
+		}
+	}
+	ins := []Input{inInt("cluster_minimum", least), in("target_power", s.Power), in("power_at_output", powerAt(hi))}
+	if hi > least {
+		ins = append(ins, in("power_one_below", powerAt(hi-1)))
+	}
+	n1 = tr.addInt("analysable_first", "the smallest first-arm size of at least cluster_minimum whose clusters (ceil(enrolment / cluster_size) per arm) reach the target power in a t test on cluster summaries with clusters_first + clusters_second − 2 degrees of freedom, the second arm being ceil(ratio × first); the search starts at formula_first, the individual-level answer", hi, ins...)
+	sz := clusterSizes(s, n1, tr)
+	ec := e
+	ec.clusterK = clustersFor(s, sz.enrol)
+	recordClusters(s, tr, sz, ec)
+	return solved{nstar, sz, newCalculator(s, m, ec), ec}, nil
 }
 
 // clustersFor returns the clusters per arm that an enrolment fills:
@@ -290,21 +395,30 @@ func clustersFor(s *Spec, enrol []int) [2]int {
 	return [2]int{ceilTol(float64(enrol[0]) / s.Cluster.Size), ceilTol(float64(enrol[1]) / s.Cluster.Size)}
 }
 
+// recordClusters records the clusters per arm and the effective sizes of a
+// cluster design.
+func recordClusters(s *Spec, tr *trail, sz sizes, e effects) {
+	for i, g := range []string{"first", "second"} {
+		tr.addInt("clusters_"+g, "ceil(enrol_"+g+" / cluster_size)", e.clusterK[i], inInt("enrol_"+g, sz.enrol[i]), in("cluster_size", s.Cluster.Size))
+	}
+	recordEffective(s, tr, sz)
+}
+
 // clusterSizes returns the sizes of a cluster design with n1 analysable
-// participants in the first arm (at least two clusters per arm).
-func clusterSizes(s *Spec, n1 int) sizes {
-	n2 := ceilTol(s.Ratio * float64(n1))
+// participants in the first arm: the second ceil(ratio × n1).
+func clusterSizes(s *Spec, n1 int, tr *trail) sizes {
+	n2 := tr.addInt("analysable_second", "ceil(ratio × analysable_first)", ceilTol(s.Ratio*float64(n1)), in("ratio", s.Ratio), inInt("analysable_first", n1))
 	return sizes{
 		n:     []int{n1, n2},
-		enrol: []int{ceilTol(float64(n1) / (1 - s.Attrition)), ceilTol(float64(n2) / (1 - s.Attrition))},
+		enrol: []int{enrolFor(s, "enrol_first", n1, tr), enrolFor(s, "enrol_second", n2, tr)},
 		eff:   [2]float64{float64(n1) / s.DesignEffect, float64(n2) / s.DesignEffect},
 	}
 }
 
 // atEnrolment builds the calculator for sizes given by the specification
 // (solving power or effect), with the clusters those sizes make.
-func atEnrolment(s *Spec, m *MethodInfo, e effects) (sizes, calculator, effects, error) {
-	sz, err := sizesFromEnrolment(s)
+func atEnrolment(s *Spec, m *MethodInfo, e effects, tr *trail) (sizes, calculator, effects, error) {
+	sz, err := sizesFromEnrolment(s, tr)
 	if err != nil {
 		return sz, nil, e, err
 	}
@@ -313,33 +427,121 @@ func atEnrolment(s *Spec, m *MethodInfo, e effects) (sizes, calculator, effects,
 		if e.clusterK[0] < 2 || e.clusterK[1] < 2 {
 			return sz, nil, e, &SpecError{File: s.File, Key: "n", Msg: fmt.Sprintf("%s analysable participants make fewer than two clusters of %g in an arm; allowed: at least two clusters per arm", fmtSizes(sz.n), s.Cluster.Size)}
 		}
+		for i, g := range []string{"first", "second"} {
+			tr.addInt("clusters_"+g, "ceil(enrol_"+g+" / cluster_size)", e.clusterK[i], inInt("enrol_"+g, sz.enrol[i]), in("cluster_size", s.Cluster.Size))
+		}
 	}
 	return sz, newCalculator(s, m, e), e, nil
+}
+
+// recordEffects records the dilution and the multiplicity correction, the
+// first steps of every comparison.
+func recordEffects(s *Spec, tr *trail, e effects) {
+	if s.Design == "cross-sectional" {
+		tr.add("ratio", "(1 − exposure_prevalence) / exposure_prevalence: the unexposed per exposed respondent", s.Ratio, in("exposure_prevalence", s.ExposurePrevalence))
+	}
+	if k := comparisons(s); k > 1 {
+		tr.add("alpha_per_comparison", "alpha / comparisons (Bonferroni)", e.alpha, in("alpha", s.Alpha), inInt("comparisons", k))
+	}
+	if !e.diluted || s.Solve == "effect" {
+		return
+	}
+	na, c := in("non_adherence", s.NonAdherence), in("contamination", s.Contamination)
+	switch s.Outcome {
+	case "continuous":
+		tr.add("diluted_difference", "difference × (1 − non_adherence − contamination) (Lachin & Foulkes 1986)", e.diff, in("difference", s.MeanDiff), na, c)
+	case "time-to-event":
+		tr.add("diluted_hazard_ratio", "exp(ln(hazard_ratio) × (1 − non_adherence − contamination)) (Lachin & Foulkes 1986)", e.hr, in("hazard_ratio", s.HazardRatio), na, c)
+	default:
+		p1, p2 := in("first_risk", s.P1), in("second_risk", s.P2)
+		tr.add("diluted_first_risk", "(1 − non_adherence) × first_risk + non_adherence × second_risk (Lachin & Foulkes 1986)", e.p1, p1, p2, na)
+		tr.add("diluted_second_risk", "(1 − contamination) × second_risk + contamination × first_risk", e.p2, p1, p2, c)
+	}
+}
+
+// recordPower records the totals and the power at the rounded sizes.
+func recordPower(s *Spec, tr *trail, sv solved, what string) float64 {
+	sz := sv.sz
+	if s.Solve == "n" {
+		if s.Cluster == nil {
+			recordEffective(s, tr, sz)
+		}
+		recordTotals(s, tr, "analysable", sz.n)
+		recordTotals(s, tr, "enrol", sz.enrol)
+	}
+	ins := sizeInputs(s, tr, sz)
+	if sc, ok := sv.calc.(survivalCalc); ok {
+		p1, p2 := sc.probabilities()
+		if s.Solve != "n" {
+			sc.recordProbabilities(tr, p1, p2)
+		}
+		rule := ins[0].Name + " × event_probability_first + " + ins[1].Name + " × event_probability_second"
+		ins = []Input{tr.inputOf("expected_events", rule,
+			sc.expectedEvents(sz.eff[0], sz.eff[1]), append(ins, in("event_probability_first", p1), in("event_probability_second", p2))...)}
+		ins = append(ins, in("allocation", sz.eff[1]/sz.eff[0]))
+	}
+	if sv.e.clusterK[0] > 0 {
+		ins = append(ins, inInt("clusters_first", sv.e.clusterK[0]), inInt("clusters_second", sv.e.clusterK[1]))
+	}
+	return tr.add(what, sv.calc.powerName(), sv.calc.power(sz.eff[0], sz.eff[1]), append(ins, sv.calc.params()...)...)
+}
+
+// inputOf records a step and returns it as an input of the next.
+func (t *trail) inputOf(name, rule string, out float64, ins ...Input) Input {
+	t.add(name, rule, out, ins...)
+	return in(name, out)
+}
+
+// recordTotals records the total over the groups (and arms).
+func recordTotals(s *Spec, tr *trail, what string, n []int) {
+	if len(n) == 1 {
+		return
+	}
+	a, b := inInt(what+"_first", n[0]), inInt(what+"_second", n[1])
+	switch {
+	case s.Arms > 2 && s.Comparisons == "all-pairs":
+		tr.addInt(what+"_total", "arms × "+what+"_first (every arm the same size)", totalOf(s, n), inInt("arms", s.Arms), a)
+	case s.Arms > 2:
+		tr.addInt(what+"_total", "(arms − 1) × "+what+"_first + "+what+"_second (each intervention arm has the first group's size, the control arm the second's)", totalOf(s, n), inInt("arms", s.Arms), a, b)
+	default:
+		tr.addInt(what+"_total", what+"_first + "+what+"_second", totalOf(s, n), a, b)
+	}
 }
 
 func planComparison(s *Spec, res *Result, m *MethodInfo) error {
 	others := []*MethodInfo{}
 	for i := range Methods {
+		if s.Cluster != nil {
+			// The cluster-level t test is the analysis whatever the method:
+			// other methods would give the same answer.
+			break
+		}
 		o := &Methods[i]
+		if s.MarginScale == "ratio" && o.ID == "blackwelder" {
+			continue // a Wald method on the difference scale
+		}
 		if o.ID != m.ID && o.ID != "exact" && o.serves(s.Design, s.Goal, s.Outcome, s.Hypothesis) {
 			others = append(others, o)
 		}
 	}
+	tr := &trail{}
+	defer func() { res.Steps = tr.steps }()
 	e := plannedEffects(s)
+	recordEffects(s, tr, e)
 	ans := &res.Result
 	var main solved
 	switch s.Solve {
 	case "n":
 		var err error
-		if main, err = solveN(s, m, e); err != nil {
+		if main, err = solveN(s, m, e, tr); err != nil {
 			return err
 		}
 		ans.NStar = main.nstar
 		fillSizes(s, ans, main.sz)
-		ans.AchievedPower = ptr(main.calc.power(main.sz.eff[0], main.sz.eff[1]))
+		ans.AchievedPower = ptr(recordPower(s, tr, main, "achieved_power"))
 		var differ []string
 		for _, o := range others {
-			alt, err := solveN(s, o, e)
+			alt, err := solveN(s, o, e, nil)
 			if err != nil {
 				continue
 			}
@@ -365,27 +567,28 @@ func planComparison(s *Spec, res *Result, m *MethodInfo) error {
 			// What the dilution costs: the same plan without it.
 			plain := e
 			plain.p1, plain.p2, plain.diff, plain.hr = s.P1, s.P2, s.MeanDiff, s.HazardRatio
-			if u, err := solveN(s, m, plain); err == nil {
+			plain.na, plain.c, plain.diluted = 0, 0, false
+			if u, err := solveN(s, m, plain, nil); err == nil {
 				ans.UndilutedN = u.sz.n
 			}
 		}
 	case "power", "effect":
-		sz, calc, e2, err := atEnrolment(s, m, e)
+		sz, calc, e2, err := atEnrolment(s, m, e, tr)
 		if err != nil {
 			return err
 		}
 		main = solved{sz: sz, calc: calc, e: e2}
 		fillSizes(s, ans, sz)
 		if s.Solve == "power" {
-			ans.AchievedPower = ptr(calc.power(sz.eff[0], sz.eff[1]))
+			ans.AchievedPower = ptr(recordPower(s, tr, main, "power"))
 			if *ans.AchievedPower < 0.8 {
 				res.Warnings = append(res.Warnings, fmt.Sprintf("The power is %.1f%%, below the customary 80%%: the study may well miss an effect of this size.", 100**ans.AchievedPower))
 			}
 		} else {
-			ans.Detectable = detectable(s, calc, sz)
+			ans.Detectable = detectable(s, m, e2, sz, tr)
 		}
 		for _, o := range others {
-			_, oc, _, err := atEnrolment(s, o, e)
+			_, oc, oe, err := atEnrolment(s, o, e, nil)
 			if err != nil {
 				continue
 			}
@@ -393,7 +596,7 @@ func planComparison(s *Spec, res *Result, m *MethodInfo) error {
 			if s.Solve == "power" {
 				a.AchievedPower = ptr(oc.power(sz.eff[0], sz.eff[1]))
 			} else {
-				a.Detectable = detectable(s, oc, sz)
+				a.Detectable = detectable(s, o, oe, sz, nil)
 			}
 			res.Alternatives = append(res.Alternatives, a)
 		}
@@ -403,7 +606,7 @@ func planComparison(s *Spec, res *Result, m *MethodInfo) error {
 				what string
 				dir  int
 			}{{ans.Detectable.Lower, "below", -1}, {ans.Detectable.Upper, "above", 1}} {
-				if s.Sides == 1 && side.dir != oneSidedDir(s) {
+				if s.Sides == 1 && side.dir != s.Direction {
 					continue
 				}
 				if side.v == nil {
@@ -478,10 +681,10 @@ func describeDesign(s *Spec, res *Result, sv solved) {
 	}
 	if s.Outcome == "time-to-event" {
 		ans.Duration = ptr(s.Accrual + s.FollowUp)
-		if s.Ratio != 1 {
-			res.Notes = append(res.Notes, "With unequal allocation the events formulas are rougher: simulation of the log-rank test has found Schoenfeld's power a few points too high and Freedman's a few points too low when the larger arm is the control arm (the errors reverse the other way round); check the plan with enough simulate.")
+		if s.Ratio != 1 && s.Solve != "effect" && s.Hypothesis == "superiority" {
+			res.Warnings = append(res.Warnings, fmt.Sprintf("With unequal allocation the events formulas are rougher: simulation of the log-rank test has found %s a few points off the true power (Schoenfeld's too high and Freedman's too low when the larger arm is the control arm, the other way round otherwise); check the %s power with enough simulate.", MethodByID(s.Method).Name, pct1(*ans.AchievedPower)))
 		}
-		if sc, ok := sv.calc.(survivalCalc); ok {
+		if sc, ok := sv.calc.(survivalCalc); ok && sv.sz.n != nil {
 			ans.ExpectedEvents = ptr(sc.expectedEvents(sv.sz.eff[0], sv.sz.eff[1]))
 			if s.Solve == "n" {
 				if d, err := sc.events(s.Power); err == nil {
@@ -507,6 +710,9 @@ func describeDesign(s *Spec, res *Result, sv solved) {
 		ans.AlphaPerComparison = ptr(sv.e.alpha)
 	}
 }
+
+// pct1 formats a probability as a percentage with one decimal.
+func pct1(p float64) string { return strconv.FormatFloat(100*p, 'f', 1, 64) + "%" }
 
 func fillSizes(s *Spec, ans *Answer, sz sizes) {
 	ans.N, ans.Total = sz.n, totalOf(s, sz.n)
@@ -539,6 +745,8 @@ func solveError(s *Spec, err error) error {
 	switch {
 	case errors.Is(err, power.ErrNothingToDetect):
 		return &PlanError{File: s.File, Msg: s.EffectKey + ": nothing to detect: the groups have the same risk", Err: err}
+	case errors.Is(err, power.ErrUnreachable) && s.Hypothesis != "superiority":
+		return &PlanError{File: s.File, Msg: fmt.Sprintf("power: %g cannot be reached: the assumed true effect lies at or beyond the %s margin, or the target is at or below alpha; allowed: a true effect inside the margin and a target power well above alpha", s.Power, s.Hypothesis), Err: err}
 	case errors.Is(err, power.ErrUnreachable):
 		return &PlanError{File: s.File, Msg: fmt.Sprintf("power: %g is so close to alpha that the formula reaches it with no participants; allowed: a target power well above alpha (e.g. 0.8)", s.Power), Err: err}
 	}
@@ -581,49 +789,6 @@ func scaleValue(key string, p1, p2 float64) float64 {
 	return p1
 }
 
-// detectable finds the smallest detectable effect in both directions.
-func detectable(s *Spec, calc calculator, sz sizes) *Detectable {
-	d := &Detectable{Scale: s.EffectKey}
-	dirs := []int{-1, 1}
-	if s.Sides == 1 {
-		// A one-sided test detects effects on its own side only.
-		dirs = []int{oneSidedDir(s)}
-		d.Direction = map[int]string{-1: "lower", 1: "upper"}[dirs[0]]
-	}
-	for _, dir := range dirs {
-		v, e, err := calc.detect(sz.eff[0], sz.eff[1], s.Power, dir)
-		if err != nil {
-			continue
-		}
-		if dir < 0 {
-			d.Lower, d.LowerEffect = ptr(v), e
-		} else {
-			d.Upper, d.UpperEffect = ptr(v), e
-		}
-	}
-	return d
-}
-
-// oneSidedDir is the direction a one-sided test looks: −1 when the first
-// group is expected lower (risk, mean or hazard), +1 otherwise.
-func oneSidedDir(s *Spec) int {
-	switch s.Outcome {
-	case "continuous":
-		if s.MeanDiff < 0 {
-			return -1
-		}
-	case "time-to-event":
-		if s.HazardRatio < 1 {
-			return -1
-		}
-	default:
-		if s.P1 < s.P2 {
-			return -1
-		}
-	}
-	return 1
-}
-
 // smallCells warns when an expected cell count is small.
 func smallCells(s *Spec, res *Result, sz sizes) {
 	p1 := s.P1
@@ -651,7 +816,7 @@ func methodTestNotes(s *Spec, res *Result) {
 
 // commonNotes adds notes on interpretation.
 func commonNotes(s *Spec, res *Result) {
-	if s.Design != "case-control" && s.Outcome == "binary" && math.Max(s.P1, s.P2) > 0.1 && s.P1 != s.P2 {
+	if s.Design != "case-control" && s.Outcome == "binary" && math.Max(s.P1, s.P2) > 0.1 && s.P1 != s.P2 && s.Solve != "effect" {
 		res.Notes = append(res.Notes, fmt.Sprintf("The outcome is not rare (up to %.0f%%): the odds ratio (%.3g) lies further from 1 than the risk ratio (%.3g) and should not be read as one.",
 			100*math.Max(s.P1, s.P2), power.OddsRatio(s.P1, s.P2), s.P1/s.P2))
 	}
@@ -666,22 +831,6 @@ func commonNotes(s *Spec, res *Result) {
 	if s.DesignEffect > 1 {
 		res.Notes = append(res.Notes, fmt.Sprintf("The design effect of %.4g inflates each group's size; power is evaluated at the effective sizes (analysable participants divided by the design effect).", s.DesignEffect))
 	}
-	res.Order = []string{
-		"n* = the unrounded size of the first group from the formula; the second group has ratio x n*",
-		"analysable per group = ceil(n* x design_effect), the second group ceil(ratio x n* x design_effect)",
-		"enrolment per group = ceil(analysable / (1 - attrition))",
-		"totals are the sums of the groups; achieved power is evaluated at analysable / design_effect",
-	}
-	if s.Outcome == "time-to-event" && s.Solve == "n" {
-		res.Order = append([]string{"events D from the formula, rounded up; n* = D / (P1 + ratio x P2) with each arm's probability of an observed event"}, res.Order[1:]...)
-	}
-	if s.Solve != "n" {
-		res.Order = []string{
-			"enrolment: the first group as given, the second ceil(ratio x n) (cross-sectional: the total split by exposure_prevalence)",
-			"analysable per group = floor(enrolment x (1 - attrition))",
-			"effective size = analysable / design_effect, at which power is evaluated",
-		}
-	}
 }
 
 // planPrecision sizes a survey that estimates one prevalence.
@@ -689,34 +838,67 @@ func planPrecision(s *Spec, res *Result) error {
 	pr := power.Precision{P: s.ExpectedPrevalence, Confidence: s.Confidence,
 		DesignEffect: s.DesignEffect, Population: float64(s.Population)}
 	ans := &res.Result
+	tr := &trail{}
+	defer func() { res.Steps = tr.steps }()
+	z := power.ZAlpha(1-s.Confidence, 2)
+	p := s.ExpectedPrevalence
 	switch s.Solve {
 	case "n":
 		n0, n := power.PrecisionN(pr, s.Margin)
 		if err := checkSizes(s, n, n/(1-s.Attrition)); err != nil {
 			return err
 		}
-		a := ceilTol(n)
+		tr.add("z", "the standard normal quantile at (1 + confidence) / 2", z, in("confidence", s.Confidence))
+		tr.add("n0", "z² × expected_prevalence × (1 − expected_prevalence) / margin² (simple random sampling; Cochran 1977)", n0, in("z", z), in("expected_prevalence", p), in("margin", s.Margin))
+		next := "n0"
+		if s.DesignEffect != 1 {
+			tr.add("n_design", "n0 × design_effect", n0*s.DesignEffect, in("n0", n0), in("design_effect", s.DesignEffect))
+			next = "n_design"
+		}
+		if s.Population > 0 {
+			nd := n0 * s.DesignEffect
+			tr.add("n_population", next+" / (1 + ("+next+" − 1) / population) (finite population correction)", n, in(next, nd), inInt("population", s.Population))
+			next = "n_population"
+		}
+		a := tr.addInt("analysable_first", "ceil("+next+"): the respondents needed", ceilTol(n), in(next, n))
 		ans.N0, ans.NStar = n0, n
 		ans.N, ans.Total = []int{a}, a
-		ans.Enrol = []int{ceilTol(float64(a) / (1 - s.Attrition))}
+		ans.Enrol = []int{tr.addInt("enrol_first", "ceil(analysable_first / (1 − attrition)): the people to invite, allowing for non-response", ceilTol(float64(a)/(1-s.Attrition)), inInt("analysable_first", a), in("attrition", s.Attrition))}
 		ans.EnrolTotal = ans.Enrol[0]
 		ans.Margin = ptr(s.Margin)
 		if s.Population > 0 && ans.EnrolTotal > s.Population {
 			res.Warnings = append(res.Warnings, fmt.Sprintf("The enrolment of %d exceeds the population of %d: survey everyone and report the achieved margin.", ans.EnrolTotal, s.Population))
 		}
 	case "effect":
-		a := floorTol(float64(s.Total) * (1 - s.Attrition))
+		a := tr.addInt("analysable_first", "floor(total × (1 − attrition)): the respondents expected", floorTol(float64(s.Total)*(1-s.Attrition)), inInt("total", s.Total), in("attrition", s.Attrition))
 		if a < 1 {
 			return &SpecError{File: s.File, Key: "total", Msg: "after non-response no respondent is left; allowed: a larger total"}
 		}
 		ans.N, ans.Total = []int{a}, a
 		ans.Enrol, ans.EnrolTotal = []int{s.Total}, s.Total
-		ans.Margin = ptr(power.PrecisionMargin(pr, float64(a)))
+		tr.add("z", "the standard normal quantile at (1 + confidence) / 2", z, in("confidence", s.Confidence))
+		next := "analysable_first"
+		nv := float64(a)
+		if s.Population > 0 {
+			if nv < float64(s.Population) {
+				nv = tr.add("n_before_population", "analysable_first × (population − 1) / (population − analysable_first) (undoing the finite population correction)", nv*float64(s.Population-1)/(float64(s.Population)-nv), inInt("analysable_first", a), inInt("population", s.Population))
+				next = "n_before_population"
+			}
+		}
+		if s.DesignEffect != 1 {
+			nv = tr.add("n0", next+" / design_effect", nv/s.DesignEffect, in(next, nv), in("design_effect", s.DesignEffect))
+			next = "n0"
+		}
+		rule := "z × sqrt(expected_prevalence × (1 − expected_prevalence) / " + next + ")"
+		if s.Population > 0 && a >= s.Population {
+			rule = "0: every member of the population responds (a census)"
+		}
+		ans.Margin = ptr(tr.add("margin", rule, power.PrecisionMargin(pr, float64(a)), in("z", z), in("expected_prevalence", p), in(next, nv)))
 		if *ans.Margin >= 0.5 {
 			res.Warnings = append(res.Warnings, "The achievable margin is wider than ±50 percentage points: this survey cannot estimate the prevalence usefully.")
 		}
 	}
-	p, d := s.ExpectedPrevalence, *ans.Margin
+	d := *ans.Margin
 	if d >= p || d >= 1-p {
 		res.Warnings = append(res.Warnings, fmt.Sprintf("The margin (%.3g) is not smaller than the expected prevalence or its complement: the Wald interval would cross 0 or 1; an exact (Clopper-Pearson) or Wilson interval suits better.", d))
 	}
@@ -725,20 +907,6 @@ func planPrecision(s *Spec, res *Result) error {
 	}
 	if s.DesignEffect > 1 {
 		res.Notes = append(res.Notes, fmt.Sprintf("The design effect of %.4g multiplies the simple-random-sampling size.", s.DesignEffect))
-	}
-	res.Order = []string{
-		"n0 = z^2 p (1 - p) / margin^2 (simple random sampling)",
-		"times design_effect",
-		"finite population correction n / (1 + (n - 1) / population), when population is given",
-		"rounded up: the respondents needed",
-		"divided by (1 - attrition) for non-response and rounded up: the number to invite",
-	}
-	if s.Solve == "effect" {
-		res.Order = []string{
-			"respondents = floor(total x (1 - attrition))",
-			"undo the finite population correction and the design effect",
-			"margin = z sqrt(p (1 - p) / n0)",
-		}
 	}
 	return nil
 }

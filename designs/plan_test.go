@@ -270,3 +270,16 @@ func BenchmarkPlanT(b *testing.B) {
 func BenchmarkPlanSurvival(b *testing.B) {
 	benchPlan(b, "version: 1\ndesign: trial\noutcome: time-to-event\nhazard_ratio: 0.75\ncontrol_median: 12\naccrual: 24\nfollow_up: 12\ndropout: 0.01\npower: 0.8\n")
 }
+
+// BenchmarkPlanEffectCluster measures solving the detectable effect of a
+// binary cluster trial with non-adherence: the search on the cluster-level
+// t test's power in both directions.
+func BenchmarkPlanEffectCluster(b *testing.B) {
+	benchPlan(b, "version: 1\ndesign: trial\ncontrol_risk: 0.3\nrisk_ratio: 1\nsolve: effect\nn: 300\npower: 0.9\nnon_adherence: 0.1\ncluster: {size: 10, icc: 0.05}\n")
+}
+
+// BenchmarkPlanEffectT measures solving the detectable difference in means
+// with the exact t power (and the z alternative).
+func BenchmarkPlanEffectT(b *testing.B) {
+	benchPlan(b, "version: 1\ndesign: trial\noutcome: continuous\nmean_difference: 0\nsd: 10\nsolve: effect\nn: 80\npower: 0.9\nnon_adherence: 0.2\n")
+}

@@ -44,10 +44,12 @@ type Result struct {
 	Assumptions  []Assumption  `json:"assumptions"`
 	Result       Answer        `json:"result"`
 	Alternatives []Alternative `json:"alternatives"`
-	Order        []string      `json:"inflation_order"`
-	Notes        []string      `json:"notes"`
-	Warnings     []string      `json:"warnings"`
-	Cautions     []string      `json:"cautions"`
+	// Steps are the steps the computation took, in order: replaying them
+	// by hand gives the answer.
+	Steps    []Step   `json:"steps"`
+	Notes    []string `json:"notes"`
+	Warnings []string `json:"warnings"`
+	Cautions []string `json:"cautions"`
 
 	// Simulation is the verification by simulation, when asked for.
 	Simulation *Simulation `json:"simulation,omitempty"`
@@ -61,6 +63,10 @@ type Assumption struct {
 	Key    string `json:"key"`
 	Value  string `json:"value"`
 	Source string `json:"source,omitempty"`
+	// SetOnCommandLine marks a value that --set gave in place of the
+	// file's; File then holds what the file gave (nil when it gave none).
+	SetOnCommandLine bool       `json:"set_on_command_line,omitempty"`
+	File             *FileValue `json:"file,omitempty"`
 }
 
 // Answer is the computed answer.
@@ -151,6 +157,19 @@ type Detectable struct {
 	// Direction is "lower" or "upper" for a one-sided test, which detects
 	// effects on its own side only; empty for a two-sided test.
 	Direction   string   `json:"direction,omitempty"`
+	Lower       *float64 `json:"lower"`
+	Upper       *float64 `json:"upper"`
+	LowerEffect *Effect  `json:"lower_effect,omitempty"`
+	UpperEffect *Effect  `json:"upper_effect,omitempty"`
+	// Diluted holds, with non-adherence or contamination, the effects an
+	// intention-to-treat analysis sees when the detectable effects (those
+	// of receiving the intervention) are diluted; nil without dilution.
+	Diluted *DilutedBounds `json:"diluted,omitempty"`
+}
+
+// DilutedBounds are the detectable effects after dilution, on the same
+// scale.
+type DilutedBounds struct {
 	Lower       *float64 `json:"lower"`
 	Upper       *float64 `json:"upper"`
 	LowerEffect *Effect  `json:"lower_effect,omitempty"`

@@ -74,9 +74,12 @@ func simModel(s *Spec, res *Result, sizes [2]int, null bool) (simSetup, error) {
 	}
 
 	sides, dir := s.Sides, 1
+	if s.Sides == 1 && s.Direction != 0 {
+		dir = s.Direction
+	}
 	switch s.Outcome {
 	case "binary":
-		if e.p1 < e.p2 {
+		if s.Sides != 1 && e.p1 < e.p2 {
 			dir = -1
 		}
 		p1, p2 := e.p1, e.p2
@@ -93,12 +96,24 @@ func simModel(s *Spec, res *Result, sizes [2]int, null bool) (simSetup, error) {
 				return unavailable(fmt.Sprintf("the %s test's table for %d and %d is too large to build; at these sizes the closed form's normal approximation is accurate", s.Test, n1, n2))
 			}
 			var table []bool
-			if s.Hypothesis == "equivalence" {
+			ratio := s.MarginScale == "ratio"
+			switch {
+			case ratio && s.Hypothesis == "equivalence":
+				table = power.RatioEquivalenceRejectionTable(n1, n2, s.Margin, e.alpha)
+				if null {
+					p1 = p2 * s.Margin
+				}
+			case ratio:
+				table = power.RatioMarginRejectionTable(n1, n2, s.Margin, e.alpha)
+				if null {
+					p1 = p2 * s.Margin
+				}
+			case s.Hypothesis == "equivalence":
 				table = power.EquivalenceRejectionTable(mm, n1, n2, s.Margin, e.alpha)
 				if null {
 					p1 = p2 + s.Margin
 				}
-			} else {
+			default:
 				table = power.MarginRejectionTable(mm, n1, n2, d0, e.alpha)
 				if null {
 					p1 = p2 + d0
@@ -139,7 +154,7 @@ func simModel(s *Spec, res *Result, sizes [2]int, null bool) (simSetup, error) {
 			if !s.HigherIsBetter {
 				dir, bound = -1, s.Margin
 			}
-		} else if diff < 0 {
+		} else if s.Sides != 1 && diff < 0 {
 			dir = -1
 		}
 		if null {
@@ -167,15 +182,35 @@ func simModel(s *Spec, res *Result, sizes [2]int, null bool) (simSetup, error) {
 		return st, nil
 
 	case "time-to-event":
-		hr := e.hr
-		if hr < 1 {
+		// Each arm is simulated as a mixture of those receiving the
+		// intervention (hazard HR·h) and those not (hazard h).
+		hr := e.plannedHR
+		if s.Sides != 1 && e.hr < 1 {
 			dir = -1
 		}
-		if null {
-			hr = 1
+		sim := power.SurvivalSim{N1: n1, N2: n2, Cross1: s.NonAdherence, Cross2: s.Contamination,
+			Entry: power.Entry{Accrual: s.Accrual, FollowUp: s.FollowUp, Dropout: power.DropoutHazard(s.Dropout)},
+			Alpha: e.alpha, Sides: sides, Dir: dir}
+		switch s.Hypothesis {
+		case "non-inferiority", "equivalence":
+			sim.Sides, sim.Dir, sim.Margin = 1, 0, s.Margin
+			sim.Equivalence = s.Hypothesis == "equivalence"
+			if null {
+				// The null at the margin: the diluted hazard ratio equals it.
+				hr = math.Exp(math.Log(s.Margin) / (1 - s.NonAdherence - s.Contamination))
+				st.null = fmt.Sprintf("a hazard ratio at the margin (%s)", trimFloat(s.Margin))
+			}
+			st.notes = append(st.notes, "The margin test is simulated on the log-rank statistic with Peto's estimate of the log hazard ratio, (O − E)/V, against the log margin.")
+		default:
+			if null {
+				hr = 1
+			}
 		}
-		entry := power.Entry{Accrual: s.Accrual, FollowUp: s.FollowUp, Dropout: power.DropoutHazard(s.Dropout)}
-		st.model = power.NewSurvivalModel(n1, n2, hr*s.ControlHazard, s.ControlHazard, entry, e.alpha, sides, dir)
+		if e.diluted {
+			st.notes = append(st.notes, "Non-adherence and contamination are simulated participant by participant: each crosses to the other arm's hazard with the probability given.")
+		}
+		sim.H1, sim.H2 = hr*s.ControlHazard, s.ControlHazard
+		st.model = power.NewSurvivalSim(sim)
 		return st, nil
 	}
 	return unavailable("this outcome is not simulated")

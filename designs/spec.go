@@ -79,11 +79,19 @@ type Spec struct {
 	// Trials.
 	Hypothesis     string // superiority, non-inferiority, equivalence
 	HigherIsBetter bool
-	NonAdherence   float64
-	Contamination  float64
-	Arms           int
-	Comparisons    string // each-vs-control or all-pairs
-	Cluster        *Cluster
+	// MarginScale is the scale of a binary outcome's margin: difference
+	// (risk difference) or ratio (risk ratio); time-to-event margins are
+	// hazard ratios.
+	MarginScale string
+	// Direction is the side a one-sided superiority test looks: +1 when the
+	// first group's risk, mean or hazard is higher than the second's under
+	// the alternative, −1 when lower; 0 for a two-sided test.
+	Direction     int
+	NonAdherence  float64
+	Contamination float64
+	Arms          int
+	Comparisons   string // each-vs-control or all-pairs
+	Cluster       *Cluster
 	// Simulate is the simulate block, or nil.
 	Simulate *SimulateSpec
 
@@ -118,6 +126,17 @@ type Spec struct {
 
 	// Ignored lists keys given but not used by this solve, with the reason.
 	Ignored []string
+
+	// Overridden holds, for each key --set changed, what the specification
+	// file said of it (empty when the file did not set the key).
+	Overridden map[string]FileValue
+}
+
+// FileValue is what the specification file gave for a key that the
+// command line overrode: its value as written and its source.
+type FileValue struct {
+	Value  string `json:"value,omitempty"`
+	Source string `json:"source,omitempty"`
 }
 
 // SimulateSpec is the simulate block: how to verify the plan by simulation.
@@ -170,6 +189,10 @@ type reader struct {
 	order   []*entry
 	// nested holds the keys of map-valued keys (sources, cluster).
 	nested map[string]map[string]*entry
+	// orig holds the file's entry of each key a --set replaced, and
+	// setKeys the keys --set gave, in order (dotted for nested keys).
+	orig    map[string]*entry
+	setKeys []string
 }
 
 func (r *reader) errAt(e *entry, format string, args ...any) *SpecError {
@@ -245,6 +268,7 @@ func Parse(file string, data []byte, sets []string) (*Spec, error) {
 		return nil, err
 	}
 	spec.File = file
+	spec.Overridden = r.overridden(spec.Sources)
 	spec.SHA256 = hex.EncodeToString(sum[:])
 	spec.Overrides = append([]string(nil), sets...)
 	return spec, nil
@@ -299,6 +323,9 @@ func (r *reader) add(e *entry) error {
 	}
 	if prev, ok := r.entries[e.key]; ok && !e.set {
 		return r.errAt(e, "given twice (first at line %d); allowed: each key once", prev.line)
+	}
+	if e.set {
+		r.noteSet(e.key, r.entries[e.key])
 	}
 	if prev, ok := r.entries[e.key]; ok {
 		// A --set override replaces the value in place.
@@ -408,8 +435,50 @@ func (r *reader) applySet(s string) error {
 	if err := r.checkNested(head, rest, e); err != nil {
 		return err
 	}
+	r.noteSet(key, r.nested[head][rest])
 	r.nested[head][rest] = e
 	return nil
+}
+
+// noteSet records that --set gave key, and the file's entry it replaces.
+func (r *reader) noteSet(key string, prev *entry) {
+	if r.orig == nil {
+		r.orig = map[string]*entry{}
+	}
+	if _, seen := r.orig[key]; !seen {
+		r.setKeys = append(r.setKeys, key)
+		if prev != nil && prev.file == r.file {
+			r.orig[key] = prev
+		} else {
+			r.orig[key] = nil
+		}
+	}
+}
+
+// overridden lists what the file said of each key --set changed, and
+// removes the file's source of such a key from sources: a source speaks of
+// the file's value, not of the command line's (unless --set gave a source
+// too).
+func (r *reader) overridden(sources map[string]string) map[string]FileValue {
+	out := map[string]FileValue{}
+	for _, k := range r.setKeys {
+		if strings.HasPrefix(k, "sources.") || strings.HasPrefix(k, "simulate.") {
+			continue
+		}
+		var fv FileValue
+		if e := r.orig[k]; e != nil && e.node.Kind == yaml.ScalarNode {
+			fv.Value = e.node.Value
+		}
+		if se := r.nested["sources"][k]; se != nil && se.file == r.file {
+			fv.Source = strings.TrimSpace(se.node.Value)
+			delete(sources, k)
+		} else if se := r.orig["sources."+k]; se != nil {
+			// --set gave a new source too; keep the file's beside it.
+			fv.Source = strings.TrimSpace(se.node.Value)
+		}
+		out[k] = fv
+	}
+	return out
 }
 
 // get returns the entry for key, or nil when absent or null.

@@ -111,11 +111,18 @@ func TestNonInferiorityPlan(t *testing.T) {
 		if row["p1"] != row["p2"] {
 			spec += "intervention_risk: " + row["p1"] + "\n"
 		}
-		res := mustPlan(t, spec)
 		n1, r := row.F(t, "n1_star"), row.F(t, "ratio")
 		want := []int{int(math.Ceil(n1)), int(math.Ceil(r * n1))}
-		if got := res.Result.N; got[0] != want[0] || got[1] != want[1] {
-			t.Errorf("%s: n = %v, want %v (%s)", row["id"], got, want, row["source"])
+		// No true difference may also be stated explicitly, on any scale.
+		extras := []string{""}
+		if row["p1"] == row["p2"] {
+			extras = append(extras, "intervention_risk: "+row["p2"]+"\n", "risk_difference: 0\n", "risk_ratio: 1\n", "odds_ratio: 1\n")
+		}
+		for _, extra := range extras {
+			res := mustPlan(t, spec+extra)
+			if got := res.Result.N; got[0] != want[0] || got[1] != want[1] {
+				t.Errorf("%s %s: n = %v, want %v (%s)", row["id"], strings.TrimSpace(extra), got, want, row["source"])
+			}
 		}
 	}
 }
@@ -250,5 +257,86 @@ func TestTrialErrors(t *testing.T) {
 		if se.Key != c.key || !strings.Contains(se.Msg, c.msg) {
 			t.Errorf("%s: got key %q msg %q; want key %q msg containing %q", c.name, se.Key, se.Msg, c.key, c.msg)
 		}
+	}
+}
+
+// TestRatioMarginPlan runs ratio_n.tsv (independent R implementation of the
+// Farrington & Manning 1990 score method on the risk-ratio scale, restricted
+// MLE by numerical maximisation; see ratio_README.md) through
+// specifications with margin_scale: ratio: first group ceil(n*), second
+// ceil(ratio n*).
+func TestRatioMarginPlan(t *testing.T) {
+	rows := 0
+	for _, row := range reftable.Load(t, "ratio_n.tsv") {
+		if row["n1_star"] == "NA" {
+			continue
+		}
+		bound := row.F(t, "bound")
+		hyp := map[string]string{"noninferiority": "non-inferiority", "equivalence": "equivalence"}[row["kind"]]
+		if hyp == "" {
+			continue
+		}
+		spec := fmt.Sprintf("version: 1\ndesign: trial\nhypothesis: %s\nmargin_scale: ratio\nmargin: %s\nhigher_is_better: %v\ncontrol_risk: %s\nintervention_risk: %s\nratio: %s\nalpha: %s\npower: %s\n",
+			hyp, row["bound"], bound < 1, row["p2"], row["p1"], row["ratio"], row["alpha"], row["power"])
+		res := mustPlan(t, spec)
+		n1, r := row.F(t, "n1_star"), row.F(t, "ratio")
+		want := []int{int(math.Ceil(n1)), int(math.Ceil(r * n1))}
+		if got := res.Result.N; got[0] != want[0] || got[1] != want[1] {
+			t.Errorf("%s: n = %v, want %v (%s)", row["id"], got, want, row["source"])
+		}
+		if math.Abs(res.Result.NStar-n1) > 1e-9*n1 {
+			t.Errorf("%s: n* = %.12g, want %.12g", row["id"], res.Result.NStar, n1)
+		}
+		rows++
+	}
+	if rows < 10 {
+		t.Fatalf("only %d rows", rows)
+	}
+}
+
+// TestSurvivalMarginPlan runs survmargin_events.tsv (independent R
+// implementation of Schoenfeld 1983 with a log hazard-ratio margin, and of
+// two one-sided tests for equivalence; see survmargin_README.md) through
+// specifications: the events required are ceil(D) of the table's D, and
+// the power at the plan's expected events reaches the target. Rows whose
+// events are NA (the true ratio at or beyond the margin) must be refused.
+func TestSurvivalMarginPlan(t *testing.T) {
+	rows := 0
+	for _, row := range reftable.Load(t, "survmargin_events.tsv") {
+		hyp := map[string]string{"ni": "non-inferiority", "eq": "equivalence"}[row["test"]]
+		m := row.F(t, "margin")
+		if row.F(t, "alpha") > 0.5 || row.F(t, "power") <= row.F(t, "alpha") {
+			continue // engine-only rows: a specification refuses these settings
+		}
+		spec := fmt.Sprintf("version: 1\ndesign: trial\noutcome: time-to-event\nhypothesis: %s\nmargin: %s\nhigher_is_better: %v\nhazard_ratio: %s\nratio: %s\nalpha: %s\npower: %s\ncontrol_median: 12\nfollow_up: 24\n",
+			hyp, row["margin"], hyp == "non-inferiority" && m < 1, row["hr"], row["ratio"], row["alpha"], row["power"])
+		s, err := Parse("test.yaml", []byte(spec), nil)
+		if row["events"] == "NA" {
+			if err == nil {
+				if _, err = Plan(s); err == nil {
+					t.Errorf("%s: planned, want a refusal (%s)", row["id"], row["note"])
+				}
+			}
+			continue
+		}
+		if err != nil {
+			t.Errorf("%s: %v", row["id"], err)
+			continue
+		}
+		res, err := Plan(s)
+		if err != nil {
+			t.Errorf("%s: %v", row["id"], err)
+			continue
+		}
+		if want := int(math.Ceil(row.F(t, "events") - 1e-9)); res.Result.Events != want {
+			t.Errorf("%s: events %d, want %d (%s)", row["id"], res.Result.Events, want, row["source"])
+		}
+		if *res.Result.AchievedPower < row.F(t, "power") {
+			t.Errorf("%s: achieved power %v below the target", row["id"], *res.Result.AchievedPower)
+		}
+		rows++
+	}
+	if rows < 15 {
+		t.Fatalf("only %d rows", rows)
 	}
 }

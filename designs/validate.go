@@ -399,9 +399,6 @@ func (r *reader) effectToP1(s *Spec, e *entry) error {
 		if p1 > 0 && p1 < 1 {
 			s.P1 = p1
 		}
-		if s.Sides == 1 && !(p1 > 0 && p1 < 1 && math.Abs(p1-p2) > 1e-12) {
-			return r.errAt(e, "%s gives no direction, and a one-sided test looks one way; allowed: a value on the side the test looks (e.g. a ratio below 1 for a lower risk in the %s)", e.node.Value, roles[s.Design].first)
-		}
 		return nil
 	}
 	ro := roles[s.Design]
@@ -409,6 +406,11 @@ func (r *reader) effectToP1(s *Spec, e *entry) error {
 		return r.errAt(e, "%s with %s %g gives a risk of %.4g in the %s; allowed: an effect that keeps the risk strictly between 0 and 1", e.node.Value, s.ReferenceKey, p2, p1, ro.first)
 	}
 	if math.Abs(p1-p2) < 1e-12 {
+		if s.Hypothesis != "superiority" {
+			// No true difference: the usual assumption of such trials.
+			s.P1 = p2
+			return nil
+		}
 		return r.errAt(e, "%s means no difference between the groups: nothing to detect; allowed: an effect other than no difference (or solve: effect)", e.node.Value)
 	}
 	s.P1 = p1

@@ -203,6 +203,9 @@ func (r *reader) buildComparison(s *Spec) error {
 	if err != nil {
 		return err
 	}
+	if err := r.buildDirection(s); err != nil {
+		return err
+	}
 
 	// the planned test, now that the outcome is known
 	var te *entry
@@ -257,30 +260,8 @@ func (r *reader) buildSimulate(s *Spec) error {
 func (r *reader) buildTrial(s *Spec) error {
 	var err error
 	if s.Hypothesis != "superiority" {
-		m, me, err := r.number("margin")
-		if err != nil {
+		if err := r.buildMargin(s); err != nil {
 			return err
-		}
-		if me == nil {
-			return r.errFile("margin", "missing; required for hypothesis %s: the %s margin on the outcome's scale, a positive number", s.Hypothesis, s.Hypothesis)
-		}
-		if !(m > 0) {
-			return r.errAt(me, "%s is not allowed: the margin is the size of the difference still judged acceptable, a positive number; the direction comes from higher_is_better", me.node.Value)
-		}
-		if s.Outcome == "binary" && !(m < 1) {
-			return r.errAt(me, "%s is out of range; allowed: a risk difference in (0, 1)", me.node.Value)
-		}
-		s.Margin = m
-		hb, he, err := r.boolean("higher_is_better")
-		if err != nil {
-			return err
-		}
-		if he == nil && s.Hypothesis == "non-inferiority" {
-			return r.errFile("higher_is_better", "missing; required for hypothesis non-inferiority: true when a higher value of the outcome is better (e.g. cure), false when lower is better (e.g. infection)")
-		}
-		s.HigherIsBetter = hb
-		if s.Outcome == "time-to-event" {
-			return r.errAt(r.get("hypothesis"), "%s is not available for a time-to-event outcome yet; allowed: superiority", s.Hypothesis)
 		}
 	}
 
@@ -359,6 +340,131 @@ func (r *reader) buildTrial(s *Spec) error {
 	return nil
 }
 
+// buildMargin reads the margin of a non-inferiority or equivalence trial,
+// its scale and which values of the outcome are better.
+func (r *reader) buildMargin(s *Spec) error {
+	hb, he, err := r.boolean("higher_is_better")
+	if err != nil {
+		return err
+	}
+	if he == nil && s.Hypothesis == "non-inferiority" {
+		what := "true when a higher value of the outcome is better (e.g. cure), false when lower is better (e.g. infection)"
+		if s.Outcome == "time-to-event" {
+			what = "false when the event is harmful, so that a lower hazard is better (the usual case), true when the event is desirable (e.g. recovery)"
+		}
+		return r.errFile("higher_is_better", "missing; required for hypothesis non-inferiority: %s", what)
+	}
+	s.HigherIsBetter = hb
+	switch s.Outcome {
+	case "binary":
+		if s.MarginScale, _, err = r.choice("margin_scale", "difference", "difference", "ratio"); err != nil {
+			return err
+		}
+		if s.MarginScale == "ratio" && s.Method == "blackwelder" {
+			return r.errAt(r.get("margin_scale"), "ratio is planned by the Farrington-Manning score method; allowed: method farrington-manning, or margin_scale difference")
+		}
+	case "time-to-event":
+		s.MarginScale = "ratio"
+	default:
+		s.MarginScale = "difference"
+	}
+	m, me, err := r.number("margin")
+	if err != nil {
+		return err
+	}
+	ratio := s.MarginScale == "ratio"
+	what := map[bool]string{false: "on the outcome's scale, a positive number", true: "a ratio (" + marginRatioRange(s) + ")"}[ratio]
+	if me == nil {
+		return r.errFile("margin", "missing; required for hypothesis %s: the %s margin %s", s.Hypothesis, s.Hypothesis, what)
+	}
+	switch {
+	case ratio:
+		ok := m > 1 && !math.IsInf(m, 1)
+		if s.Hypothesis == "non-inferiority" && s.HigherIsBetter {
+			ok = m > 0 && m < 1
+		}
+		if !ok {
+			return r.errAt(me, "%s is out of range; allowed: %s", me.node.Value, marginRatioRange(s))
+		}
+	case !(m > 0):
+		return r.errAt(me, "%s is not allowed: the margin is the size of the difference still judged acceptable, a positive number; the direction comes from higher_is_better", me.node.Value)
+	case s.Outcome == "binary" && !(m < 1):
+		return r.errAt(me, "%s is out of range; allowed: a risk difference in (0, 1) (or margin_scale: ratio for a risk-ratio margin)", me.node.Value)
+	case math.IsInf(m, 1):
+		return r.errAt(me, "%s is out of range; allowed: a finite positive number", me.node.Value)
+	}
+	s.Margin = m
+	return nil
+}
+
+// marginRatioRange says which ratio margins are allowed.
+func marginRatioRange(s *Spec) string {
+	what := map[bool]string{false: "risk ratio", true: "hazard ratio"}[s.Outcome == "time-to-event"]
+	switch {
+	case s.Hypothesis == "equivalence":
+		return "a " + what + " above 1; the equivalence interval is (1/margin, margin)"
+	case s.HigherIsBetter:
+		return "a " + what + " in (0, 1), since higher is better: the null hypothesis is that the ratio (first over second) is at most the margin"
+	}
+	return "a " + what + " above 1, since lower is better: the null hypothesis is that the ratio (first over second) is at least the margin"
+}
+
+// buildDirection reads the side a one-sided superiority test looks, which
+// the effect key gives unless it states no difference.
+func (r *reader) buildDirection(s *Spec) error {
+	dv, de, err := r.choice("direction", "", "first-higher", "first-lower")
+	if err != nil {
+		return err
+	}
+	if de != nil && s.Hypothesis != "superiority" {
+		return r.errAt(de, "does not apply to hypothesis %s, whose side follows from higher_is_better and the margin; allowed: leave direction out", s.Hypothesis)
+	}
+	if de != nil && s.Sides != 1 {
+		return r.errAt(de, "applies to a one-sided test (sides: 1); a two-sided test looks both ways; allowed: leave direction out, or sides: 1")
+	}
+	if s.Sides != 1 || s.Hypothesis != "superiority" {
+		return nil
+	}
+	given := map[string]int{"first-higher": 1, "first-lower": -1}[dv]
+	implied := 0
+	sign := func(x float64) int {
+		switch {
+		case x > 1e-12:
+			return 1
+		case x < -1e-12:
+			return -1
+		}
+		return 0
+	}
+	switch s.Outcome {
+	case "continuous":
+		implied = sign(s.MeanDiff)
+	case "time-to-event":
+		implied = sign(s.HazardRatio - 1)
+	default:
+		switch scaleOf(s.EffectKey) {
+		case ScaleRatio, ScaleOdds:
+			implied = sign(s.EffectValue - 1)
+		case ScaleDifference:
+			implied = sign(s.EffectValue)
+		default:
+			implied = sign(s.EffectValue - s.P2)
+		}
+	}
+	word := map[int]string{1: "first-higher", -1: "first-lower"}
+	switch {
+	case given != 0 && implied != 0 && given != implied:
+		return r.errAt(de, "%s disagrees with %s %s, which puts the first group %s; allowed: %s, or an effect on the other side", dv, s.EffectKey, r.get(s.EffectKey).node.Value, map[int]string{1: "higher", -1: "lower"}[implied], word[implied])
+	case given == 0 && implied == 0:
+		return r.errFile("direction", "missing; required with sides: 1 when %s states no difference: first-higher or first-lower (the side the one-sided test looks: the first group's %s higher, or lower, than the second's)", s.EffectKey, map[string]string{"continuous": "mean", "time-to-event": "hazard"}[s.Outcome]+map[bool]string{true: "risk", false: ""}[s.Outcome == "binary"])
+	case given != 0:
+		s.Direction = given
+	default:
+		s.Direction = implied
+	}
+	return nil
+}
+
 // buildBinary reads the reference risk and the effect of a binary outcome.
 func (r *reader) buildBinary(s *Spec) error {
 	ro := roles[s.Design]
@@ -374,7 +480,7 @@ func (r *reader) buildBinary(s *Spec) error {
 	if effect == nil {
 		// Non-inferiority and equivalence: no true difference by default.
 		s.P1 = s.P2
-		return r.checkMarginSide(s, nil, 0)
+		return r.checkMarginSide(s, nil, r.marginEffect(s))
 	}
 	s.EffectKey = effect.key
 	if s.EffectValue, _, err = r.number(effect.key); err != nil {
@@ -383,7 +489,16 @@ func (r *reader) buildBinary(s *Spec) error {
 	if err := r.effectToP1(s, effect); err != nil {
 		return err
 	}
-	return r.checkMarginSide(s, effect, s.P1-s.P2)
+	return r.checkMarginSide(s, effect, r.marginEffect(s))
+}
+
+// marginEffect is the true effect of a binary outcome on the margin's
+// scale.
+func (r *reader) marginEffect(s *Spec) float64 {
+	if s.MarginScale == "ratio" {
+		return s.P1 / s.P2
+	}
+	return s.P1 - s.P2
 }
 
 // exactlyOne returns the one key of keys the specification gives; with
@@ -413,8 +528,9 @@ func (r *reader) exactlyOne(keys []string, required bool) (*entry, error) {
 	return found, nil
 }
 
-// checkMarginSide refuses a true difference that cannot show
-// non-inferiority or equivalence.
+// checkMarginSide refuses a true effect that cannot show non-inferiority
+// or equivalence: diff is the true difference, or on the ratio scale
+// (margin_scale ratio, hazard ratios) the true ratio.
 func (r *reader) checkMarginSide(s *Spec, e *entry, diff float64) error {
 	where := func(format string, args ...any) error {
 		if e != nil {
@@ -422,17 +538,29 @@ func (r *reader) checkMarginSide(s *Spec, e *entry, diff float64) error {
 		}
 		return r.errFile("margin", format, args...)
 	}
+	// Decimal inputs miss the margin by rounding noise (0.8 − 0.88 is
+	// −0.07999999999999996): an effect that close counts as at it.
+	const slack = 1e-9
+	x, m, what := diff, s.Margin, "difference"
+	if s.MarginScale == "ratio" {
+		x, m, what = math.Log(diff), math.Log(s.Margin), "ratio"
+	}
 	switch s.Hypothesis {
 	case "non-inferiority":
-		// Decimal inputs miss the margin by rounding noise (0.8 − 0.88 is
-		// −0.07999999999999996): a difference that close counts as at it.
-		const slack = 1e-9
-		if (s.HigherIsBetter && diff <= -s.Margin+slack) || (!s.HigherIsBetter && diff >= s.Margin-slack) {
-			return where("the true difference (%.4g) is at or beyond the non-inferiority margin (%g, %s): no sample size can show non-inferiority; allowed: a true difference on the acceptable side of the margin", diff, s.Margin, betterWord(s.HigherIsBetter))
+		bound := m
+		if s.MarginScale != "ratio" && s.HigherIsBetter {
+			bound = -m
+		}
+		if (s.HigherIsBetter && x <= bound+slack) || (!s.HigherIsBetter && x >= bound-slack) {
+			return where("the true %s (%.4g) is at or beyond the non-inferiority margin (%g, %s): no sample size can show non-inferiority; allowed: a true %s on the acceptable side of the margin", what, diff, s.Margin, betterWord(s.HigherIsBetter), what)
 		}
 	case "equivalence":
-		if math.Abs(diff) >= s.Margin-1e-9 {
-			return where("the true difference (%.4g) lies outside the equivalence margin ±%g: no sample size can show equivalence; allowed: a true difference inside the margin", diff, s.Margin)
+		if math.Abs(x) >= math.Abs(m)-slack {
+			bounds := fmt.Sprintf("±%g", s.Margin)
+			if s.MarginScale == "ratio" {
+				bounds = fmt.Sprintf("(%.4g, %g)", 1/s.Margin, s.Margin)
+			}
+			return where("the true %s (%.4g) lies outside the equivalence margin %s: no sample size can show equivalence; allowed: a true %s inside the margin", what, diff, bounds, what)
 		}
 	}
 	return nil
@@ -485,9 +613,6 @@ func (r *reader) buildContinuous(s *Spec) error {
 	effectEntry := mde
 	if effectEntry == nil {
 		effectEntry = fe
-	}
-	if s.Solve == "effect" && s.Sides == 1 && s.MeanDiff == 0 && effectEntry != nil {
-		return r.errAt(effectEntry, "0 gives no direction, and a one-sided test looks one way; allowed: a value on the side the test looks (e.g. -1 for a lower mean in the first group)")
 	}
 	if s.Hypothesis == "superiority" && s.MeanDiff == 0 && s.Solve != "effect" {
 		return r.errAt(effectEntry, "means no difference between the groups: nothing to detect; allowed: a difference other than 0 (or solve: effect)")
@@ -584,19 +709,23 @@ func (r *reader) buildSurvival(s *Spec) error {
 	if err != nil {
 		return err
 	}
-	if he == nil {
+	switch {
+	case he == nil && s.Hypothesis != "superiority":
+		// Non-inferiority and equivalence: no true difference by default.
+		hr = 1
+	case he == nil:
 		return r.errFile("hazard_ratio", "missing; required: the intervention arm's hazard over the control arm's, above 0")
-	}
-	if !(hr > 0) || math.IsInf(hr, 0) {
+	case !(hr > 0) || math.IsInf(hr, 0):
 		return r.errAt(he, "%s is out of range; allowed: a number above 0", he.node.Value)
-	}
-	if hr == 1 && s.Solve == "effect" && s.Sides == 1 {
-		return r.errAt(he, "1 gives no direction, and a one-sided test looks one way; allowed: a value on the side the test looks (e.g. 0.8 for a lower hazard)")
-	}
-	if hr == 1 && s.Solve != "effect" {
+	case hr == 1 && s.Solve != "effect" && s.Hypothesis == "superiority":
 		return r.errAt(he, "1 means no difference between the arms: nothing to detect; allowed: a hazard ratio other than 1 (or solve: effect)")
 	}
 	s.HazardRatio, s.EffectKey, s.EffectValue = hr, "hazard_ratio", hr
+	if s.Hypothesis != "superiority" {
+		if err := r.checkMarginSide(s, he, hr); err != nil {
+			return err
+		}
+	}
 
 	med, mede, err := r.optNum("control_median", 0, pos)
 	if err != nil {

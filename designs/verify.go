@@ -194,12 +194,14 @@ func Verify(ctx context.Context, s *Spec, res *Result, o SimOptions) error {
 	}
 	sim.Type1At = "no difference"
 	switch {
-	case s.Hypothesis == "non-inferiority":
-		sim.Type1At = "the non-inferiority margin"
-	case s.Hypothesis == "equivalence":
-		sim.Type1At = "the upper equivalence margin (a true difference of +margin)"
 	case null.null != "":
 		sim.Type1At = null.null
+	case s.Hypothesis == "non-inferiority":
+		sim.Type1At = "the non-inferiority margin"
+	case s.Hypothesis == "equivalence" && s.MarginScale == "ratio":
+		sim.Type1At = "the upper equivalence margin (a true risk ratio equal to the margin)"
+	case s.Hypothesis == "equivalence":
+		sim.Type1At = "the upper equivalence margin (a true difference of +margin)"
 	}
 	r0, err0 := power.Simulate(ctx, null.model, power.SimConfig{Replicates: reps, Seed: seed + 1, Workers: o.Workers, Progress: cfg("null (type I error)").Progress})
 	if r0.Replicates > 0 {

@@ -3,6 +3,7 @@ package report
 import (
 	"fmt"
 	"math"
+	"strconv"
 	"strings"
 
 	"enough/designs"
@@ -60,12 +61,37 @@ func riskWord(design string) string {
 	return "risk"
 }
 
-// source returns " (source: ...)" for a key with a source.
+// source returns " (source: ...)" for a key with a source, and for a key
+// overridden on the command line says so, with what the file gave.
 func source(r *designs.Result, key string) string {
-	if s := r.Spec.Sources[key]; s != "" {
-		return " (source: " + s + ")"
+	if s := provenance(r, key); s != "" {
+		return " (" + s + ")"
 	}
 	return ""
+}
+
+// provenance says where a key's value came from: "source: …", or that it
+// was set on the command line in place of the file's value and source.
+func provenance(r *designs.Result, key string) string {
+	src := r.Spec.Sources[key]
+	fv, over := r.Spec.Overridden[key]
+	if !over {
+		if src != "" {
+			return "source: " + src
+		}
+		return ""
+	}
+	out := "set on the command line"
+	switch {
+	case fv.Value != "" && fv.Source != "":
+		out += fmt.Sprintf("; the specification gave %s, from %s", fv.Value, fv.Source)
+	case fv.Value != "":
+		out += fmt.Sprintf("; the specification gave %s", fv.Value)
+	}
+	if src != "" {
+		out += "; source: " + src
+	}
+	return out
 }
 
 // build turns a result into the document shared by Markdown and text.
@@ -114,7 +140,7 @@ func build(r *designs.Result) *document {
 	if len(r.Notes) > 0 {
 		d.sections = append(d.sections, section{heading: "Notes", bullets: r.Notes})
 	}
-	d.sections = append(d.sections, section{heading: "Rounding and inflation, in this order", bullets: r.Order, ordered: true})
+	d.sections = append(d.sections, stepsSection(r))
 	d.sections = append(d.sections, section{heading: "Cautions", bullets: r.Cautions})
 
 	spec := r.SpecFile
@@ -135,7 +161,8 @@ func capitalise(s string) string {
 func assumptionSection(r *designs.Result) section {
 	rows := [][]string{{"Assumption", "Key", "Value", "Source"}}
 	for _, a := range r.Assumptions {
-		src := a.Source
+		src := provenance(r, a.Key)
+		src = strings.TrimPrefix(src, "source: ")
 		if src == "" {
 			src = "not stated"
 		}
@@ -239,11 +266,16 @@ func answerSection(r *designs.Result) section {
 	case "effect":
 		det := a.Detectable
 		scale := keyLabel(det.Scale)
+		var dl, du *float64
+		if det.Diluted != nil {
+			dl, du = det.Diluted.Lower, det.Diluted.Upper
+		}
 		for _, side := range []struct {
 			v    *float64
 			e    *designs.Effect
 			name string
-		}{{det.Lower, det.LowerEffect, "below no difference"}, {det.Upper, det.UpperEffect, "above no difference"}} {
+			dv   *float64
+		}{{det.Lower, det.LowerEffect, "below no difference", dl}, {det.Upper, det.UpperEffect, "above no difference", du}} {
 			if det.Direction != "" && (det.Direction == "lower") != strings.HasPrefix(side.name, "below") {
 				continue // a one-sided test does not look this way
 			}
@@ -257,6 +289,9 @@ func answerSection(r *designs.Result) section {
 			}
 			if side.e != nil && side.e.StandardizedDifference != nil {
 				line += fmt.Sprintf(" (Cohen's d = %s)", num(*side.e.StandardizedDifference))
+			}
+			if side.dv != nil {
+				line += fmt.Sprintf(" for those who receive the intervention; an intention-to-treat analysis sees %s %s of %s", article(scale), scale, valueOn(det.Scale, *side.dv))
 			}
 			s.bullets = append(s.bullets, line)
 		}
@@ -478,4 +513,32 @@ func signed2(x float64) string {
 		v = "+0.00"
 	}
 	return strings.Replace(v, "-", "−", 1)
+}
+
+// stepsSection lists the steps the computation took, in order, with their
+// rules, inputs and outputs, so that the answer can be replayed by hand.
+func stepsSection(r *designs.Result) section {
+	s := section{heading: "How the numbers were reached", ordered: true}
+	s.paras = []string{"Each step in the order taken: its rule, the values it used (a name in the rule is the output of the earlier step of that name, or a key of the specification) and its result. Whole-number rounding ignores floating-point noise below one part in 10⁹."}
+	for _, st := range r.Steps {
+		line := fmt.Sprintf("`%s` = %s", st.Name, st.Rule)
+		if len(st.Inputs) > 0 {
+			var ins []string
+			for _, x := range st.Inputs {
+				ins = append(ins, x.Name+" = "+stepNumber(x.Value))
+			}
+			line += ", with " + strings.Join(ins, ", ")
+		}
+		s.bullets = append(s.bullets, line+": **"+stepNumber(st.Output)+"**")
+	}
+	return s
+}
+
+// stepNumber prints a step's value with enough digits to replay it: whole
+// numbers as they are, others to 10 significant digits.
+func stepNumber(x float64) string {
+	if x == math.Trunc(x) && math.Abs(x) < 1e15 {
+		return strconv.FormatFloat(x, 'f', -1, 64)
+	}
+	return strconv.FormatFloat(x, 'g', 10, 64)
 }

@@ -91,11 +91,16 @@ func intro(b *strings.Builder, r *designs.Result) {
 	default:
 		fmt.Fprintf(b, "%s will be compared between the %s and the %s using %s. ", subject, first, second, test)
 	}
-	switch s.Hypothesis {
-	case "non-inferiority":
-		fmt.Fprintf(b, "The question is whether the %s is not worse than the %s by more than the non-inferiority margin of %s (%s). ", first, second, marginText(s), betterText(s.HigherIsBetter))
-	case "equivalence":
-		fmt.Fprintf(b, "The question is whether the difference between the arms lies within the equivalence margin of ±%s. ", marginText(s))
+	switch {
+	case s.Hypothesis == "non-inferiority" && s.MarginScale == "ratio":
+		fmt.Fprintf(b, "The question is whether the %s is not worse than the %s beyond a non-inferiority margin of %s on the %s scale%s: %s, and the null hypothesis is that the %s, %s over %s, is %s %s. ",
+			first, second, num(s.Margin), ratioWord(s), source(r, "margin"), betterText(s), ratioWord(s), first, second, map[bool]string{true: "at most", false: "at least"}[s.HigherIsBetter], num(s.Margin))
+	case s.Hypothesis == "non-inferiority":
+		fmt.Fprintf(b, "The question is whether the %s is not worse than the %s by more than the non-inferiority margin of %s (%s)%s. ", first, second, marginText(s), betterText(s), source(r, "margin"))
+	case s.Hypothesis == "equivalence" && s.MarginScale == "ratio":
+		fmt.Fprintf(b, "The question is whether the %s between the arms lies within the equivalence margins of %s and %s%s. ", ratioWord(s), num(1/s.Margin), num(s.Margin), source(r, "margin"))
+	case s.Hypothesis == "equivalence":
+		fmt.Fprintf(b, "The question is whether the difference between the arms lies within the equivalence margin of ±%s%s. ", marginText(s), source(r, "margin"))
 	}
 	if a := r.Result; a.Arms > 2 {
 		what := "each intervention arm against the control arm"
@@ -147,11 +152,25 @@ func marginText(s *designs.Spec) string {
 	return num(s.Margin)
 }
 
-func betterText(higher bool) string {
-	if higher {
+func betterText(s *designs.Spec) string {
+	if s.Outcome == "time-to-event" {
+		if s.HigherIsBetter {
+			return "the event is desirable, so a higher hazard is better"
+		}
+		return "the event is harmful, so a lower hazard is better"
+	}
+	if s.HigherIsBetter {
 		return "a higher value of the outcome is better"
 	}
 	return "a lower value of the outcome is better"
+}
+
+// ratioWord names the ratio of a ratio margin.
+func ratioWord(s *designs.Spec) string {
+	if s.Outcome == "time-to-event" {
+		return "hazard ratio"
+	}
+	return "risk ratio"
 }
 
 // assume states the assumptions behind the effect.
@@ -168,7 +187,11 @@ func assume(b *strings.Builder, r *designs.Result) {
 	case "time-to-event":
 		fmt.Fprintf(b, "We assume exponential survival in the %s with %s (a hazard of %.4g per %s%s)",
 			second, survivalText(s), s.ControlHazard, singular(s.TimeUnit), srcSemi(r, controlKey(s)))
-		if r.Solve != "effect" {
+		switch {
+		case r.Solve == "effect":
+		case s.Hypothesis != "superiority" && s.HazardRatio == 1:
+			b.WriteString(" and assume the same hazard in both arms")
+		default:
 			fmt.Fprintf(b, " and plan for a hazard ratio of %s%s", num(s.HazardRatio), eff)
 		}
 		fmt.Fprintf(b, ". Participants enter uniformly over %s %s and are followed for %s %s after the last one enters (%s %s in all)",
@@ -177,6 +200,7 @@ func assume(b *strings.Builder, r *designs.Result) {
 			fmt.Fprintf(b, ", with %s lost to follow-up per %s%s", pct(s.Dropout), singular(s.TimeUnit), source(r, "dropout"))
 		}
 		b.WriteString(". ")
+		dilution(b, r)
 		return
 	}
 	if r.Solve == "effect" {
@@ -197,7 +221,7 @@ func assume(b *strings.Builder, r *designs.Result) {
 	case r.Design == "cross-sectional":
 		fmt.Fprintf(b, "We expect %s of those surveyed to be exposed%s, a prevalence of %s among the unexposed%s and of %s among the exposed%s: a prevalence ratio of %s (difference %s; odds ratio %s). ",
 			pct(s.ExposurePrevalence), source(r, "exposure_prevalence"), pct(s.P2), refSrc, pct(*e.FirstRisk), eff, num(*e.RiskRatio), pp(*e.RiskDifference), num(*e.OddsRatio))
-	case s.Hypothesis != "superiority" && s.EffectKey == "":
+	case s.Hypothesis != "superiority" && s.P1 == s.P2:
 		fmt.Fprintf(b, "We assume the same risk of %s in both arms%s. ", pct(s.P2), refSrc)
 	default:
 		fmt.Fprintf(b, "We assume a risk of %s in the %s%s and plan for a risk of %s in the %s%s: a risk ratio of %s (risk difference %s; odds ratio %s). ",
@@ -288,8 +312,8 @@ func assumeMeans(b *strings.Builder, r *designs.Result) {
 
 // srcSemi returns "; source: ..." for use inside parentheses.
 func srcSemi(r *designs.Result, key string) string {
-	if s := r.Spec.Sources[key]; s != "" {
-		return "; source: " + s
+	if s := provenance(r, key); s != "" {
+		return "; " + s
 	}
 	return ""
 }
@@ -305,18 +329,11 @@ func orSource(r *designs.Result, keys ...string) string {
 
 // dilution describes non-adherence and contamination.
 func dilution(b *strings.Builder, r *designs.Result) {
-	s := r.Spec
 	d := r.Result.DilutedEffect
 	if d == nil {
 		return
 	}
-	var parts []string
-	if s.NonAdherence > 0 {
-		parts = append(parts, fmt.Sprintf("%s of the %s not receiving the intervention", pct(s.NonAdherence), r.FirstGroup))
-	}
-	if s.Contamination > 0 {
-		parts = append(parts, fmt.Sprintf("%s of the %s receiving the intervention nonetheless", pct(s.Contamination), r.SecondGroup))
-	}
+	parts := dilutionParts(r)
 	var seen string
 	switch {
 	case d.MeanDifference != nil:
@@ -330,6 +347,19 @@ func dilution(b *strings.Builder, r *designs.Result) {
 		seen += " (Lachin & Foulkes 1986)"
 	}
 	fmt.Fprintf(b, "With %s, an intention-to-treat analysis sees %s. ", strings.Join(parts, " and "), seen)
+}
+
+// dilutionParts names the non-adherence and contamination assumed.
+func dilutionParts(r *designs.Result) []string {
+	s := r.Spec
+	var parts []string
+	if s.NonAdherence > 0 {
+		parts = append(parts, fmt.Sprintf("%s of the %s not receiving the intervention%s", pct(s.NonAdherence), r.FirstGroup, source(r, "non_adherence")))
+	}
+	if s.Contamination > 0 {
+		parts = append(parts, fmt.Sprintf("%s of the %s receiving the intervention nonetheless%s", pct(s.Contamination), r.SecondGroup, source(r, "contamination")))
+	}
+	return parts
 }
 
 // conclude states the answer.
@@ -378,7 +408,7 @@ func conclude(b *strings.Builder, r *designs.Result) {
 		}
 		clusterSentence(b, r)
 		armsSentence(b, r)
-		if a.UndilutedN != nil {
+		if a.UndilutedN != nil && fmt.Sprint(a.UndilutedN) != fmt.Sprint(a.N) {
 			fmt.Fprintf(b, "Without the dilution, %s would have sufficed. ", sizeList(a.UndilutedN, r))
 		}
 		inflation(b, r)
@@ -406,6 +436,9 @@ func conclude(b *strings.Builder, r *designs.Result) {
 		if r.DesignEff > 1 {
 			fmt.Fprintf(b, ", design effect %.4g", r.DesignEff)
 		}
+		if s.Cluster != nil && a.Clusters != nil {
+			method = fmt.Sprintf("a t test on the cluster summaries (%d and %d clusters, %d degrees of freedom)", a.Clusters[0], a.Clusters[1], a.Clusters[0]+a.Clusters[1]-2)
+		}
 		fmt.Fprintf(b, "), %s sets the smallest effect detectable with %s power", method, pct1(*r.Power))
 		det := a.Detectable
 		var sides []string
@@ -427,6 +460,16 @@ func conclude(b *strings.Builder, r *designs.Result) {
 		} else {
 			fmt.Fprintf(b, " at %s. ", strings.Join(sides, " or "))
 		}
+		if dd := det.Diluted; dd != nil && len(sides) > 0 {
+			var seen []string
+			for _, v := range []*float64{dd.Lower, dd.Upper} {
+				if v != nil {
+					seen = append(seen, valueOn(det.Scale, *v))
+				}
+			}
+			fmt.Fprintf(b, "These are the effects of receiving the intervention; with %s, an intention-to-treat analysis sees %s %s of %s (Lachin & Foulkes 1986). ",
+				strings.Join(dilutionParts(r), " and "), article(keyLabel(det.Scale)), keyLabel(det.Scale), strings.Join(seen, " or "))
+		}
 	}
 }
 
@@ -441,13 +484,31 @@ func sizeList(n []int, r *designs.Result) string {
 	return count(n[0]) + " and " + count(n[1])
 }
 
+// groupSizes phrases the sizes of every group: "94 in the intervention
+// arm and 94 in the control arm", or with several arms "94 in each of the
+// 2 intervention arms and 94 in the control arm".
+func groupSizes(r *designs.Result, n []int) string {
+	a := r.Result
+	switch {
+	case a.Arms > 2 && r.Spec.Comparisons == "all-pairs":
+		return fmt.Sprintf("%s in each of the %d arms", count(n[0]), a.Arms)
+	case a.Arms > 2:
+		arms := fmt.Sprintf("%d arms compared with the %s", a.Arms-1, r.SecondGroup)
+		if l := r.FirstGroup; strings.HasSuffix(l, " arm") || strings.HasSuffix(l, " group") {
+			arms = fmt.Sprintf("%d %ss", a.Arms-1, l)
+		}
+		return fmt.Sprintf("%s in each of the %s and %s", count(n[0]), arms, members(n[1], r.SecondGroup))
+	}
+	return members(n[0], r.FirstGroup) + " and " + members(n[1], r.SecondGroup)
+}
+
 // enrolList phrases the enrolment per group.
 func enrolList(r *designs.Result) string {
 	a := r.Result
 	if len(a.Enrol) == 1 {
 		return sizeList(a.Enrol, r)
 	}
-	return members(a.Enrol[0], r.FirstGroup) + " and " + members(a.Enrol[1], r.SecondGroup)
+	return groupSizes(r, a.Enrol)
 }
 
 // clusterSentence describes a cluster design.
@@ -517,13 +578,13 @@ func inflation(b *strings.Builder, r *designs.Result) {
 	case r.Spec.Cluster != nil:
 		fmt.Fprintf(b, "No attrition is expected, so the enrolment target is %s in total.", count(a.EnrolTotal))
 	case r.DesignEff > 1 && r.Attrition > 0:
-		fmt.Fprintf(b, "These numbers include a design effect of %g; allowing further for %s attrition, we will enrol %s and %s, %s participants in total.",
-			r.DesignEff, pct(r.Attrition), members(a.Enrol[0], r.FirstGroup), members(a.Enrol[1], r.SecondGroup), count(a.EnrolTotal))
+		fmt.Fprintf(b, "These numbers include a design effect of %g; allowing further for %s attrition, we will enrol %s, %s participants in total.",
+			r.DesignEff, pct(r.Attrition), groupSizes(r, a.Enrol), count(a.EnrolTotal))
 	case r.DesignEff > 1:
 		fmt.Fprintf(b, "These numbers include a design effect of %g; no attrition is expected, so the enrolment target is %s in total.", r.DesignEff, count(a.EnrolTotal))
 	case r.Attrition > 0:
-		fmt.Fprintf(b, "Allowing for %s attrition, we will enrol %s and %s, %s participants in total.",
-			pct(r.Attrition), members(a.Enrol[0], r.FirstGroup), members(a.Enrol[1], r.SecondGroup), count(a.EnrolTotal))
+		fmt.Fprintf(b, "Allowing for %s attrition, we will enrol %s, %s participants in total.",
+			pct(r.Attrition), groupSizes(r, a.Enrol), count(a.EnrolTotal))
 	default:
 		fmt.Fprintf(b, "No attrition is expected, so the enrolment target is %s in total.", count(a.EnrolTotal))
 	}

@@ -44,7 +44,8 @@ func planExample(t *testing.T, name string) *designs.Result {
 func TestGolden(t *testing.T) {
 	for _, name := range []string{"demo-trial.yaml", "case-control-well-water.yaml", "survey-booster-coverage.yaml", "cohort-detectable.yaml", "trial-power-check.yaml", "cross-sectional-noise.yaml",
 		"trial-walking-blood-pressure.yaml", "trial-survival-home-dialysis.yaml", "trial-noninferiority-short-course.yaml",
-		"trial-cluster-schools.yaml", "trial-crossover-night-splint.yaml", "trial-equivalence-physio.yaml", "trial-three-arms.yaml", "cohort-paired-sleep.yaml", "trial-verified-fisher.yaml"} {
+		"trial-cluster-schools.yaml", "trial-crossover-night-splint.yaml", "trial-equivalence-physio.yaml", "trial-three-arms.yaml", "cohort-paired-sleep.yaml", "trial-verified-fisher.yaml",
+		"trial-noninferiority-relapse.yaml", "trial-equivalence-ratio-vaccine.yaml"} {
 		r := planExample(t, name)
 		for _, f := range []struct{ format, ext string }{{"markdown", "md"}, {"text", "txt"}, {"json", "json"}} {
 			var b bytes.Buffer

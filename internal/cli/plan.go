@@ -102,6 +102,9 @@ func validFormat(f string) bool {
 }
 
 func planRun(opts *PlanOptions) error {
+	if err := setsNeedFile(opts.Spec, opts.Sets); err != nil {
+		return err
+	}
 	name, data, err := loadSpec(opts.Spec, opts.IO.In)
 	if err != nil {
 		return err
@@ -168,6 +171,16 @@ func emit(out io.Writer, path string, data []byte) error {
 	}
 	if err := writeAtomic(path, data); err != nil {
 		return fmt.Errorf("cannot write %s: %s", path, describe(err))
+	}
+	return nil
+}
+
+// setsNeedFile refuses --set without a specification: it would change the
+// built-in demonstration study and report a number for a study nobody
+// wrote.
+func setsNeedFile(spec string, sets []string) error {
+	if spec == "" && len(sets) > 0 {
+		return &inputError{msg: fmt.Sprintf("--set %s: needs a specification file; without one the built-in demonstration study is planned as it stands; allowed: a file (start one with `enough new DESIGN > study.yaml`, then `enough plan study.yaml --set %s`)", sets[0], sets[0])}
 	}
 	return nil
 }

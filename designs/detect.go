@@ -1,0 +1,186 @@
+package designs
+
+import (
+	"math"
+
+	"enough/power"
+)
+
+// The smallest detectable effect is found the same way for every method,
+// outcome and design: the undiluted effect (the effect of receiving the
+// intervention, which the investigator plans for) is moved away from no
+// difference until the power that solving power would report at the same
+// sizes — after dilution, with the same clusters, alpha and method —
+// reaches the target. Solving n at the effect found therefore gives back
+// the sizes it was solved at, and solving power there gives the target.
+
+// detectScan is the number of steps of the outward scan for the first
+// crossing of the target; power need not be monotone in the effect (the
+// Freedman effect is bounded, and binary powers turn near 0 and 1).
+const detectScan = 512
+
+// detectable finds the smallest detectable effect in each direction the
+// test looks, with what an intention-to-treat analysis sees of it, and
+// records the steps on tr.
+func detectable(s *Spec, m *MethodInfo, e effects, sz sizes, tr *trail) *Detectable {
+	d := &Detectable{Scale: s.EffectKey}
+	dirs := []int{-1, 1}
+	if s.Sides == 1 {
+		// A one-sided test detects effects on its own side only.
+		dirs = []int{s.Direction}
+		d.Direction = map[int]string{-1: "lower", 1: "upper"}[s.Direction]
+	}
+	ins := append(sizeInputs(s, tr, sz), in("target_power", s.Power))
+	if e.clusterK[0] > 0 {
+		ins = append(ins, inInt("clusters_first", e.clusterK[0]), inInt("clusters_second", e.clusterK[1]))
+	}
+	if e.diluted {
+		d.Diluted = &DilutedBounds{}
+		ins = append(ins, in("non_adherence", e.na), in("contamination", e.c))
+	}
+	for _, dir := range dirs {
+		x, ok := detectEffect(s, m, e, sz, dir)
+		if !ok {
+			continue
+		}
+		v, planned, diluted, dv := restate(s, e, x)
+		side := map[int]string{-1: "lower", 1: "upper"}[dir]
+		rule := "the " + scaleName(s) + " nearest no difference, " + map[int]string{-1: "below", 1: "above"}[dir] + " it, at which " + newCalculator(s, m, e).powerName() + " reaches the target power"
+		if e.diluted {
+			rule += " once diluted by non-adherence and contamination"
+		}
+		tr.add("detectable_"+side, rule, v, ins...)
+		if dir < 0 {
+			d.Lower, d.LowerEffect = ptr(v), planned
+		} else {
+			d.Upper, d.UpperEffect = ptr(v), planned
+		}
+		if e.diluted {
+			tr.add("diluted_"+side, dilutionRule(s), dv, in("detectable_"+side, v), in("non_adherence", e.na), in("contamination", e.c))
+			if dir < 0 {
+				d.Diluted.Lower, d.Diluted.LowerEffect = ptr(dv), diluted
+			} else {
+				d.Diluted.Upper, d.Diluted.UpperEffect = ptr(dv), diluted
+			}
+		}
+	}
+	return d
+}
+
+// scaleName names the scale of the answer in a rule.
+func scaleName(s *Spec) string {
+	switch s.Outcome {
+	case "continuous":
+		return "difference in means"
+	case "time-to-event":
+		return "hazard ratio"
+	}
+	return s.EffectKey
+}
+
+// dilutionRule says how the undiluted effect becomes the diluted one.
+func dilutionRule(s *Spec) string {
+	switch s.Outcome {
+	case "continuous":
+		return "detectable × (1 − non_adherence − contamination) (Lachin & Foulkes 1986)"
+	case "time-to-event":
+		return "exp(ln(detectable) × (1 − non_adherence − contamination)) (Lachin & Foulkes 1986)"
+	}
+	return "the " + s.EffectKey + " of the mixed risks (1 − non_adherence) p1 + non_adherence p2 against (1 − contamination) p2 + contamination p1, p1 and p2 the risks of the detectable effect (Lachin & Foulkes 1986)"
+}
+
+// restate expresses the undiluted effect x (the first group's risk, the
+// difference in means or the log hazard ratio) on the effect key's scale,
+// with the restatements before and after dilution.
+func restate(s *Spec, e effects, x float64) (v float64, planned, diluted *Effect, dv float64) {
+	switch s.Outcome {
+	case "continuous":
+		de := effectsAt(s, 0, x, 0)
+		return x, meansEffect(s, x), meansEffect(s, de.diff), de.diff
+	case "time-to-event":
+		hr := math.Exp(x)
+		de := effectsAt(s, 0, 0, hr)
+		return hr, &Effect{HazardRatio: ptr(hr)}, &Effect{HazardRatio: ptr(de.hr)}, de.hr
+	}
+	de := effectsAt(s, x, 0, 0)
+	return scaleValue(s.EffectKey, x, s.P2), effectOf(s.Design, x, s.P2), effectOf(s.Design, de.p1, de.p2), scaleValue(s.EffectKey, de.p1, de.p2)
+}
+
+// detectEffect returns the undiluted effect in direction dir nearest no
+// difference whose power at the sizes reaches the target: the first
+// group's risk (binary), the difference in means (continuous) or the log
+// hazard ratio (time-to-event). ok is false when no effect reaches it.
+func detectEffect(s *Spec, m *MethodInfo, base effects, sz sizes, dir int) (float64, bool) {
+	at := func(x float64) effects {
+		var e effects
+		switch s.Outcome {
+		case "continuous":
+			e = effectsAt(s, 0, x, 0)
+		case "time-to-event":
+			e = effectsAt(s, 0, 0, math.Exp(x))
+		default:
+			e = effectsAt(s, x, 0, 0)
+		}
+		e.clusterK = base.clusterK
+		return e
+	}
+	f := func(x float64) float64 {
+		return newCalculator(s, m, at(x)).power(sz.eff[0], sz.eff[1]) - s.Power
+	}
+	var from, to float64
+	switch s.Outcome {
+	case "continuous":
+		// Power grows with the difference: double until it reaches the
+		// target, then refine.
+		scale := math.Max(s.SD1, s.SD2)
+		hi := scale * 1e-3 * float64(dir)
+		for f(hi) < 0 {
+			hi *= 2
+			if math.Abs(hi) > scale*1e9 {
+				return math.NaN(), false
+			}
+		}
+		return refine(f, 0, hi)
+	case "time-to-event":
+		from, to = 0, math.Log(1e6)*float64(dir)
+	default:
+		const edge = 1e-9
+		from, to = s.P2, 1-edge
+		if dir < 0 {
+			to = edge
+		}
+	}
+	prev := from
+	for i := 1; i <= detectScan; i++ {
+		x := from + (to-from)*float64(i)/detectScan
+		if f(x) >= 0 {
+			return refine(f, prev, x)
+		}
+		prev = x
+	}
+	return math.NaN(), false
+}
+
+// refine finds the crossing of f between lo (below the target) and hi (at
+// or above it) and returns a point where f ≥ 0, so that the power at the
+// effect returned is never below the target, by rounding, and solving n
+// there gives back the sizes it was found at.
+func refine(f func(float64) float64, lo, hi float64) (float64, bool) {
+	x, err := power.FindRoot(f, lo, hi, 1e-13*math.Max(1, math.Abs(hi)))
+	if err != nil {
+		if f(hi) >= 0 {
+			return hi, true
+		}
+		return math.NaN(), false
+	}
+	// Step towards hi until the power is at the target.
+	step := (hi - x) * 1e-12
+	for k := 0; f(x) < 0 && k < 64; k++ {
+		x += step
+		step *= 2
+		if (hi-x)*(hi-lo) < 0 {
+			return hi, true
+		}
+	}
+	return x, true
+}
