@@ -197,7 +197,11 @@ func (c marginCalc) nStar(target float64, tr *trail) (float64, error) {
 	}
 	if err == nil && tr != nil {
 		ins := append(c.params(), in("target_power", target), in("ratio", c.s.Ratio))
-		tr.add("n_star", fmt.Sprintf("the unrounded size of the first group from %s (%s, margin on the %s scale)", MethodByID(c.id).Name, c.s.Hypothesis, c.s.MarginScale), n, ins...)
+		rule := fmt.Sprintf("the unrounded size of the first group from %s (%s, margin on the %s scale)", MethodByID(c.id).Name, c.s.Hypothesis, c.s.MarginScale)
+		if !c.ratio() && c.s.Hypothesis == "non-inferiority" {
+			rule += "; null_difference is the first risk minus the second under the null: −margin when higher is better, +margin otherwise"
+		}
+		tr.add("n_star", rule, n, ins...)
 	}
 	return n, err
 }
@@ -205,7 +209,7 @@ func (c marginCalc) nStar(target float64, tr *trail) (float64, error) {
 func (c marginCalc) params() []Input {
 	margin := in("margin", c.s.Margin)
 	if !c.ratio() && c.s.Hypothesis == "non-inferiority" {
-		margin = in("margin_difference", c.d0())
+		margin = in("null_difference", c.d0())
 	}
 	return append(riskInputs(c.e), margin, alphaInput(c.s, c.e))
 }
@@ -262,7 +266,11 @@ func (c meansCalc) nStar(target float64, tr *trail) (float64, error) {
 	n, err := c.m.N(c.mc, c.s.Ratio, target)
 	if err == nil && tr != nil {
 		ins := append(c.params(), in("target_power", target), in("ratio", c.s.Ratio))
-		tr.add("n_star", fmt.Sprintf("the unrounded size of the first group from %s", MethodByID(c.id).Name), n, ins...)
+		rule := fmt.Sprintf("the unrounded size of the first group from %s", MethodByID(c.id).Name)
+		if c.s.Hypothesis == "non-inferiority" {
+			rule += "; null_difference is the difference in means (first minus second) under the null: −margin when higher is better, +margin otherwise"
+		}
+		tr.add("n_star", rule, n, ins...)
 	}
 	return n, err
 }
@@ -272,11 +280,11 @@ func (c meansCalc) params() []Input {
 	if c.s.NonAdherence > 0 || c.s.Contamination > 0 {
 		name = "diluted_difference"
 	}
-	ins := []Input{in(name, c.mc.Diff), in("sd_first", c.mc.SD1)}
-	if c.mc.Layout != power.Paired {
-		ins = append(ins, in("sd_second", c.mc.SD2))
-	}
-	if c.s.Hypothesis != "superiority" {
+	ins := append([]Input{in(name, c.mc.Diff)}, sdInputs(c.s)...)
+	switch c.s.Hypothesis {
+	case "non-inferiority":
+		ins = append(ins, in("null_difference", c.mc.Bound))
+	case "equivalence":
 		ins = append(ins, in("margin", c.mc.Bound))
 	}
 	ins = append(ins, in("alpha", c.mc.Alpha))
@@ -293,6 +301,56 @@ func (c meansCalc) powerName() string {
 		return "the power of a t test on cluster means with clusters_first + clusters_second − 2 degrees of freedom"
 	}
 	return "the power from " + MethodByID(c.id).Name
+}
+
+// sdNames names the standard deviations a continuous plan uses: the SD of
+// the within-participant differences (paired, crossover), the residual SD
+// after adjustment for the baseline, the common SD or each group's.
+func sdNames(s *Spec) []string {
+	prefix := ""
+	if s.BaselineCorrelation > 0 {
+		prefix = "residual_"
+	}
+	switch {
+	case s.Pairing != "":
+		return []string{"sd_difference"}
+	case s.RawSD1 == s.RawSD2:
+		return []string{prefix + "sd"}
+	}
+	return []string{prefix + "sd_first", prefix + "sd_second"}
+}
+
+// sdInputs names the standard deviations for the steps.
+func sdInputs(s *Spec) []Input {
+	names := sdNames(s)
+	out := []Input{in(names[0], s.SD1)}
+	if len(names) == 2 {
+		out = append(out, in(names[1], s.SD2))
+	}
+	return out
+}
+
+// recordSDs records how the standard deviations were derived, when they
+// were: the SD of a difference from the SD of one measurement, or a
+// residual SD after adjustment for the baseline.
+func recordSDs(s *Spec, tr *trail) {
+	names := sdNames(s)
+	switch {
+	case s.Pairing != "" && s.WithinCorrelation != 0:
+		tr.add("sd_difference", "sd × √(2 × (1 − within_correlation))", s.SD1, in("sd", s.RawSD1), in("within_correlation", s.WithinCorrelation))
+	case s.BaselineCorrelation > 0:
+		raw := []string{"sd", "sd_first", "sd_second"}
+		for i, n := range names {
+			k, v, sd := raw[0], s.RawSD1, s.SD1
+			if len(names) == 2 {
+				k = raw[1+i]
+			}
+			if i == 1 {
+				v, sd = s.RawSD2, s.SD2
+			}
+			tr.add(n, k+" × √(1 − baseline_correlation²) (analysis of covariance; Borm, Fransen & Lemmens 2007)", sd, in(k, v), in("baseline_correlation", s.BaselineCorrelation))
+		}
+	}
 }
 
 // meansEffect restates a mean difference, also in standard deviations of

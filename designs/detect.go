@@ -56,7 +56,7 @@ func detectable(s *Spec, m *MethodInfo, e effects, sz sizes, tr *trail) *Detecta
 			d.Upper, d.UpperEffect = ptr(v), planned
 		}
 		if e.diluted {
-			tr.add("diluted_"+side, dilutionRule(s), dv, in("detectable_"+side, v), in("non_adherence", e.na), in("contamination", e.c))
+			tr.add("diluted_"+side, dilutionRule(s, "detectable_"+side), dv, in("detectable_"+side, v), in("non_adherence", e.na), in("contamination", e.c))
 			if dir < 0 {
 				d.Diluted.Lower, d.Diluted.LowerEffect = ptr(dv), diluted
 			} else {
@@ -78,15 +78,16 @@ func scaleName(s *Spec) string {
 	return s.EffectKey
 }
 
-// dilutionRule says how the undiluted effect becomes the diluted one.
-func dilutionRule(s *Spec) string {
+// dilutionRule says how the undiluted effect (the step called name)
+// becomes the diluted one.
+func dilutionRule(s *Spec, name string) string {
 	switch s.Outcome {
 	case "continuous":
-		return "detectable × (1 − non_adherence − contamination) (Lachin & Foulkes 1986)"
+		return name + " × (1 − non_adherence − contamination) (Lachin & Foulkes 1986)"
 	case "time-to-event":
-		return "exp(ln(detectable) × (1 − non_adherence − contamination)) (Lachin & Foulkes 1986)"
+		return "exp(ln(" + name + ") × (1 − non_adherence − contamination)) (Lachin & Foulkes 1986)"
 	}
-	return "the " + s.EffectKey + " of the mixed risks (1 − non_adherence) p1 + non_adherence p2 against (1 − contamination) p2 + contamination p1, p1 and p2 the risks of the detectable effect (Lachin & Foulkes 1986)"
+	return "the " + s.EffectKey + " of the mixed risks (1 − non_adherence) p1 + non_adherence p2 against (1 − contamination) p2 + contamination p1, p1 and p2 the risks at " + name + " (Lachin & Foulkes 1986)"
 }
 
 // restate expresses the undiluted effect x (the first group's risk, the

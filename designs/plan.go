@@ -437,6 +437,9 @@ func atEnrolment(s *Spec, m *MethodInfo, e effects, tr *trail) (sizes, calculato
 // recordEffects records the dilution and the multiplicity correction, the
 // first steps of every comparison.
 func recordEffects(s *Spec, tr *trail, e effects) {
+	if s.Outcome == "continuous" {
+		recordSDs(s, tr)
+	}
 	if s.Design == "cross-sectional" {
 		tr.add("ratio", "(1 − exposure_prevalence) / exposure_prevalence: the unexposed per exposed respondent", s.Ratio, in("exposure_prevalence", s.ExposurePrevalence))
 	}
@@ -821,7 +824,7 @@ func commonNotes(s *Spec, res *Result) {
 			100*math.Max(s.P1, s.P2), power.OddsRatio(s.P1, s.P2), s.P1/s.P2))
 	}
 	switch {
-	case s.Method == "t":
+	case s.Method == "t" || s.Cluster != nil:
 		if s.Sides == 2 {
 			res.Notes = append(res.Notes, "The t-test power counts rejections in both directions, as the test does.")
 		}

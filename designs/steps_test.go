@@ -91,6 +91,11 @@ func replayStep(st Step) (float64, bool) {
 		return up(g("n_star")), true
 	case strings.HasPrefix(rule, "(1 − exposure_prevalence) / exposure_prevalence"):
 		return (1 - g("exposure_prevalence")) / g("exposure_prevalence"), true
+	case rule == "sd × √(2 × (1 − within_correlation))":
+		return g("sd") * math.Sqrt(2*(1-g("within_correlation"))), true
+	case strings.Contains(rule, " × √(1 − baseline_correlation²)"):
+		r := g("baseline_correlation")
+		return g(strings.SplitN(rule, " ", 2)[0]) * math.Sqrt(1-r*r), true
 	case rule == "alpha / comparisons (Bonferroni)":
 		return g("alpha") / g("comparisons"), true
 	case strings.HasPrefix(rule, "difference × (1 − non_adherence − contamination)"):
@@ -101,9 +106,9 @@ func replayStep(st Step) (float64, bool) {
 		return (1-g("non_adherence"))*g("first_risk") + g("non_adherence")*g("second_risk"), true
 	case rule == "(1 − contamination) × second_risk + contamination × first_risk":
 		return (1-g("contamination"))*g("second_risk") + g("contamination")*g("first_risk"), true
-	case strings.HasPrefix(rule, "detectable × (1 − non_adherence − contamination)"):
+	case strings.HasPrefix(rule, "detectable_") && strings.Contains(rule, " × (1 − non_adherence − contamination)"):
 		return g(strings.Replace(st.Name, "diluted_", "detectable_", 1)) * (1 - g("non_adherence") - g("contamination")), true
-	case strings.HasPrefix(rule, "exp(ln(detectable) × (1 − non_adherence − contamination))"):
+	case strings.HasPrefix(rule, "exp(ln(detectable_"):
 		return math.Exp(math.Log(g(strings.Replace(st.Name, "diluted_", "detectable_", 1))) * (1 - g("non_adherence") - g("contamination"))), true
 	case strings.HasPrefix(rule, "z² × expected_prevalence × (1 − expected_prevalence) / margin²"):
 		p := g("expected_prevalence")
@@ -157,7 +162,7 @@ func checkReplay(t *testing.T, res *Result, what string) {
 				t.Fatalf("step %d %s: input %s = %v, but the earlier step gave %v\n%s", i+1, st.Name, x.Name, x.Value, v, what)
 			}
 			_, seen := last[x.Name]
-			for _, prefix := range []string{"analysable_", "enrol_", "effective_", "clusters_", "n_star", "events", "diluted_", "alpha_per", "cluster_minimum", "formula_first", "expected_events", "event_probability"} {
+			for _, prefix := range []string{"analysable_", "enrol_", "effective_", "clusters_", "n_star", "events", "diluted_", "alpha_per", "cluster_minimum", "formula_first", "expected_events", "event_probability", "residual_"} {
 				if strings.HasPrefix(x.Name, prefix) && !seen {
 					t.Fatalf("step %d %s: input %s was not computed by an earlier step\n%s", i+1, st.Name, x.Name, what)
 				}

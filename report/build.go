@@ -255,7 +255,7 @@ func answerSection(r *designs.Result) section {
 			fmt.Sprintf("**Analysable%s: %s%s**", per, groups(a.N), total(a.Total)),
 			fmt.Sprintf("**Enrolment target%s: %s%s**", per, groups(a.Enrol), total(a.EnrolTotal)),
 			fmt.Sprintf("Achieved power at the analysable sizes: %s (target %s)", pct1(*a.AchievedPower), pct1(*r.Power)))
-		if a.NStar > 0 {
+		if a.NStar > 0 && r.Spec.Cluster == nil {
 			s.bullets = append(s.bullets, fmt.Sprintf("Unrounded size of the first group from the method: %.2f", a.NStar))
 		}
 	case "power":

@@ -399,9 +399,9 @@ func conclude(b *strings.Builder, r *designs.Result) {
 		case a.Arms > 2:
 			fmt.Fprintf(b, "%s, %s requires, for each comparison, %s and %s; the achieved power at these numbers is %s. ",
 				target, method, members(a.N[0], first), members(a.N[1], second), pct1(*a.AchievedPower))
-		case s.Cluster != nil:
-			fmt.Fprintf(b, "%s, %s, with the design effect and the cluster-level t test below, requires %s participants in the %s and %s in the %s, %s analysable in all; the achieved power at these numbers is %s. ",
-				target, method, count(a.N[0]), first, count(a.N[1]), second, count(a.Total), pct1(*a.AchievedPower))
+		case s.Cluster != nil && a.Clusters != nil:
+			fmt.Fprintf(b, "%s, a t test on the cluster summaries (%d degrees of freedom), with the design effect below, requires %s participants in the %s and %s in the %s, %s analysable in all; the achieved power at these numbers is %s. ",
+				target, a.Clusters[0]+a.Clusters[1]-2, count(a.N[0]), first, count(a.N[1]), second, count(a.Total), pct1(*a.AchievedPower))
 		default:
 			fmt.Fprintf(b, "%s, %s requires %s and %s, %s analysable in all; the achieved power at these numbers is %s. ",
 				target, method, members(a.N[0], first), members(a.N[1], second), count(a.Total), pct1(*a.AchievedPower))
