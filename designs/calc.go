@@ -442,8 +442,15 @@ func (c survivalCalc) recordProbabilities(tr *trail, p1, p2 float64) {
 	if c.e.diluted {
 		rule += ", mixed over those receiving the intervention and those not"
 	}
-	tr.add("event_probability_first", rule, p1)
-	tr.add("event_probability_second", rule, p2)
+	if tr == nil {
+		return
+	}
+	ins := []Input{in("control_hazard", c.s.ControlHazard), in("hazard_ratio", c.e.plannedHR), in("accrual", c.s.Accrual), in("follow_up", c.s.FollowUp), in("dropout", c.s.Dropout)}
+	if c.e.diluted {
+		ins = append(ins, in("non_adherence", c.e.na), in("contamination", c.e.c))
+	}
+	tr.add("event_probability_first", rule, p1, ins...)
+	tr.add("event_probability_second", rule, p2, ins...)
 }
 
 func (c survivalCalc) expectedEvents(n1, n2 float64) float64 {

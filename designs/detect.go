@@ -30,7 +30,16 @@ func detectable(s *Spec, m *MethodInfo, e effects, sz sizes, tr *trail) *Detecta
 		dirs = []int{s.Direction}
 		d.Direction = map[int]string{-1: "lower", 1: "upper"}[s.Direction]
 	}
-	ins := append(sizeInputs(s, tr, sz), in("target_power", s.Power))
+	ins := sizeInputs(s, tr, sz)
+	switch s.Outcome {
+	case "continuous":
+		ins = append(ins, sdInputs(s)...)
+	case "time-to-event":
+		ins = append(ins, in("control_hazard", s.ControlHazard))
+	default:
+		ins = append(ins, in("second_risk", s.P2))
+	}
+	ins = append(ins, alphaInput(s, e), inInt("sides", s.Sides), in("target_power", s.Power))
 	if e.clusterK[0] > 0 {
 		ins = append(ins, inInt("clusters_first", e.clusterK[0]), inInt("clusters_second", e.clusterK[1]))
 	}

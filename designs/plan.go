@@ -437,8 +437,15 @@ func atEnrolment(s *Spec, m *MethodInfo, e effects, tr *trail) (sizes, calculato
 // recordEffects records the dilution and the multiplicity correction, the
 // first steps of every comparison.
 func recordEffects(s *Spec, tr *trail, e effects) {
-	if s.Outcome == "continuous" {
+	switch s.Outcome {
+	case "continuous":
 		recordSDs(s, tr)
+	case "time-to-event":
+		if s.ControlMedian > 0 {
+			tr.add("control_hazard", "ln(2) / control_median (exponential survival)", s.ControlHazard, in("control_median", s.ControlMedian))
+		} else {
+			tr.add("control_hazard", "−ln(control_survival) / time (exponential survival)", s.ControlHazard, in("control_survival", s.ControlSurvival), in("time", s.SurvivalTime))
+		}
 	}
 	if s.Design == "cross-sectional" {
 		tr.add("ratio", "(1 − exposure_prevalence) / exposure_prevalence: the unexposed per exposed respondent", s.Ratio, in("exposure_prevalence", s.ExposurePrevalence))

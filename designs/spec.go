@@ -115,10 +115,12 @@ type Spec struct {
 	// Time-to-event outcomes.
 	HazardRatio   float64
 	ControlHazard float64 // per time unit
-	Accrual       float64
-	FollowUp      float64
-	Dropout       float64 // fraction lost per time unit
-	TimeUnit      string
+	// ControlMedian, or ControlSurvival at SurvivalTime, as given.
+	ControlMedian, ControlSurvival, SurvivalTime float64
+	Accrual                                      float64
+	FollowUp                                     float64
+	Dropout                                      float64 // fraction lost per time unit
+	TimeUnit                                     string
 
 	// Given lists the keys the specification set (after overrides), in file
 	// order, with the values as written.

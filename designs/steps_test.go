@@ -96,6 +96,10 @@ func replayStep(st Step) (float64, bool) {
 	case strings.Contains(rule, " × √(1 − baseline_correlation²)"):
 		r := g("baseline_correlation")
 		return g(strings.SplitN(rule, " ", 2)[0]) * math.Sqrt(1-r*r), true
+	case rule == "ln(2) / control_median (exponential survival)":
+		return math.Ln2 / g("control_median"), true
+	case rule == "−ln(control_survival) / time (exponential survival)":
+		return -math.Log(g("control_survival")) / g("time"), true
 	case rule == "alpha / comparisons (Bonferroni)":
 		return g("alpha") / g("comparisons"), true
 	case strings.HasPrefix(rule, "difference × (1 − non_adherence − contamination)"):

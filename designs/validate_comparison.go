@@ -747,9 +747,9 @@ func (r *reader) buildSurvival(s *Spec) error {
 		}
 		return r.errAt(other, "given together with control_median; allowed: control_median, or control_survival with time")
 	case mede != nil:
-		s.ControlHazard = math.Ln2 / med
+		s.ControlHazard, s.ControlMedian = math.Ln2/med, med
 	case surve != nil && te != nil:
-		s.ControlHazard = -math.Log(surv) / t
+		s.ControlHazard, s.ControlSurvival, s.SurvivalTime = -math.Log(surv)/t, surv, t
 	case surve != nil:
 		return r.errFile("time", "missing; control_survival is the survival at this time, above 0")
 	case te != nil:
