@@ -215,6 +215,21 @@ func (c marginCalc) params() []Input {
 }
 
 func (c marginCalc) power(n1, n2 float64) float64 {
+	if c.e.clusterK[0] > 0 {
+		// A t test of the cluster proportions against the margin, on
+		// k1 + k2 − 2 degrees of freedom, with each arm's binomial
+		// variance (difference scale; ratio margins with clusters are
+		// refused).
+		p1, p2 := c.e.p1, c.e.p2
+		mc := power.MeanComparison{Diff: p1 - p2, SD1: math.Sqrt(p1 * (1 - p1)), SD2: math.Sqrt(p2 * (1 - p2)),
+			Alpha: c.e.alpha, Sides: 1, Welch: true, DF: float64(c.e.clusterK[0] + c.e.clusterK[1] - 2)}
+		if c.s.Hypothesis == "equivalence" {
+			mc.Hypothesis, mc.Bound = power.Equivalence, c.s.Margin
+		} else {
+			mc.Hypothesis, mc.Bound = power.NonInferiority, c.d0()
+		}
+		return power.T.Power(mc, n1, n2)
+	}
 	switch {
 	case c.ratio() && c.s.Hypothesis == "equivalence":
 		return power.RatioEquivalencePower(c.e.p1, c.e.p2, n1, n2, c.s.Margin, c.e.alpha)
@@ -226,7 +241,12 @@ func (c marginCalc) power(n1, n2 float64) float64 {
 	return c.m.NonInferiorityPower(c.e.p1, c.e.p2, n1, n2, c.d0(), c.e.alpha)
 }
 
-func (c marginCalc) powerName() string { return "the power from " + MethodByID(c.id).Name }
+func (c marginCalc) powerName() string {
+	if c.e.clusterK[0] > 0 {
+		return "the power of a t test of the cluster proportions against the margin with clusters_first + clusters_second − 2 degrees of freedom"
+	}
+	return "the power from " + MethodByID(c.id).Name
+}
 
 // meanComparison maps a continuous specification onto the engine.
 func meanComparison(s *Spec, e effects) power.MeanComparison {
@@ -410,14 +430,17 @@ func (c survivalCalc) nStar(target float64, tr *trail) (float64, error) {
 		ins = append(c.params(), in("target_power", target), in("ratio", c.s.Ratio))
 	}
 	tr.add("events_star", fmt.Sprintf("the unrounded number of events from %s", MethodByID(c.id).Name), d, ins...)
-	dn := tr.addInt("events", "ceil(events_star)", ceilTol(d), in("events_star", d))
+	tr.addInt("events", "ceil(events_star): the events to report", ceilTol(d), in("events_star", d))
 	p1, p2 := c.probabilities()
 	c.recordProbabilities(tr, p1, p2)
 	r := c.s.Ratio
-	// The whole number of events required, then participants to expect
-	// them: events = n1 P1 + r n1 P2.
-	return tr.add("n_star", "events / (event_probability_first + ratio × event_probability_second)",
-		float64(dn)/(p1+r*p2), inInt("events", dn), in("event_probability_first", p1), in("event_probability_second", p2), in("ratio", r)), nil
+	// Participants whose expected events reach the events needed:
+	// events_star = n1 P1 + r n1 P2. Converting the unrounded events keeps
+	// the size the smallest whose power reaches the target, as solving
+	// power computes it; the rounding up of the participants then brings
+	// at least ceil(events_star) expected events in nearly every plan.
+	return tr.add("n_star", "events_star / (event_probability_first + ratio × event_probability_second)",
+		d/(p1+r*p2), in("events_star", d), in("event_probability_first", p1), in("event_probability_second", p2), in("ratio", r)), nil
 }
 
 func (c survivalCalc) params() []Input {

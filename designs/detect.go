@@ -134,8 +134,11 @@ func detectEffect(s *Spec, m *MethodInfo, base effects, sz sizes, dir int) (floa
 		e.clusterK = base.clusterK
 		return e
 	}
+	// The effect is found where the power is a hair (1e-12) above the
+	// target, so that restating it on another scale (p1 = ratio × p2, and
+	// back) cannot leave its power a rounding error short of the target.
 	f := func(x float64) float64 {
-		return newCalculator(s, m, at(x)).power(sz.eff[0], sz.eff[1]) - s.Power
+		return newCalculator(s, m, at(x)).power(sz.eff[0], sz.eff[1]) - s.Power - 1e-12
 	}
 	var from, to float64
 	switch s.Outcome {

@@ -3,6 +3,7 @@ package designs
 import (
 	"errors"
 	"fmt"
+	"strings"
 
 	"enough/power"
 )
@@ -42,6 +43,16 @@ func Exact(s *Spec, res *Result) error {
 		dir = -1
 	}
 	a := &res.Result
+	// The plan's power is now the exact power of the planned test: notes on
+	// what the closed form counts, or how it matches the test, no longer
+	// speak of it.
+	var notes []string
+	for _, n := range res.Notes {
+		if n != closedFormOneTail && !strings.HasPrefix(n, "The formula includes a continuity correction") && !strings.HasPrefix(n, "The planned test is conservative") {
+			notes = append(notes, n)
+		}
+	}
+	res.Notes = append([]string{}, notes...)
 	if s.Method != "exact" {
 		// The closed-form answer becomes an alternative.
 		m := MethodByID(s.Method)

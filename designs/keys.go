@@ -58,7 +58,7 @@ var specKeys = map[string]keyInfo{
 	"odds_ratio":            {kindNumber, "a number above 0"},
 	"risk_difference":       {kindNumber, "a number in (-1, 1)"},
 	"prevalence_difference": {kindNumber, "a number in (-1, 1)"},
-	"margin":                {kindNumber, "a number in (0, 0.5)"},
+	"margin":                {kindNumber, "a positive number (a precision survey: in (0, 0.5); a trial: see margin in the README for each outcome and margin_scale)"},
 	"confidence":            {kindNumber, "a number in [0.5, 1)"},
 	"population":            {kindWhole, "a whole number of at least 2"},
 

@@ -63,6 +63,10 @@ func Plan(s *Spec) (*Result, error) {
 	}
 	res.Alpha, res.Sides, res.Ratio = ptr(s.Alpha), s.Sides, ptr(s.Ratio)
 	ro := roles[s.Design]
+	if s.Pairing == "crossover" {
+		// Everyone receives both treatments; the groups are the orders.
+		ro.first, ro.second = "first sequence", "second sequence"
+	}
 	res.FirstGroup, res.SecondGroup = orDefault(s.FirstGroup, ro.first), orDefault(s.SecondGroup, ro.second)
 	if err := planComparison(s, res, m); err != nil {
 		return res, err
@@ -295,7 +299,7 @@ func fmtSizes(n []int) string {
 	if len(n) == 2 {
 		return thousands(n[0]) + " and " + thousands(n[1])
 	}
-	return fmt.Sprint(n)
+	return thousands(n[0])
 }
 
 // thousands formats a whole number with thousands separators.
@@ -573,6 +577,12 @@ func planComparison(s *Spec, res *Result, m *MethodInfo) error {
 				"The choice of formula matters here: %s asks for %s (%s), while %s. The difference exceeds one participant per group.",
 				m.Name, fmtSizes(main.sz.n), groupsPhrase(s, res), andList(differ)))
 		}
+		if s.Outcome == "continuous" && m.means == power.Z && s.Cluster == nil {
+			tc := meansCalc{s: s, m: power.T, id: "t", mc: meanComparison(s, e)}
+			if tp := tc.power(main.sz.eff[0], main.sz.eff[1]); tp < s.Power {
+				res.Warnings = append(res.Warnings, fmt.Sprintf("At these sizes %s, the analysis planned, has a power of %s, below the %s target: the normal approximation (method z) ignores the uncertainty of the estimated standard deviation; method t gives the size the t test needs.", TestName(s.Test), pct1(tp), pct1(s.Power)))
+			}
+		}
 		if e.diluted {
 			// What the dilution costs: the same plan without it.
 			plain := e
@@ -694,7 +704,7 @@ func describeDesign(s *Spec, res *Result, sv solved) {
 		if s.Ratio != 1 && s.Solve != "effect" && s.Hypothesis == "superiority" {
 			res.Warnings = append(res.Warnings, fmt.Sprintf("With unequal allocation the events formulas are rougher: simulation of the log-rank test has found %s a few points off the true power (Schoenfeld's too high and Freedman's too low when the larger arm is the control arm, the other way round otherwise); check the %s power with enough simulate.", MethodByID(s.Method).Name, pct1(*ans.AchievedPower)))
 		}
-		if sc, ok := sv.calc.(survivalCalc); ok && sv.sz.n != nil {
+		if sc, ok := sv.calc.(survivalCalc); ok && sv.sz.n != nil && s.Solve != "effect" {
 			ans.ExpectedEvents = ptr(sc.expectedEvents(sv.sz.eff[0], sv.sz.eff[1]))
 			if s.Solve == "n" {
 				if d, err := sc.events(s.Power); err == nil {
@@ -815,6 +825,9 @@ func smallCells(s *Spec, res *Result, sz sizes) {
 
 // methodTestNotes notes a mismatch between the formula and the planned test.
 func methodTestNotes(s *Spec, res *Result) {
+	if s.Method == "exact" {
+		return // the exact power is the planned test's own
+	}
 	corrected := s.Method == "fleiss-cc"
 	switch {
 	case corrected && s.Test == "chi-square":
@@ -823,6 +836,9 @@ func methodTestNotes(s *Spec, res *Result) {
 		res.Notes = append(res.Notes, "The planned test is conservative (continuity-corrected or exact) but the formula has no correction; fleiss-cc matches that test more closely and asks for more participants.")
 	}
 }
+
+// closedFormOneTail is the note on what a closed-form power counts.
+const closedFormOneTail = "The closed-form power counts rejections in the direction of the planned effect only, as the published formulas do; for a two-sided test the other direction adds at most alpha/2."
 
 // commonNotes adds notes on interpretation.
 func commonNotes(s *Spec, res *Result) {
@@ -836,7 +852,7 @@ func commonNotes(s *Spec, res *Result) {
 			res.Notes = append(res.Notes, "The t-test power counts rejections in both directions, as the test does.")
 		}
 	case s.Sides == 2 && s.Hypothesis == "superiority" && s.Method != "exact":
-		res.Notes = append(res.Notes, "The closed-form power counts rejections in the direction of the planned effect only, as the published formulas do; for a two-sided test the other direction adds at most alpha/2.")
+		res.Notes = append(res.Notes, closedFormOneTail)
 	}
 	if s.DesignEffect > 1 {
 		res.Notes = append(res.Notes, fmt.Sprintf("The design effect of %.4g inflates each group's size; power is evaluated at the effective sizes (analysable participants divided by the design effect).", s.DesignEffect))

@@ -18,10 +18,11 @@ func simModel(s *Spec, res *Result, sizes [2]int, null bool) (simSetup, error) {
 	unavailable := func(why string) (simSetup, error) {
 		return st, &InputError{Msg: fmt.Sprintf("%s: simulate: %s", s.File, why)}
 	}
-	if s.Hypothesis == "equivalence" {
-		if s.Outcome != "binary" {
-			return unavailable("equivalence of means is not simulated yet; its exact power is already computed by integration (method t)")
-		}
+	if s.Hypothesis == "equivalence" && s.Outcome == "continuous" {
+		return unavailable("equivalence of means is not simulated yet; its exact power is already computed by integration (method t)")
+	}
+	if s.Hypothesis != "superiority" && s.Cluster != nil {
+		return unavailable("a cluster trial with a margin is not simulated yet; its closed form is a t test of the cluster summaries against the margin")
 	}
 	if s.DesignEffect > 1 && s.Cluster == nil {
 		// A design effect without a cluster model: simulate the effective

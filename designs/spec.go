@@ -339,7 +339,29 @@ func (r *reader) add(e *entry) error {
 	}
 	r.entries[e.key] = e
 	if specKeys[e.key].kind == kindMap {
-		return r.collectNested(e)
+		old := r.nested[e.key]
+		if err := r.collectNested(e); err != nil {
+			return err
+		}
+		if e.set && e.key != "sources" {
+			// A whole map set on the command line overrides each of its
+			// keys, and those the file gave.
+			subs := map[string]bool{}
+			for k := range old {
+				subs[k] = true
+			}
+			for k := range r.nested[e.key] {
+				subs[k] = true
+			}
+			names := make([]string, 0, len(subs))
+			for k := range subs {
+				names = append(names, k)
+			}
+			sort.Strings(names)
+			for _, k := range names {
+				r.noteSet(e.key+"."+k, old[k])
+			}
+		}
 	}
 	return nil
 }
@@ -619,7 +641,7 @@ func (r *reader) given() []Given {
 			}
 			continue
 		}
-		if e.node.Kind != yaml.ScalarNode {
+		if e.node.Kind != yaml.ScalarNode || specKeys[e.key].kind == kindMap {
 			continue
 		}
 		out = append(out, Given{Key: e.key, Value: e.node.Value})

@@ -77,10 +77,10 @@ func replayStep(st Step) (float64, bool) {
 		return g("total") - g("enrol_first"), true
 	case strings.HasPrefix(rule, "max(ceil(2 × cluster_size), ceil(2 × cluster_size / ratio))"):
 		return math.Max(up(2*g("cluster_size")), up(2*g("cluster_size")/g("ratio"))), true
-	case rule == "ceil(events_star)":
+	case strings.HasPrefix(rule, "ceil(events_star)"):
 		return up(g("events_star")), true
-	case rule == "events / (event_probability_first + ratio × event_probability_second)":
-		return g("events") / (g("event_probability_first") + g("ratio")*g("event_probability_second")), true
+	case rule == "events_star / (event_probability_first + ratio × event_probability_second)":
+		return g("events_star") / (g("event_probability_first") + g("ratio")*g("event_probability_second")), true
 	case strings.HasSuffix(rule, " × event_probability_first + analysable_second × event_probability_second"), strings.HasSuffix(rule, " × event_probability_first + effective_second × event_probability_second"):
 		a, b := "analysable_first", "analysable_second"
 		if strings.HasPrefix(rule, "effective") {

@@ -110,7 +110,11 @@ func (r *reader) build() (*Spec, error) {
 			msg += "; the split between groups follows from exposure_prevalence"
 		case e.key == "attrition" && s.Outcome == "time-to-event":
 			msg += "; a time-to-event plan uses dropout (the fraction lost per time unit) in its place"
-		case e.key == "margin" || e.key == "higher_is_better":
+		case e.key == "margin_scale" && s.Outcome == "time-to-event" && s.Hypothesis != "superiority":
+			msg += "; a time-to-event margin is always a hazard ratio"
+		case e.key == "margin_scale" && s.Outcome == "continuous" && s.Hypothesis != "superiority":
+			msg += "; the margin of a continuous outcome is a difference in means"
+		case e.key == "margin" || e.key == "higher_is_better" || e.key == "margin_scale":
 			msg += "; it belongs to hypothesis non-inferiority or equivalence"
 		default:
 			if sug, ok := counterpart(e.key, design); ok && allowed[sug] {
@@ -174,6 +178,9 @@ func (r *reader) build() (*Spec, error) {
 	// sources must name keys of this specification
 	for _, k := range r.sortedSourceKeys() {
 		e := r.nested["sources"][k]
+		if info, ok := specKeys[k]; ok && info.kind == kindMap && r.get(k) != nil {
+			return nil, r.errAt(e, "names a group of keys; allowed: one of its keys, such as sources.%s.%s", k, map[string]string{"cluster": "icc", "simulate": "seed", "sources": "alpha"}[k])
+		}
 		if r.get(k) != nil {
 			continue
 		}
@@ -282,7 +289,7 @@ func (r *reader) buildPrecision(s *Spec) error {
 			return r.errFile("margin", "missing; required when solving n: the half-width of the confidence interval, in (0, 0.5)")
 		}
 		if !(m > 0 && m < 0.5) {
-			return r.errAt(me, "%s is out of range; allowed: %s", me.node.Value, specKeys["margin"].allowed)
+			return r.errAt(me, "%s is out of range; allowed: a number in (0, 0.5)", me.node.Value)
 		}
 		s.Margin = m
 		if e := r.get("total"); e != nil {

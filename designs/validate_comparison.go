@@ -305,6 +305,9 @@ func (r *reader) buildTrial(s *Spec) error {
 		}
 		s.Cluster = c
 		s.DesignEffect = c.DesignEffect()
+		if s.MarginScale == "ratio" && s.Outcome == "binary" {
+			return r.errAt(r.get("margin_scale"), "ratio is not planned for a cluster trial yet; allowed: margin_scale difference (a t test of the cluster proportions against the margin)")
+		}
 	}
 
 	// adherence
@@ -417,7 +420,11 @@ func (r *reader) buildDirection(s *Spec) error {
 		return err
 	}
 	if de != nil && s.Hypothesis != "superiority" {
-		return r.errAt(de, "does not apply to hypothesis %s, whose side follows from higher_is_better and the margin; allowed: leave direction out", s.Hypothesis)
+		why := "whose side follows from higher_is_better and the margin"
+		if s.Hypothesis == "equivalence" {
+			why = "whose two one-sided tests look both ways"
+		}
+		return r.errAt(de, "does not apply to hypothesis %s, %s; allowed: leave direction out", s.Hypothesis, why)
 	}
 	if de != nil && s.Sides != 1 {
 		return r.errAt(de, "applies to a one-sided test (sides: 1); a two-sided test looks both ways; allowed: leave direction out, or sides: 1")
@@ -477,6 +484,9 @@ func (r *reader) buildBinary(s *Spec) error {
 	if err != nil {
 		return err
 	}
+	if err := r.checkNullRisk(s); err != nil {
+		return err
+	}
 	if effect == nil {
 		// Non-inferiority and equivalence: no true difference by default.
 		s.P1 = s.P2
@@ -490,6 +500,36 @@ func (r *reader) buildBinary(s *Spec) error {
 		return err
 	}
 	return r.checkMarginSide(s, effect, r.marginEffect(s))
+}
+
+// checkNullRisk refuses a margin that puts the null hypothesis outside the
+// possible risks: the first group's risk under the null (at the margin)
+// must lie in (0, 1), else the test has nothing to reject.
+func (r *reader) checkNullRisk(s *Spec) error {
+	if s.Hypothesis == "superiority" {
+		return nil
+	}
+	p2, m := s.P2, s.Margin
+	var nulls []float64
+	switch {
+	case s.MarginScale == "ratio" && s.Hypothesis == "equivalence":
+		nulls = []float64{p2 / m, p2 * m}
+	case s.MarginScale == "ratio":
+		nulls = []float64{p2 * m}
+	case s.Hypothesis == "equivalence":
+		nulls = []float64{p2 - m, p2 + m}
+	case s.HigherIsBetter:
+		nulls = []float64{p2 - m}
+	default:
+		nulls = []float64{p2 + m}
+	}
+	for _, p := range nulls {
+		if !(p > 0 && p < 1) {
+			return r.errAt(r.get("margin"), "%g with %s %g puts the null hypothesis at a risk of %.4g in the %s, outside (0, 1): the test would have nothing to reject; allowed: a margin that keeps that risk strictly between 0 and 1",
+				m, s.ReferenceKey, p2, p, orDefault(s.FirstGroup, roles[s.Design].first))
+		}
+	}
+	return nil
 }
 
 // marginEffect is the true effect of a binary outcome on the margin's

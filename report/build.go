@@ -430,14 +430,21 @@ func alternativeSection(r *designs.Result) section {
 			line = fmt.Sprintf("%s (%s): power %s", alt.Name, alt.Short, pct1(*alt.AchievedPower))
 		case "effect":
 			det := alt.Detectable
-			lo, hi := "not reachable", "not reachable"
-			if det.Lower != nil {
-				lo = valueOn(det.Scale, *det.Lower)
+			var sides []string
+			for _, side := range []struct {
+				v    *float64
+				name string
+			}{{det.Lower, "below"}, {det.Upper, "above"}} {
+				if det.Direction != "" && (det.Direction == "lower") != (side.name == "below") {
+					continue // a one-sided test does not look this way
+				}
+				v := "not reachable"
+				if side.v != nil {
+					v = valueOn(det.Scale, *side.v)
+				}
+				sides = append(sides, v+" "+side.name)
 			}
-			if det.Upper != nil {
-				hi = valueOn(det.Scale, *det.Upper)
-			}
-			line = fmt.Sprintf("%s (%s): %s %s below, %s above no difference", alt.Name, alt.Short, keyLabel(det.Scale), lo, hi)
+			line = fmt.Sprintf("%s (%s): %s %s no difference", alt.Name, alt.Short, keyLabel(det.Scale), strings.Join(sides, ", "))
 		}
 		s.bullets = append(s.bullets, line)
 	}

@@ -114,22 +114,17 @@ func intro(b *strings.Builder, r *designs.Result) {
 
 // directionWord says which way a one-sided superiority test looks.
 func directionWord(r *designs.Result) string {
-	s := r.Spec
-	lower := false
-	switch r.Outcome {
-	case "continuous":
-		lower = s.MeanDiff < 0
-	case "time-to-event":
-		return map[bool]string{true: "has the lower hazard", false: "has the higher hazard"}[s.HazardRatio < 1]
-	default:
-		lower = s.P1 < s.P2
-	}
+	lower := r.Spec.Direction < 0
 	what := "risk"
-	if r.Outcome == "continuous" {
+	switch {
+	case r.Outcome == "continuous":
 		what = "mean"
-	}
-	if r.Design == "case-control" {
+	case r.Outcome == "time-to-event":
+		what = "hazard"
+	case r.Design == "case-control":
 		what = "exposure"
+	case r.Design == "cross-sectional":
+		what = "prevalence"
 	}
 	if lower {
 		return "has the lower " + what
@@ -639,7 +634,7 @@ func article(word string) string {
 // members phrases a group size: "734 in the follow-up arm" for a label that
 // names an arm or group, "734 cases" otherwise.
 func members(n int, label string) string {
-	if strings.HasSuffix(label, " arm") || strings.HasSuffix(label, " group") {
+	if strings.HasSuffix(label, " arm") || strings.HasSuffix(label, " group") || strings.HasSuffix(label, " sequence") {
 		return count(n) + " in the " + label
 	}
 	return count(n) + " " + label

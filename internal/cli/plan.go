@@ -20,6 +20,8 @@ import (
 // PlanOptions are the inputs of `enough plan`.
 type PlanOptions struct {
 	IO *IO
+	// Command is the verb that runs (plan or simulate), for messages.
+	Command string
 
 	// Spec is the specification's path; "" plans the embedded demo and "-"
 	// reads standard input.
@@ -57,7 +59,7 @@ func addSimFlags(cmd *cobra.Command, f *SimFlags) {
 
 // NewCmdPlan builds `enough plan`. runF replaces the run step in tests.
 func NewCmdPlan(streams *IO, runF func(*PlanOptions) error) *cobra.Command {
-	opts := &PlanOptions{IO: streams}
+	opts := &PlanOptions{IO: streams, Command: "plan"}
 	cmd := &cobra.Command{
 		Use:   "plan [SPEC.yaml]",
 		Short: "Compute the sample size, power or detectable effect of a study",
@@ -102,7 +104,7 @@ func validFormat(f string) bool {
 }
 
 func planRun(opts *PlanOptions) error {
-	if err := setsNeedFile(opts.Spec, opts.Sets); err != nil {
+	if err := setsNeedFile(opts.Command, opts.Spec, opts.Sets); err != nil {
 		return err
 	}
 	name, data, err := loadSpec(opts.Spec, opts.IO.In)
@@ -178,9 +180,9 @@ func emit(out io.Writer, path string, data []byte) error {
 // setsNeedFile refuses --set without a specification: it would change the
 // built-in demonstration study and report a number for a study nobody
 // wrote.
-func setsNeedFile(spec string, sets []string) error {
+func setsNeedFile(command, spec string, sets []string) error {
 	if spec == "" && len(sets) > 0 {
-		return &inputError{msg: fmt.Sprintf("--set %s: needs a specification file; without one the built-in demonstration study is planned as it stands; allowed: a file (start one with `enough new DESIGN > study.yaml`, then `enough plan study.yaml --set %s`)", sets[0], sets[0])}
+		return &inputError{msg: fmt.Sprintf("--set %s: needs a specification file; without one the built-in demonstration study is planned as it stands; allowed: a file (start one with `enough new DESIGN > study.yaml`, then `enough %s study.yaml --set %s`)", sets[0], command, sets[0])}
 	}
 	return nil
 }

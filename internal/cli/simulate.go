@@ -25,7 +25,7 @@ var errInterrupted = errors.New("interrupted: the simulation stopped early; the 
 
 // NewCmdSimulate builds `enough simulate`.
 func NewCmdSimulate(streams *IO) *cobra.Command {
-	opts := &PlanOptions{IO: streams, Verify: true}
+	opts := &PlanOptions{IO: streams, Verify: true, Command: "simulate"}
 	cmd := &cobra.Command{
 		Use:   "simulate SPEC.yaml",
 		Short: "Verify a plan by simulating the study and its planned analysis",
