@@ -6,7 +6,7 @@ import (
 	"strings"
 	"testing"
 
-	"enough/internal/reftable"
+	"enough/power/reftable"
 )
 
 // TestDetectableAgainstReference solves the smallest detectable effect for

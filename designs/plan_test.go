@@ -7,7 +7,7 @@ import (
 	"strings"
 	"testing"
 
-	"enough/internal/reftable"
+	"enough/power/reftable"
 )
 
 func num(t *testing.T, s string) float64 {

@@ -7,7 +7,7 @@ import (
 	"strings"
 	"testing"
 
-	"enough/internal/reftable"
+	"enough/power/reftable"
 )
 
 // TestSurvivalPlan runs the rows of trials_survival.tsv that convert events

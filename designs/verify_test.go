@@ -7,7 +7,7 @@ import (
 	"strings"
 	"testing"
 
-	"enough/internal/reftable"
+	"enough/power/reftable"
 )
 
 func verify(t *testing.T, spec string, o SimOptions, sets ...string) (*Result, error) {

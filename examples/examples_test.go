@@ -8,7 +8,7 @@ import (
 
 	"enough/designs"
 	"enough/examples"
-	"enough/report"
+	"enough/designs/report"
 )
 
 // TestExamples plans every example in every format and checks that each

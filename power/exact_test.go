@@ -7,7 +7,7 @@ import (
 	"strconv"
 	"testing"
 
-	"enough/internal/reftable"
+	"enough/power/reftable"
 )
 
 func exactTestOf(t *testing.T, id string) BinaryTest {

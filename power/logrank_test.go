@@ -9,7 +9,7 @@ import (
 	"slices"
 	"testing"
 
-	"enough/internal/reftable"
+	"enough/power/reftable"
 )
 
 // logRankData is one dataset of a reference table.

@@ -5,7 +5,7 @@ import (
 	"math"
 	"testing"
 
-	"enough/internal/reftable"
+	"enough/power/reftable"
 )
 
 func marginMethodOf(t *testing.T, id string) MarginMethod {

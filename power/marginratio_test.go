@@ -8,7 +8,7 @@ import (
 
 	"gonum.org/v1/gonum/stat/distuv"
 
-	"enough/internal/reftable"
+	"enough/power/reftable"
 )
 
 // TestRestrictedMLERatioReference checks the closed form against every

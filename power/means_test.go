@@ -6,7 +6,7 @@ import (
 	"math"
 	"testing"
 
-	"enough/internal/reftable"
+	"enough/power/reftable"
 	"enough/power"
 
 	"gonum.org/v1/gonum/integrate/quad"

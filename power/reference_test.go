@@ -6,7 +6,7 @@ import (
 	"strings"
 	"testing"
 
-	"enough/internal/reftable"
+	"enough/power/reftable"
 )
 
 // byName returns the member of ms whose String is id.

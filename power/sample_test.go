@@ -6,7 +6,7 @@ import (
 	"sort"
 	"testing"
 
-	"enough/internal/reftable"
+	"enough/power/reftable"
 )
 
 // simPMFCase is one distribution of testdata/reference/sim_pmf.tsv: its exact

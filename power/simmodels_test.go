@@ -8,7 +8,7 @@ import (
 	"testing"
 	"time"
 
-	"enough/internal/reftable"
+	"enough/power/reftable"
 	"gonum.org/v1/gonum/stat/distuv"
 )
 

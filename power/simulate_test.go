@@ -8,7 +8,7 @@ import (
 	"testing"
 	"time"
 
-	"enough/internal/reftable"
+	"enough/power/reftable"
 )
 
 // simTestModels is one model of every kind, for the invariants of Simulate.

@@ -5,7 +5,7 @@ import (
 	"math"
 	"testing"
 
-	"enough/internal/reftable"
+	"enough/power/reftable"
 )
 
 // survClose reports whether got is within the relative tolerance tol of want.

@@ -5,7 +5,7 @@ import (
 	"math"
 	"testing"
 
-	"enough/internal/reftable"
+	"enough/power/reftable"
 )
 
 // TestHRMarginEventsReference checks the unrounded events of the

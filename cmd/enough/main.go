@@ -2,10 +2,6 @@
 // studies. See README.md.
 package main
 
-import (
-	"os"
+import "os"
 
-	"enough/internal/cli"
-)
-
-func main() { os.Exit(cli.Execute(os.Args[1:], cli.DefaultIO())) }
+func main() { os.Exit(Execute(os.Args[1:], DefaultIO())) }

@@ -1,6 +1,6 @@
 // Package cli builds the cobra commands of enough. Commands are thin: they
 // parse flags, call designs and report, and map errors to exit codes.
-package cli
+package main
 
 import (
 	"errors"

@@ -1,4 +1,4 @@
-package cli
+package main
 
 import (
 	"bytes"
@@ -14,7 +14,7 @@ import (
 
 	"enough/designs"
 	"enough/examples"
-	"enough/report"
+	"enough/designs/report"
 )
 
 // PlanOptions are the inputs of `enough plan`.
