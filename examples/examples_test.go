@@ -7,8 +7,8 @@ import (
 	"testing"
 
 	"enough/designs"
-	"enough/examples"
 	"enough/designs/report"
+	"enough/examples"
 )
 
 // TestExamples plans every example in every format and checks that each

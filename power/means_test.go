@@ -6,8 +6,8 @@ import (
 	"math"
 	"testing"
 
-	"enough/power/reftable"
 	"enough/power"
+	"enough/power/reftable"
 
 	"gonum.org/v1/gonum/integrate/quad"
 	"gonum.org/v1/gonum/stat/distuv"

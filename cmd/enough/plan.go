@@ -13,8 +13,8 @@ import (
 	"github.com/spf13/cobra"
 
 	"enough/designs"
-	"enough/examples"
 	"enough/designs/report"
+	"enough/examples"
 )
 
 // PlanOptions are the inputs of `enough plan`.
