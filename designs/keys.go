@@ -213,6 +213,9 @@ func keysFor(sel selector) map[string]bool {
 	case "binary":
 		add(r.reference)
 		add(r.effects...)
+		if sel.design != "case-control" {
+			add("higher_is_better")
+		}
 		if sel.design == "trial" {
 			add("cluster")
 		}

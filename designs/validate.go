@@ -114,7 +114,11 @@ func (r *reader) build() (*Spec, error) {
 			msg += "; a time-to-event margin is always a hazard ratio"
 		case e.key == "margin_scale" && s.Outcome == "continuous" && s.Hypothesis != "superiority":
 			msg += "; the margin of a continuous outcome is a difference in means"
-		case e.key == "margin" || e.key == "higher_is_better" || e.key == "margin_scale":
+		case e.key == "higher_is_better" && design == "case-control":
+			msg += "; a case-control study compares exposure, not an outcome's good or bad values"
+		case e.key == "higher_is_better":
+			msg += "; it belongs to binary outcomes and to hypothesis non-inferiority"
+		case e.key == "margin" || e.key == "margin_scale":
 			msg += "; it belongs to hypothesis non-inferiority or equivalence"
 		default:
 			if sug, ok := counterpart(e.key, design); ok && allowed[sug] {

@@ -480,6 +480,13 @@ func (r *reader) buildBinary(s *Spec) error {
 	if s.P2, err = r.probability(ro.reference, "required: the risk in the "+orDefault(s.SecondGroup, ro.second)); err != nil {
 		return err
 	}
+	if s.Hypothesis == "superiority" {
+		// Which values of the outcome are good: wording only (a risk or
+		// a proportion, benefit or harm); not the side of a test.
+		if s.HigherIsBetter, _, err = r.boolean("higher_is_better"); err != nil {
+			return err
+		}
+	}
 	effect, err := r.exactlyOne(ro.effects, s.Hypothesis == "superiority")
 	if err != nil {
 		return err
