@@ -1,8 +1,14 @@
 package designs
 
 import (
+	"bytes"
+	"errors"
 	"fmt"
+	"regexp"
+	"sort"
+	"strconv"
 	"strings"
+	"unicode/utf8"
 )
 
 // SpecError is a problem with a study specification. It renders as one
@@ -34,6 +40,97 @@ func (e *SpecError) Error() string {
 	return b.String()
 }
 
+// SpecErrors is several independent problems of one specification, in file
+// order (line, then key); problems with no line (a missing key, a --set
+// override) come last.
+//
+// [Parse] returns a [*SpecError] when a specification has exactly one
+// problem and SpecErrors when it has several, never an empty SpecErrors.
+// Callers that expect one problem keep working: SpecErrors unwraps to its
+// members, so errors.As(err, &specErr) with specErr a *SpecError finds the
+// first problem. To list them all, use [AllSpecErrors].
+type SpecErrors []*SpecError
+
+// Error returns one line per problem, joined by "\n".
+func (e SpecErrors) Error() string {
+	lines := make([]string, len(e))
+	for i, se := range e {
+		lines[i] = se.Error()
+	}
+	return strings.Join(lines, "\n")
+}
+
+// Unwrap returns the problems, for errors.As and errors.Is.
+func (e SpecErrors) Unwrap() []error {
+	out := make([]error, len(e))
+	for i, se := range e {
+		out[i] = se
+	}
+	return out
+}
+
+// AllSpecErrors returns every problem err holds: the members of a
+// SpecErrors, the one *SpecError, or nil when err holds neither.
+func AllSpecErrors(err error) []*SpecError {
+	var many SpecErrors
+	if errors.As(err, &many) {
+		return many
+	}
+	var one *SpecError
+	if errors.As(err, &one) {
+		return []*SpecError{one}
+	}
+	return nil
+}
+
+// result sorts the problems into file order, drops repeats, and returns
+// nil, the one *SpecError, or the SpecErrors.
+func (e SpecErrors) result() error {
+	sort.SliceStable(e, func(i, j int) bool {
+		a, b := e[i], e[j]
+		if (a.Line == 0) != (b.Line == 0) {
+			return b.Line == 0
+		}
+		if a.Line != b.Line {
+			return a.Line < b.Line
+		}
+		return a.Key < b.Key
+	})
+	var out SpecErrors
+	seen := map[string]bool{}
+	for _, se := range e {
+		if line := se.Error(); !seen[line] {
+			seen[line] = true
+			out = append(out, se)
+		}
+	}
+	switch len(out) {
+	case 0:
+		return nil
+	case 1:
+		return out[0]
+	}
+	return out
+}
+
+// maxEcho is the number of characters of a value or key a message repeats.
+const maxEcho = 60
+
+// clip shortens s to maxEcho characters, marking the cut with "…", so that
+// a message about a very long value stays readable.
+func clip(s string) string {
+	if utf8.RuneCountInString(s) <= maxEcho {
+		return s
+	}
+	r := []rune(s)
+	return string(r[:maxEcho]) + "…"
+}
+
+// fmtFraction writes a number such as 20/100 without floating-point noise.
+func fmtFraction(x float64) string {
+	return strconv.FormatFloat(x, 'g', 10, 64)
+}
+
 // editDistance returns the optimal-string-alignment distance between a and
 // b: insertions, deletions, substitutions and transpositions of adjacent
 // letters each count one (Damerau 1964).
@@ -61,19 +158,168 @@ func editDistance(a, b string) int {
 	return d[len(a)][len(b)]
 }
 
+// maxSuggestLen is the longest word for which a suggestion is sought: a
+// longer one is not a typo of a key.
+const maxSuggestLen = 64
+
 // nearest returns the candidate closest to s, if it is close enough to be a
-// plausible typo (at most 2 edits, or a third of a longer word, and at most 3).
+// plausible typo (at most 2 edits, or a third of a longer word, and at most
+// 3). Case is ignored: ALPHA is one edit from nothing but alpha.
 func nearest(s string, candidates []string) (string, bool) {
+	if len(s) > maxSuggestLen {
+		return "", false
+	}
+	s = strings.ToLower(s)
 	best, bestD := "", 1<<30
 	for _, c := range candidates {
-		d := editDistance(s, c)
-		if min(len(s), len(c)) >= 3 && (strings.Contains(c, s) || strings.Contains(s, c)) {
+		lc := strings.ToLower(c)
+		d := editDistance(s, lc)
+		if min(len(s), len(c)) >= 3 && (strings.Contains(lc, s) || strings.Contains(s, lc)) {
 			d = min(d, 2)
 		}
 		if d < bestD || (d == bestD && c < best) {
 			best, bestD = c, d
 		}
 	}
-	limit := min(3, max(2, len(s)/3))
+	// A short word is no typo of a key it shares no letter with ("sd" is
+	// two edits from "n").
+	limit := min(3, max(2, len(s)/3), len(s)-1, len(best)-1)
 	return best, bestD <= limit
+}
+
+// checkText refuses data that is not UTF-8 text: a binary file (it holds
+// NUL bytes), a UTF-16 one, or one with a byte that is not UTF-8, named by
+// its line.
+func checkText(file string, data []byte) *SpecError {
+	const want = "allowed: a YAML specification"
+	if bytes.HasPrefix(data, []byte{0xFF, 0xFE}) || bytes.HasPrefix(data, []byte{0xFE, 0xFF}) {
+		return &SpecError{File: file, Msg: "is not a text file enough reads (it is UTF-16; save it as UTF-8); " + want}
+	}
+	if bytes.IndexByte(data, 0) >= 0 {
+		return &SpecError{File: file, Msg: "is not a text file (it contains NUL bytes, as binary files do); " + want}
+	}
+	for i := 0; i < len(data); {
+		c, size := utf8.DecodeRune(data[i:])
+		line := 1 + bytes.Count(data[:i], []byte("\n"))
+		switch {
+		case c == utf8.RuneError && size <= 1:
+			return &SpecError{File: file, Line: line, Msg: fmt.Sprintf("is not a text file (byte 0x%02X on this line is not UTF-8; save the file as UTF-8); %s", data[i], want)}
+		case c < 0x20 && c != '\t' && c != '\n' && c != '\r', c == 0x7F:
+			return &SpecError{File: file, Line: line, Msg: fmt.Sprintf("is not a text file (a control character, 0x%02X, on this line); %s", c, want)}
+		}
+		i += size
+	}
+	return nil
+}
+
+var yamlLine = regexp.MustCompile(`^yaml: line (\d+): (.*)$`)
+
+// syntaxError turns a YAML parser error into one line: the line, the
+// parser's words, and a plain hint at the usual cause.
+func syntaxError(file string, data []byte, err error) *SpecError {
+	msg := err.Error()
+	m := yamlLine.FindStringSubmatch(strings.SplitN(msg, "\n", 2)[0])
+	if m == nil {
+		msg = strings.TrimPrefix(strings.ReplaceAll(msg, "\n", "; "), "yaml: ")
+		se := &SpecError{File: file, Msg: "YAML syntax error: " + msg}
+		if a := unknownAnchor.FindStringSubmatch(msg); a != nil {
+			se.Line = lineOf(data, "*"+a[1])
+			se.Msg += fmt.Sprintf("; the alias *%s needs an anchor &%s on an earlier value (put quotes around a value that starts with *)", a[1], a[1])
+		}
+		return se
+	}
+	line, _ := strconv.Atoi(m[1])
+	if strings.HasPrefix(m[2], "did not find expected") {
+		// yaml.v3 reports a parser error at the 0-based line of the
+		// construct it was reading; make it 1-based.
+		line++
+	}
+	if tl := tabLine(data, line); tl > 0 {
+		// yaml.v3 may report the line before the tab; point at it.
+		return &SpecError{File: file, Line: tl, Msg: "YAML syntax error: a tab character in the indentation; allowed: spaces only"}
+	}
+	se := &SpecError{File: file, Line: line, Msg: "YAML syntax error: " + m[2]}
+	if hint := syntaxHint(m[2], lineText(data, line), lineText(data, line-1)); hint != "" {
+		se.Msg += "; " + hint
+	}
+	return se
+}
+
+var unknownAnchor = regexp.MustCompile(`unknown anchor '([^']*)' referenced`)
+
+// syntaxHint says in plain words what usually causes a YAML parser error,
+// from its wording and the text of its line (and the line before).
+func syntaxHint(msg, text, before string) string {
+	indent := func(s string) int { return len(s) - len(strings.TrimLeft(s, " ")) }
+	switch {
+	case strings.HasPrefix(msg, "mapping values are not allowed"):
+		key, value, ok := strings.Cut(strings.TrimSpace(text), ": ")
+		value = strings.TrimSpace(value)
+		if ok && strings.HasPrefix(value, ":") {
+			return "a colon too many: one colon and a space follow a key"
+		}
+		if ok && strings.Contains(value, ": ") && !strings.ContainsAny(value, `"`) {
+			return fmt.Sprintf("a value that contains \": \" needs quotes: %s: %s", clip(key), clip(strconv.Quote(strings.TrimSpace(value))))
+		}
+		if ok && strings.Contains(value, ": ") {
+			return "a value that contains \": \" needs quotes around it"
+		}
+		if strings.TrimSpace(before) != "" && indent(text) > indent(before) {
+			return "this line is indented more than the line above, whose key already has a value: start keys of the same map in the same column"
+		}
+		return "a value that contains \": \" needs quotes around it"
+	case strings.HasPrefix(msg, "did not find expected key"):
+		if strings.HasPrefix(strings.TrimSpace(text), "- ") {
+			return "a list item (- ) stands where a key was expected; check the indentation"
+		}
+		return "check the indentation: keys of one map start in the same column, and keys inside sources, cluster or simulate are indented by the same spaces"
+	case strings.HasPrefix(msg, "did not find expected ',' or ']'"):
+		return "a [ is not closed on its line (put quotes around a value that starts with [)"
+	case strings.HasPrefix(msg, "did not find expected ',' or '}'"):
+		return "a { is not closed on its line (put quotes around a value that starts with {)"
+	case strings.HasPrefix(msg, "could not find expected ':'"):
+		return "a key needs a colon and a space before its value, as in `design: trial`"
+	case strings.HasPrefix(msg, "found unexpected end of stream"):
+		return "a quotation mark opened here is not closed"
+	case strings.HasPrefix(msg, "found character that cannot start any token"):
+		_, value, _ := strings.Cut(text, ":")
+		if value = strings.TrimLeft(value, " "); value != "" && strings.ContainsAny(value[:1], "@`%") {
+			return fmt.Sprintf("a value that starts with %s needs quotes around it", value[:1])
+		}
+		if strings.Contains(text, "\t") {
+			return "a tab stands where YAML takes spaces"
+		}
+		return "a value that starts with a character such as @ or ` needs quotes around it"
+	}
+	return ""
+}
+
+// lineText returns the 1-based line of data, or "".
+func lineText(data []byte, line int) string {
+	lines := strings.Split(string(data), "\n")
+	if line < 1 || line > len(lines) {
+		return ""
+	}
+	return strings.TrimRight(lines[line-1], "\r")
+}
+
+// lineOf returns the first line of data that contains s, or 0.
+func lineOf(data []byte, s string) int {
+	i := bytes.Index(data, []byte(s))
+	if i < 0 {
+		return 0
+	}
+	return 1 + bytes.Count(data[:i], []byte("\n"))
+}
+
+// tabLine returns line or the line after it when its indentation holds a
+// tab, and 0 otherwise.
+func tabLine(data []byte, line int) int {
+	for _, n := range []int{line, line + 1} {
+		l := lineText(data, n)
+		if strings.Contains(l[:len(l)-len(strings.TrimLeft(l, " \t"))], "\t") {
+			return n
+		}
+	}
+	return 0
 }

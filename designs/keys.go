@@ -1,6 +1,9 @@
 package designs
 
-import "sort"
+import (
+	"sort"
+	"strings"
+)
 
 // kind is the YAML type a key takes.
 type kind int
@@ -200,6 +203,10 @@ func keysFor(sel selector) map[string]bool {
 	if r.size == "n" && sel.pairing != "paired" {
 		add("n_second")
 	}
+	if sel.pairing == "paired" {
+		// Each pair holds one of each group.
+		delete(ok, "ratio")
+	}
 	if sel.design == "trial" {
 		add("hypothesis", "non_adherence", "contamination", "arms", "comparisons")
 		if sel.hypothesis == "non-inferiority" || sel.hypothesis == "equivalence" {
@@ -240,4 +247,192 @@ func keysFor(sel selector) map[string]bool {
 		delete(ok, "attrition")
 	}
 	return ok
+}
+
+// fractionKeys take a fraction (a probability, a proportion or a difference
+// of two), so a value such as 20 was probably written as a percentage. A
+// margin is a fraction too when it is a risk difference or a precision
+// survey's half-width (see reader.isFraction).
+var fractionKeys = map[string]bool{
+	"alpha": true, "power": true, "attrition": true, "dropout": true,
+	"non_adherence": true, "contamination": true, "confidence": true,
+	"unexposed_risk": true, "exposed_risk": true, "control_risk": true,
+	"intervention_risk": true, "control_exposure": true, "case_exposure": true,
+	"exposure_prevalence": true, "unexposed_prevalence": true,
+	"exposed_prevalence": true, "expected_prevalence": true,
+	"control_survival": true, "risk_difference": true, "prevalence_difference": true,
+}
+
+// ratioKeys take a ratio, which is a plain number and not a percentage.
+var ratioKeys = map[string]bool{
+	"ratio": true, "risk_ratio": true, "prevalence_ratio": true,
+	"odds_ratio": true, "hazard_ratio": true,
+}
+
+// Roles a synonym may stand for; each becomes the key of a selection that
+// plays it (see resolveRole).
+const (
+	roleReference  = "@reference"  // the second group's risk or prevalence
+	roleFirst      = "@first"      // the first group's risk or prevalence
+	roleRatio      = "@ratio"      // the effect as a ratio
+	roleDifference = "@difference" // the effect as a difference
+	roleSize       = "@size"       // the enrolment: n or total
+	roleLoss       = "@loss"       // attrition, or dropout in time-to-event plans
+	roleAllocation = "@allocation" // ratio, or exposure_prevalence in surveys
+)
+
+// synonyms maps words of the trade that are not keys of this selection to
+// the key, or the role of a key, they usually mean. Keys of one selection
+// may be synonyms in another (n in a survey is total).
+var synonyms = map[string]string{
+	"baseline_risk": roleReference, "p0": roleReference, "reference_risk": roleReference,
+	"control_rate": roleReference, "control_event_rate": roleReference,
+	"background_risk": roleReference, "baseline_prevalence": roleReference,
+	"control_prevalence": roleReference,
+
+	"p1": roleFirst, "treatment_risk": roleFirst, "experimental_risk": roleFirst,
+	"exposed_rate": roleFirst, "treatment_rate": roleFirst,
+
+	"relative_risk": roleRatio, "rr": roleRatio, "risk_ratio": roleRatio,
+	"prevalence_ratio": roleRatio, "or": "odds_ratio", "hr": "hazard_ratio",
+
+	"difference": roleDifference, "delta": roleDifference,
+	"risk_difference": roleDifference, "prevalence_difference": roleDifference,
+	"absolute_difference": roleDifference,
+
+	"n": roleSize, "total": roleSize, "sample_size": roleSize,
+	"size": roleSize, "n_per_group": roleSize, "group_size": roleSize,
+
+	"dropout": roleLoss, "attrition": roleLoss, "drop_out": roleLoss,
+	"loss_to_follow_up": roleLoss, "lost_to_follow_up": roleLoss,
+	"non_response": roleLoss, "nonresponse": roleLoss, "withdrawal": roleLoss,
+
+	"allocation": roleAllocation, "allocation_ratio": roleAllocation,
+
+	"icc": "cluster.icc", "intracluster_correlation": "cluster.icc",
+	"cluster_size": "cluster.size",
+
+	"significance": "alpha", "significance_level": "alpha", "type_i_error": "alpha",
+
+	"deff": "design_effect",
+
+	"precision": "margin", "half_width": "margin", "margin_of_error": "margin",
+
+	"confidence_level": "confidence",
+
+	"prevalence": "expected_prevalence", "expected_proportion": "expected_prevalence",
+
+	"sigma": "sd", "standard_deviation": "sd", "stdev": "sd", "std_dev": "sd",
+
+	"tails": "sides", "sided": "sides",
+
+	"median_survival": "control_median", "median": "control_median",
+
+	"recruitment_period": "accrual", "accrual_period": "accrual",
+}
+
+// resolveRole turns a synonym's role into the key of the selection that
+// plays it, or "" when none does.
+func resolveRole(role string, sel selector) string {
+	if !strings.HasPrefix(role, "@") {
+		return role
+	}
+	precision := sel.design == "cross-sectional" && sel.goal == "precision"
+	ro, known := roles[sel.design]
+	if !known {
+		return ""
+	}
+	scaled := func(sc Scale) string {
+		for _, k := range ro.effects {
+			if scaleOf(k) == sc {
+				return k
+			}
+		}
+		return ""
+	}
+	switch role {
+	case roleReference:
+		switch {
+		case precision:
+			return "expected_prevalence"
+		case sel.outcome == "binary":
+			return ro.reference
+		}
+	case roleFirst:
+		if !precision && sel.outcome == "binary" {
+			return ro.effects[len(ro.effects)-1]
+		}
+	case roleRatio:
+		switch {
+		case precision:
+		case sel.outcome == "time-to-event":
+			return "hazard_ratio"
+		case sel.outcome == "binary" && scaled(ScaleRatio) != "":
+			return scaled(ScaleRatio)
+		case sel.outcome == "binary":
+			return scaled(ScaleOdds)
+		}
+	case roleDifference:
+		switch {
+		case precision:
+		case sel.outcome == "continuous":
+			return "mean_difference"
+		case sel.outcome == "binary":
+			return scaled(ScaleDifference)
+		}
+	case roleSize:
+		if precision {
+			return "total"
+		}
+		return ro.size
+	case roleLoss:
+		if sel.outcome == "time-to-event" && !precision {
+			return "dropout"
+		}
+		return "attrition"
+	case roleAllocation:
+		if sel.design == "cross-sectional" {
+			return "exposure_prevalence"
+		}
+		return "ratio"
+	}
+	return ""
+}
+
+// suggestKey returns the key that word (unknown, or not of this selection)
+// most likely stands for: the same key in other letter case, the trade's
+// synonym, or the key of this design that plays the same role (typos are
+// nearest's). sel is nil when the selection is not known. Only a key that
+// allowed accepts and given does not hold yet is suggested (a nested key
+// such as cluster.icc when its map is allowed), so that following the
+// suggestion never leads to the next refusal. It returns "" when nothing
+// fits, or when word is too long to be a typo of a key.
+func suggestKey(word string, sel *selector, allowed, given map[string]bool) string {
+	if len(word) > maxSuggestLen {
+		return ""
+	}
+	norm := strings.NewReplacer("-", "_", " ", "_").Replace(strings.ToLower(strings.TrimSpace(word)))
+	fits := func(k string) bool {
+		if k == "" || k == word || given[k] {
+			return false
+		}
+		if head, _, nested := strings.Cut(k, "."); nested {
+			return allowed[head]
+		}
+		return allowed[k]
+	}
+	if fits(norm) {
+		return norm
+	}
+	if role, ok := synonyms[norm]; ok && sel != nil {
+		if k := resolveRole(role, *sel); fits(k) {
+			return k
+		}
+	}
+	if sel != nil {
+		if k, ok := counterpart(norm, sel.design); ok && fits(k) {
+			return k
+		}
+	}
+	return ""
 }

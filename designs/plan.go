@@ -4,7 +4,11 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"regexp"
 	"strconv"
+	"strings"
+	"unicode"
+	"unicode/utf8"
 
 	"enough/power"
 )
@@ -51,7 +55,7 @@ func Plan(s *Spec) (*Result, error) {
 		Solve: s.Solve, Method: s.Method, MethodName: m.Name, Citation: m.Citation, Short: m.Short,
 		Test: s.Test, TestName: TestName(s.Test),
 		Attrition: s.Attrition, DesignEff: s.DesignEffect,
-		Alternatives: []Alternative{}, Notes: []string{}, Warnings: append([]string{}, s.Ignored...),
+		Alternatives: []Alternative{}, Notes: []string{}, Warnings: ignoredWarnings(s),
 		Cautions: Cautions, Spec: s,
 	}
 	if s.Solve != "power" && s.Goal != "precision" {
@@ -75,6 +79,39 @@ func Plan(s *Spec) (*Result, error) {
 		return res, Exact(s, res)
 	}
 	return res, nil
+}
+
+// ignoredKey matches a reason a key is ignored that starts with the key.
+var ignoredKey = regexp.MustCompile(`^[a-z_.]+ is ignored`)
+
+// ignoredWarnings words the keys this solve ignores as warnings, one full
+// sentence each: "The key power is ignored when solving power (…).".
+func ignoredWarnings(s *Spec) []string {
+	out := []string{}
+	for _, l := range s.Ignored {
+		if ignoredKey.MatchString(l) {
+			l = "The key " + l
+		}
+		out = append(out, Sentence(l))
+	}
+	return out
+}
+
+// Sentence returns a message as a full sentence: a capital first letter
+// and a closing full stop (or other end mark).
+func Sentence(s string) string {
+	s = strings.TrimSpace(s)
+	if s == "" {
+		return s
+	}
+	r, n := utf8.DecodeRuneInString(s)
+	if unicode.IsLower(r) {
+		s = string(unicode.ToUpper(r)) + s[n:]
+	}
+	if !strings.HasSuffix(s, ".") && !strings.HasSuffix(s, "?") && !strings.HasSuffix(s, "!") {
+		s += "."
+	}
+	return s
 }
 
 func orDefault(s, def string) string {
@@ -553,6 +590,8 @@ func planComparison(s *Spec, res *Result, m *MethodInfo) error {
 		ans.NStar = main.nstar
 		fillSizes(s, ans, main.sz)
 		ans.AchievedPower = ptr(recordPower(s, tr, main, "achieved_power"))
+		// Other methods' sizes, when one differs from the chosen method's by
+		// more than one participant in a group.
 		var differ []string
 		for _, o := range others {
 			alt, err := solveN(s, o, e, nil)
@@ -567,15 +606,15 @@ func planComparison(s *Spec, res *Result, m *MethodInfo) error {
 			res.Alternatives = append(res.Alternatives, a)
 			for i := range alt.sz.n {
 				if abs(alt.sz.n[i]-main.sz.n[i]) > 1 {
-					differ = append(differ, fmt.Sprintf("%s asks for %s", o.Name, fmtSizes(alt.sz.n)))
+					differ = append(differ, fmt.Sprintf("%s gives %s", o.Name, fmtSizes(alt.sz.n)))
 					break
 				}
 			}
 		}
 		if len(differ) > 0 && m.ID != "exact" {
-			res.Warnings = append(res.Warnings, fmt.Sprintf(
-				"The choice of formula matters here: %s asks for %s (%s), while %s. The difference exceeds one participant per group.",
-				m.Name, fmtSizes(main.sz.n), groupsPhrase(s, res), andList(differ)))
+			res.Notes = append(res.Notes, fmt.Sprintf(
+				"The methods differ by more than one participant in a group: %s gives %s %s, while %s.",
+				m.Name, fmtSizes(main.sz.n), sizesWhat(s), andList(differ)))
 		}
 		if s.Outcome == "continuous" && m.means == power.Z && s.Cluster == nil {
 			tc := meansCalc{s: s, m: power.T, id: "t", mc: meanComparison(s, e)}
@@ -652,20 +691,44 @@ func planComparison(s *Spec, res *Result, m *MethodInfo) error {
 	return nil
 }
 
+// outcomeNoun names the measure of a binary outcome in messages: "risk"
+// for an adverse outcome, "prevalence" in a survey, "proportion" for a
+// desirable outcome (higher_is_better), "exposure" in a case-control study.
+func outcomeNoun(s *Spec) string {
+	switch {
+	case s.Design == "case-control":
+		return "exposure"
+	case s.HigherIsBetter:
+		return "proportion"
+	case s.Design == "cross-sectional":
+		return "prevalence"
+	}
+	return "risk"
+}
+
+// ratioName names the ratio of a binary outcome's two groups in messages.
+func ratioName(s *Spec) string {
+	if n := outcomeNoun(s); n != "proportion" {
+		return n + " ratio"
+	}
+	return "ratio of proportions"
+}
+
 // unreachableWhy explains an unreachable direction.
 func unreachableWhy(s *Spec, res *Result, side string) string {
 	if s.Outcome != "binary" {
 		return ""
 	}
-	return fmt.Sprintf(": the risk in the %s would have to pass %s", res.FirstGroup, map[string]string{"below": "0", "above": "1"}[side])
+	return fmt.Sprintf(": the first group's %s would have to pass %s", outcomeNoun(s), map[string]string{"below": "0", "above": "1"}[side])
 }
 
-// groupsPhrase names the two groups for messages.
-func groupsPhrase(s *Spec, res *Result) string {
+// sizesWhat says what a list of sizes counts, for messages: "pairs", or
+// "(first group, second group)".
+func sizesWhat(s *Spec) string {
 	if s.Pairing == "paired" {
 		return "pairs"
 	}
-	return res.FirstGroup + " and " + res.SecondGroup
+	return "(first group, second group)"
 }
 
 // plannedEffect restates the planned (undiluted) effect.
@@ -843,8 +906,8 @@ const closedFormOneTail = "The closed-form power counts rejections in the direct
 // commonNotes adds notes on interpretation.
 func commonNotes(s *Spec, res *Result) {
 	if s.Design != "case-control" && s.Outcome == "binary" && math.Max(s.P1, s.P2) > 0.1 && s.P1 != s.P2 && s.Solve != "effect" {
-		res.Notes = append(res.Notes, fmt.Sprintf("The outcome is not rare (up to %.0f%%): the odds ratio (%.3g) lies further from 1 than the risk ratio (%.3g) and should not be read as one.",
-			100*math.Max(s.P1, s.P2), power.OddsRatio(s.P1, s.P2), s.P1/s.P2))
+		res.Notes = append(res.Notes, fmt.Sprintf("The outcome is not rare (up to %.0f%%): the odds ratio (%.3g) lies further from 1 than the %s (%.3g) and should not be read as one.",
+			100*math.Max(s.P1, s.P2), power.OddsRatio(s.P1, s.P2), ratioName(s), s.P1/s.P2))
 	}
 	switch {
 	case s.Method == "t" || s.Cluster != nil:

@@ -225,19 +225,23 @@ func TestSolveEffectUnreachable(t *testing.T) {
 	}
 }
 
-// TestMethodsDisagree checks the warning when methods differ by more than
-// one participant per group, and its absence when they do not.
+// TestMethodsDisagree checks the note when methods differ by more than
+// one participant per group (a note: it needs no action), and its absence
+// when they do not.
 func TestMethodsDisagree(t *testing.T) {
 	res := mustPlan(t, "version: 1\ndesign: trial\ncontrol_risk: 0.3\nintervention_risk: 0.2\npower: 0.8\n")
-	if !strings.Contains(strings.Join(res.Warnings, " "), "choice of formula matters") {
-		t.Errorf("no disagreement warning: %q", res.Warnings)
+	if !strings.Contains(strings.Join(res.Notes, " "), "methods differ by more than one participant") {
+		t.Errorf("no disagreement note: %q", res.Notes)
+	}
+	if strings.Contains(strings.Join(res.Warnings, " "), "methods differ") {
+		t.Errorf("disagreement between methods is a warning: %q", res.Warnings)
 	}
 	// Fleiss (294) and Kelsey (295): rows n_fleiss_01 and n_kelsey_01 differ
 	// by one participant per group, below the threshold; schlesselman is
 	// not applicable to a trial.
 	res = mustPlan(t, "version: 1\ndesign: trial\ncontrol_risk: 0.3\nintervention_risk: 0.2\npower: 0.8\nmethod: fleiss\n")
-	for _, w := range res.Warnings {
-		if strings.Contains(w, "Kelsey asks") {
+	for _, w := range res.Notes {
+		if strings.Contains(w, "Kelsey gives") {
 			t.Errorf("Kelsey reported as disagreeing by one: %q", w)
 		}
 	}

@@ -1,5 +1,12 @@
 package designs
 
+import (
+	"encoding/json"
+	"math"
+	"strconv"
+	"strings"
+)
+
 // Tool and Version identify this program in every output.
 const (
 	Tool    = "enough"
@@ -202,4 +209,86 @@ type ExactSearch struct {
 	Window []int `json:"window"`
 	// ClosedForm is the first-group size from the closed form.
 	ClosedForm int `json:"closed_form"`
+}
+
+// round12 rounds x to 12 significant digits: values derived from the
+// inputs by arithmetic (0.15 × 0.7 = 0.10499999999999998) are written as
+// the numbers they stand for, while computed results keep full precision.
+func round12(x float64) float64 {
+	if x == 0 || math.IsNaN(x) || math.IsInf(x, 0) {
+		return x
+	}
+	v, err := strconv.ParseFloat(strconv.FormatFloat(x, 'g', 12, 64), 64)
+	if err != nil {
+		return x
+	}
+	return v
+}
+
+// round12p rounds a pointed-to value, keeping nil.
+func round12p(p *float64) *float64 {
+	if p == nil {
+		return nil
+	}
+	return ptr(round12(*p))
+}
+
+// MarshalJSON writes the effect with every value rounded to 12 significant
+// digits: an effect restates the inputs (or a computed effect) on other
+// scales, and the rounding only removes floating-point noise.
+func (e Effect) MarshalJSON() ([]byte, error) {
+	type plain Effect
+	c := plain(e)
+	for _, p := range []**float64{&c.FirstRisk, &c.SecondRisk, &c.RiskRatio, &c.RiskDifference, &c.OddsRatio,
+		&c.MeanDifference, &c.StandardizedDifference, &c.HazardRatio, &c.CaseExposure, &c.ControlExposure, &c.CaseOdds, &c.ControlOdds} {
+		*p = round12p(*p)
+	}
+	return json.Marshal(c)
+}
+
+// MarshalJSON writes the result with the settings derived from the inputs
+// (alpha per comparison, allocation from two enrolments, a cluster design
+// effect) rounded to 12 significant digits.
+func (r Result) MarshalJSON() ([]byte, error) {
+	type plain Result
+	c := plain(r)
+	c.Alpha, c.Ratio = round12p(c.Alpha), round12p(c.Ratio)
+	c.DesignEff = round12(c.DesignEff)
+	c.Result.DesignEffect = round12p(c.Result.DesignEffect)
+	c.Result.AlphaPerComparison = round12p(c.Result.AlphaPerComparison)
+	return json.Marshal(c)
+}
+
+// MarshalJSON writes the assumption's value typed: a number or a boolean as
+// such, text as a string; the effect key of a plan that solves the effect,
+// whose value only names the scale, has a null value and "solved": true.
+func (a Assumption) MarshalJSON() ([]byte, error) {
+	type plain struct {
+		Key              string     `json:"key"`
+		Value            any        `json:"value"`
+		Solved           bool       `json:"solved,omitempty"`
+		Source           string     `json:"source,omitempty"`
+		SetOnCommandLine bool       `json:"set_on_command_line,omitempty"`
+		File             *FileValue `json:"file,omitempty"`
+	}
+	c := plain{Key: a.Key, Value: typedValue(a.Value), Source: a.Source, SetOnCommandLine: a.SetOnCommandLine, File: a.File}
+	if strings.HasPrefix(a.Value, "solved") {
+		c.Value, c.Solved = nil, true
+	}
+	return json.Marshal(c)
+}
+
+// typedValue reads a value as written in YAML: a number, a boolean, or
+// text.
+func typedValue(s string) any {
+	if f, err := strconv.ParseFloat(strings.ReplaceAll(s, "_", ""), 64); err == nil && !math.IsInf(f, 0) && !math.IsNaN(f) {
+		return f
+	}
+	switch strings.ToLower(s) {
+	case "true":
+		return true
+	case "false":
+		return false
+	}
+	return s
 }

@@ -195,6 +195,38 @@ type reader struct {
 	// setKeys the keys --set gave, in order (dotted for nested keys).
 	orig    map[string]*entry
 	setKeys []string
+
+	// errs collects every problem found; the reader carries on after one
+	// wherever the next check still means something.
+	errs SpecErrors
+	// unknown holds the keys no specification knows, reported once the
+	// design and outcome are known so that suggestions fit them.
+	unknown []*entry
+	// refused holds the keys already reported (unknown, not of this
+	// selection, or with a bad value): checks that depend on them stay
+	// silent instead of repeating the problem.
+	refused map[string]bool
+	// standsFor holds the keys suggested in place of an unknown or
+	// misplaced one: their absence is not reported besides.
+	standsFor map[string]bool
+	// outcomeDoubt is set when keys of another outcome are given: the
+	// outcome itself may be wrong, so the keys it would require are not
+	// reported missing.
+	outcomeDoubt bool
+	// solveBad is set when solve has a bad value: the keys it would
+	// require are then not reported missing.
+	solveBad bool
+	// marginKind says what margin takes once known: "fraction" (a risk
+	// difference, a survey's half-width), "ratio", or "" (a difference in
+	// means, or not yet known).
+	marginKind string
+	// marginOK and effectOK say that the margin and the effect were read
+	// without a problem, so that the checks combining them may run.
+	marginOK, effectOK bool
+}
+
+func newReader(file string) *reader {
+	return &reader{file: file, entries: map[string]*entry{}, nested: map[string]map[string]*entry{}, refused: map[string]bool{}, standsFor: map[string]bool{}}
 }
 
 func (r *reader) errAt(e *entry, format string, args ...any) *SpecError {
@@ -205,14 +237,68 @@ func (r *reader) errFile(key, format string, args ...any) *SpecError {
 	return &SpecError{File: r.file, Key: key, Msg: fmt.Sprintf(format, args...)}
 }
 
-var yamlLine = regexp.MustCompile(`^yaml: line (\d+): (.*)$`)
+// fail records a problem that leaves its key usable (a key given twice
+// keeps its first value).
+func (r *reader) fail(err *SpecError) {
+	if err != nil {
+		r.errs = append(r.errs, err)
+	}
+}
+
+// refuse records a problem with a key's value or place: the key counts as
+// refused from then on.
+func (r *reader) refuse(err *SpecError) {
+	if err != nil {
+		r.errs = append(r.errs, err)
+		r.refused[err.Key] = true
+	}
+}
+
+// missing records that a required key is absent, unless the key was
+// suggested in place of an unknown or misplaced one (fixing that one
+// supplies it).
+func (r *reader) missing(key, format string, args ...any) {
+	switch {
+	case r.standsFor[key]:
+	case r.outcomeDoubt && outcomeNeeds(key):
+	default:
+		r.refuse(r.errFile(key, "missing; "+format, args...))
+	}
+}
+
+// outcomeNeeds reports whether key ("" for the effect) is required by the
+// outcome rather than by every comparison.
+func outcomeNeeds(key string) bool {
+	switch key {
+	case "version", "design", "power", "n", "total", "margin", "higher_is_better", "direction":
+		return false
+	}
+	return true
+}
+
+// keep records err, if any, and reports whether there was none.
+func (r *reader) keep(err *SpecError) bool {
+	r.refuse(err)
+	return err == nil
+}
 
 // Parse reads a specification from data. file names it in messages; sets
 // are "key=value" overrides applied before validation (dotted keys such as
-// sources.control_risk reach nested maps). Every problem is a *SpecError.
+// sources.control_risk reach nested maps).
+//
+// Every independent problem is reported: the error is a *SpecError when
+// there is exactly one and a [SpecErrors] (one line each, in file order)
+// when there are several. Checking stops early only where one problem makes
+// the next meaningless: a file that is not YAML, an unsupported version, or
+// a design, goal, outcome, pairing or hypothesis that cannot be read (which
+// keys belong then is unknowable, so only keys no specification knows are
+// reported besides).
 func Parse(file string, data []byte, sets []string) (*Spec, error) {
 	if len(data) > MaxSpecBytes {
 		return nil, &SpecError{File: file, Msg: fmt.Sprintf("file is larger than 1 MiB; allowed: at most 1 MiB (%d bytes)", MaxSpecBytes)}
+	}
+	if err := checkText(file, data); err != nil {
+		return nil, err
 	}
 	sum := sha256.Sum256(data)
 	if len(bytes.TrimSpace(data)) == 0 {
@@ -224,30 +310,12 @@ func Parse(file string, data []byte, sets []string) (*Spec, error) {
 	if errors.Is(err, io.EOF) {
 		return nil, &SpecError{File: file, Msg: "file has no content; allowed: a YAML study specification (start from `enough new trial`)"}
 	}
-	if err == nil {
-		var second yaml.Node
-		if dec.Decode(&second) == nil {
-			return nil, &SpecError{File: file, Line: second.Line, Msg: "a second YAML document (after ---); allowed: one specification per file"}
-		}
-	}
 	if err != nil {
-		msg := err.Error()
-		if m := yamlLine.FindStringSubmatch(strings.SplitN(msg, "\n", 2)[0]); m != nil {
-			line, _ := strconv.Atoi(m[1])
-			if strings.HasPrefix(m[2], "did not find expected") {
-				// yaml.v3 reports a parser error at the 0-based line of the
-				// construct it was reading; make it 1-based.
-				line++
-			}
-			if tl := tabLine(data, line); tl > 0 {
-				// yaml.v3 may report the line before the tab; point at it.
-				line = tl
-				return nil, &SpecError{File: file, Line: line, Msg: "YAML syntax error: a tab character in the indentation; allowed: spaces only"}
-			}
-			return nil, &SpecError{File: file, Line: line, Msg: "YAML syntax error: " + m[2]}
-		}
-		msg = strings.TrimPrefix(strings.ReplaceAll(msg, "\n", "; "), "yaml: ")
-		return nil, &SpecError{File: file, Msg: "YAML syntax error: " + msg}
+		return nil, syntaxError(file, data, err)
+	}
+	var second yaml.Node
+	if dec.Decode(&second) == nil {
+		return nil, &SpecError{File: file, Line: second.Line, Msg: "a second YAML document (after ---); allowed: one specification per file"}
 	}
 	if len(doc.Content) == 0 {
 		return nil, &SpecError{File: file, Msg: "file has no content; allowed: a YAML study specification (start from `enough new trial`)"}
@@ -256,17 +324,13 @@ func Parse(file string, data []byte, sets []string) (*Spec, error) {
 	if root.Kind != yaml.MappingNode {
 		return nil, &SpecError{File: file, Line: root.Line, Msg: "the top level must be a map of keys to values, such as `design: cohort`"}
 	}
-	r := &reader{file: file, entries: map[string]*entry{}, nested: map[string]map[string]*entry{}}
-	if err := r.collect(root, file); err != nil {
-		return nil, err
-	}
+	r := newReader(file)
+	r.collect(root, file)
 	for _, s := range sets {
-		if err := r.applySet(s); err != nil {
-			return nil, err
-		}
+		r.applySet(s)
 	}
-	spec, err := r.build()
-	if err != nil {
+	spec := r.build()
+	if err := r.errs.result(); err != nil {
 		return nil, err
 	}
 	spec.File = file
@@ -284,47 +348,27 @@ func resolveAlias(n *yaml.Node) *yaml.Node {
 	return n
 }
 
-// tabLine returns line or the line after it when its indentation holds a
-// tab, and 0 otherwise.
-func tabLine(data []byte, line int) int {
-	lines := strings.Split(string(data), "\n")
-	for _, n := range []int{line, line + 1} {
-		if n < 1 || n > len(lines) {
-			continue
-		}
-		l := lines[n-1]
-		if strings.Contains(l[:len(l)-len(strings.TrimLeft(l, " \t"))], "\t") {
-			return n
-		}
-	}
-	return 0
-}
-
-// collect records the top-level keys of root, rejecting unknown and repeated
-// keys.
-func (r *reader) collect(root *yaml.Node, file string) error {
+// collect records the top-level keys of root; unknown keys wait for the
+// selection (see reportUnknown), and a repeated key keeps its first value.
+func (r *reader) collect(root *yaml.Node, file string) {
 	for i := 0; i+1 < len(root.Content); i += 2 {
 		k, v := root.Content[i], resolveAlias(root.Content[i+1])
-		e := &entry{key: k.Value, node: v, file: file, line: k.Line}
 		if k.Kind != yaml.ScalarNode {
-			return &SpecError{File: file, Line: k.Line, Msg: "a key must be a plain word, such as `alpha`"}
+			r.fail(&SpecError{File: file, Line: k.Line, Msg: "a key must be a plain word, such as `alpha`"})
+			continue
 		}
-		if err := r.add(e); err != nil {
-			return err
-		}
+		r.add(&entry{key: k.Value, node: v, file: file, line: k.Line})
 	}
-	return nil
 }
 
-func (r *reader) add(e *entry) error {
+func (r *reader) add(e *entry) {
 	if _, ok := specKeys[e.key]; !ok {
-		if s, ok := nearest(e.key, allKeys()); ok {
-			return r.errAt(e, "unknown key; did you mean %q?", s)
-		}
-		return r.errAt(e, "unknown key; allowed keys are listed in the README (or start from `enough new DESIGN`)")
+		r.unknown = append(r.unknown, e)
+		return
 	}
 	if prev, ok := r.entries[e.key]; ok && !e.set {
-		return r.errAt(e, "given twice (first at line %d); allowed: each key once", prev.line)
+		r.fail(r.errAt(e, "given twice (first at line %d); allowed: each key once", prev.line))
+		return
 	}
 	if e.set {
 		r.noteSet(e.key, r.entries[e.key])
@@ -340,9 +384,7 @@ func (r *reader) add(e *entry) error {
 	r.entries[e.key] = e
 	if specKeys[e.key].kind == kindMap {
 		old := r.nested[e.key]
-		if err := r.collectNested(e); err != nil {
-			return err
-		}
+		r.collectNested(e)
 		if e.set && e.key != "sources" {
 			// A whole map set on the command line overrides each of its
 			// keys, and those the file gave.
@@ -363,39 +405,40 @@ func (r *reader) add(e *entry) error {
 			}
 		}
 	}
-	return nil
 }
 
 // collectNested records the keys of a map-valued key (sources, cluster)
 // into r.nested[e.key].
-func (r *reader) collectNested(e *entry) error {
+func (r *reader) collectNested(e *entry) {
 	m := map[string]*entry{}
 	r.nested[e.key] = m
 	if e.node.Kind == yaml.ScalarNode && e.node.Tag == "!!null" {
-		return nil
+		return
 	}
 	if e.node.Kind != yaml.MappingNode {
-		return r.errAt(e, "is not a map; allowed: %s", specKeys[e.key].allowed)
+		r.refuse(r.errAt(e, "is not a map; allowed: %s", specKeys[e.key].allowed))
+		return
 	}
 	for i := 0; i+1 < len(e.node.Content); i += 2 {
 		k, v := e.node.Content[i], resolveAlias(e.node.Content[i+1])
-		se := &entry{key: e.key + "." + k.Value, node: v, file: e.file, line: k.Line}
+		se := &entry{key: e.key + "." + clip(k.Value), node: v, file: e.file, line: k.Line}
 		if e.file != r.file {
 			se.line = 0
 		}
 		if _, dup := m[k.Value]; dup {
-			return r.errAt(se, "given twice; allowed: each key once")
+			r.fail(r.errAt(se, "given twice; allowed: each key once"))
+			continue
 		}
 		if err := r.checkNested(e.key, k.Value, se); err != nil {
-			return err
+			r.refuse(err)
+			continue
 		}
 		m[k.Value] = se
 	}
-	return nil
 }
 
 // checkNested checks one key of a nested map.
-func (r *reader) checkNested(head, sub string, e *entry) error {
+func (r *reader) checkNested(head, sub string, e *entry) *SpecError {
 	switch head {
 	case "sources":
 		if e.node.Kind != yaml.ScalarNode || e.node.Tag == "!!null" {
@@ -423,16 +466,18 @@ func (r *reader) checkNested(head, sub string, e *entry) error {
 }
 
 // applySet applies one --set key=value override.
-func (r *reader) applySet(s string) error {
-	origin := "--set " + s
+func (r *reader) applySet(s string) {
+	origin := "--set " + clip(s)
 	key, val, ok := strings.Cut(s, "=")
 	key = strings.TrimSpace(key)
 	if !ok || key == "" {
-		return &SpecError{File: origin, Msg: "is not of the form key=value (e.g. --set alpha=0.01)"}
+		r.fail(&SpecError{File: origin, Msg: "is not of the form key=value (e.g. --set alpha=0.01)"})
+		return
 	}
 	var doc yaml.Node
 	if err := yaml.Unmarshal([]byte(val), &doc); err != nil {
-		return &SpecError{File: origin, Key: key, Msg: "value is not valid YAML: " + strings.TrimPrefix(err.Error(), "yaml: ")}
+		r.fail(&SpecError{File: origin, Key: clip(key), Msg: "value is not valid YAML: " + strings.TrimPrefix(err.Error(), "yaml: ")})
+		return
 	}
 	node := &yaml.Node{Kind: yaml.ScalarNode, Tag: "!!null", Value: ""}
 	if len(doc.Content) > 0 {
@@ -440,12 +485,15 @@ func (r *reader) applySet(s string) error {
 	}
 	head, rest, nested := strings.Cut(key, ".")
 	if !nested {
-		return r.add(&entry{key: key, node: node, file: origin, set: true})
+		r.add(&entry{key: key, node: node, file: origin, set: true})
+		return
 	}
 	if info, ok := specKeys[head]; !ok {
-		return r.add(&entry{key: head, node: node, file: origin, set: true})
+		r.add(&entry{key: head, node: node, file: origin, set: true})
+		return
 	} else if info.kind != kindMap {
-		return &SpecError{File: origin, Key: head, Msg: "has no nested keys; allowed dotted keys: sources.KEY and cluster.KEY"}
+		r.fail(&SpecError{File: origin, Key: head, Msg: "has no nested keys; allowed dotted keys: sources.KEY and cluster.KEY"})
+		return
 	}
 	if r.nested[head] == nil {
 		r.nested[head] = map[string]*entry{}
@@ -455,13 +503,13 @@ func (r *reader) applySet(s string) error {
 			r.entries[head] = e
 		}
 	}
-	e := &entry{key: key, node: node, file: origin, set: true}
+	e := &entry{key: clip(key), node: node, file: origin, set: true}
 	if err := r.checkNested(head, rest, e); err != nil {
-		return err
+		r.refuse(err)
+		return
 	}
 	r.noteSet(key, r.nested[head][rest])
 	r.nested[head][rest] = e
-	return nil
 }
 
 // noteSet records that --set gave key, and the file's entry it replaces.
@@ -514,10 +562,72 @@ func (r *reader) get(key string) *entry {
 	return e
 }
 
+// givenKeys returns the keys the specification holds, nested ones dotted
+// (cluster.icc).
+func (r *reader) givenKeys() map[string]bool {
+	out := map[string]bool{}
+	for k := range r.entries {
+		out[k] = true
+	}
+	for head, m := range r.nested {
+		for sub := range m {
+			out[head+"."+sub] = true
+		}
+	}
+	return out
+}
+
 var percentLike = regexp.MustCompile(`^\s*-?[0-9.]+\s*%\s*$`)
 
-// number reads a numeric key; ok is false when the key is absent.
-func (r *reader) number(key string) (v float64, e *entry, err error) {
+// isFraction reports whether key takes a fraction, so that a percentage
+// converts to it.
+func (r *reader) isFraction(key string) bool {
+	if key == "margin" {
+		return r.marginKind == "fraction"
+	}
+	return fractionKeys[key]
+}
+
+// isRatio reports whether key takes a ratio.
+func (r *reader) isRatio(key string) bool {
+	if key == "margin" {
+		return r.marginKind == "ratio"
+	}
+	return ratioKeys[key]
+}
+
+// percentMsg explains a value written as a percentage ("20%"): a key that
+// takes a fraction is told the fraction, a ratio that it is no percentage.
+func (r *reader) percentMsg(key string, n *yaml.Node) string {
+	allowed := specKeys[key].allowed
+	written := clip(strings.TrimSpace(n.Value))
+	switch {
+	case r.isFraction(key):
+		p, err := strconv.ParseFloat(strings.TrimSpace(strings.TrimSuffix(written, "%")), 64)
+		if err != nil {
+			return fmt.Sprintf("%s is a percentage; allowed: %s, written as a fraction", show(n), allowed)
+		}
+		return fmt.Sprintf("%s is a percentage; allowed: %s, written as a fraction (%s for %s)", show(n), allowed, fmtFraction(p/100), written)
+	case r.isRatio(key):
+		return fmt.Sprintf("%s is a percentage, but %s is a ratio, not a percentage; allowed: %s", show(n), key, allowed)
+	}
+	return fmt.Sprintf("%s is a percentage; allowed: %s", show(n), allowed)
+}
+
+// rangeErr is the error for a number outside the range in allows. When
+// the key takes a fraction and the value reads as a percentage of an
+// allowed one (control_risk: 20), it asks whether the fraction was meant.
+func (r *reader) rangeErr(e *entry, x float64, allowed string, in func(float64) bool) *SpecError {
+	msg := fmt.Sprintf("%s is out of range; allowed: %s", show(e.node), allowed)
+	if r.isFraction(e.key) && math.Abs(x) > 1 && math.Abs(x) <= 100 && in(x/100) {
+		msg += fmt.Sprintf("; did you mean %s?", fmtFraction(x/100))
+	}
+	return r.errAt(e, "%s", msg)
+}
+
+// number reads a numeric key; e is nil when the key is absent. On a
+// problem e is the key's entry and err says what is wrong.
+func (r *reader) number(key string) (v float64, e *entry, err *SpecError) {
 	e = r.get(key)
 	if e == nil {
 		if raw := r.entries[key]; raw != nil {
@@ -528,7 +638,7 @@ func (r *reader) number(key string) (v float64, e *entry, err error) {
 	n := e.node
 	if n.Kind != yaml.ScalarNode || (n.Tag != "!!int" && n.Tag != "!!float") {
 		if n.Kind == yaml.ScalarNode && percentLike.MatchString(n.Value) {
-			return 0, e, r.errAt(e, "%q is a percentage; allowed: %s (write 0.05 for 5%%)", n.Value, specKeys[key].allowed)
+			return 0, e, r.errAt(e, "%s", r.percentMsg(key, n))
 		}
 		return 0, e, r.errAt(e, "%s is not a number; allowed: %s", show(n), specKeys[key].allowed)
 	}
@@ -545,10 +655,10 @@ func (r *reader) number(key string) (v float64, e *entry, err error) {
 }
 
 // whole reads a whole-number key.
-func (r *reader) whole(key string) (int, *entry, error) {
+func (r *reader) whole(key string) (int, *entry, *SpecError) {
 	f, e, err := r.number(key)
 	if err != nil || e == nil {
-		if err != nil && strings.Contains(err.Error(), "is not a number") {
+		if err != nil && strings.Contains(err.Msg, "is not a number") {
 			err = r.errAt(e, "%s is not a whole number; allowed: %s", show(e.node), specKeys[key].allowed)
 		}
 		return 0, e, err
@@ -563,7 +673,7 @@ func (r *reader) whole(key string) (int, *entry, error) {
 }
 
 // text reads a text key.
-func (r *reader) text(key string) (string, *entry, error) {
+func (r *reader) text(key string) (string, *entry, *SpecError) {
 	e := r.get(key)
 	if e == nil {
 		if raw := r.entries[key]; raw != nil {
@@ -578,7 +688,7 @@ func (r *reader) text(key string) (string, *entry, error) {
 }
 
 // choice reads a text key that must be one of the allowed words.
-func (r *reader) choice(key, def string, allowed ...string) (string, *entry, error) {
+func (r *reader) choice(key, def string, allowed ...string) (string, *entry, *SpecError) {
 	v, e, err := r.text(key)
 	if err != nil {
 		return "", e, err
@@ -610,9 +720,9 @@ func show(n *yaml.Node) string {
 		return "a list"
 	}
 	if n.Tag == "!!str" {
-		return strconv.Quote(n.Value)
+		return strconv.Quote(clip(n.Value))
 	}
-	return n.Value
+	return clip(n.Value)
 }
 
 // orList joins words as "a, b or c".

@@ -9,7 +9,8 @@ import (
 const trialBase = "version: 1\ndesign: trial\ncontrol_risk: 0.3\nrisk_ratio: 0.75\npower: 0.8\n"
 
 // TestParseErrors checks that each kind of bad input is one SpecError naming
-// the line, the key and what is allowed.
+// the line, the key and what is allowed, and nothing besides (a problem
+// derived from it would be a second).
 func TestParseErrors(t *testing.T) {
 	big := strings.Repeat("# padding\n", MaxSpecBytes/10+1)
 	for _, c := range []struct {
@@ -62,16 +63,39 @@ func TestParseErrors(t *testing.T) {
 		{"solve power precision", "version: 1\ndesign: cross-sectional\ngoal: precision\nexpected_prevalence: 0.3\nsolve: power\n", nil, 5, "solve", "does not apply to a precision survey"},
 		{"source of nothing", trialBase + "sources:\n  control_rsk: audit\n", nil, 7, "sources.control_rsk", `did you mean "control_risk"`},
 		{"outcome unknown", trialBase + "outcome: survival\n", nil, 6, "outcome", "binary, continuous or time-to-event"},
-		{"binary key in continuous", trialBase + "outcome: continuous\n", nil, 3, "control_risk", "does not apply to design trial with a continuous outcome"},
+		{"binary key in continuous", "version: 1\ndesign: trial\noutcome: continuous\ncontrol_risk: 0.3\nmean_difference: 2\nsd: 4\npower: 0.8\n", nil, 4, "control_risk", "does not apply to design trial with a continuous outcome"},
 		{"set invalid", trialBase, []string{"alpha=2"}, 0, "alpha", "(0, 0.5]"},
 		{"set no equals", trialBase, []string{"alpha"}, 0, "", "key=value"},
 		{"set unknown", trialBase, []string{"powr=0.9"}, 0, "powr", `did you mean "power"`},
+		{"set unknown beside the file's key", trialBase, []string{"Power=0.9"}, 0, "Power", `did you mean "power"`},
+		{"set malformed", trialBase, []string{"alpha=[0.05"}, 0, "alpha", "value is not valid YAML"},
+		{"set nested into a number", trialBase, []string{"alpha.x=1"}, 0, "alpha", "has no nested keys"},
+		{"unknown key in capitals", trialBase + "ALPHA: 0.01\n", nil, 6, "ALPHA", `unknown key; did you mean "alpha"?`},
+		{"unknown key in capitals, given already", trialBase + "POWER: 0.9\n", nil, 6, "POWER", `did you mean "power"? (it is given already, at line 5)`},
+		{"another design's key in capitals", "version: 1\ndesign: case-control\ncontrol_exposure: 0.2\nodds_ratio: 2\npower: 0.8\nRISK_RATIO: 2\n", nil, 6, "RISK_RATIO", "keys are written in lower case, and risk_ratio does not apply here either"},
+		{"synonym of the reference", "version: 1\ndesign: trial\nbaseline_risk: 0.3\nrisk_ratio: 0.75\npower: 0.8\n", nil, 3, "baseline_risk", `did you mean "control_risk"?`},
+		{"dropout in a binary plan", trialBase + "dropout: 0.1\n", nil, 6, "dropout", `did you mean "attrition"?`},
+		{"icc at the top level", trialBase + "icc: 0.05\n", nil, 6, "icc", "did you mean cluster: {icc: 0.05}? (icc belongs inside the cluster map)"},
+		{"goal on a trial, whatever its value", trialBase + "goal: precison\n", nil, 6, "goal", "applies only to design cross-sectional"},
+		{"percentage number", "version: 1\ndesign: trial\ncontrol_risk: 30\nrisk_ratio: 0.75\npower: 0.8\n", nil, 3, "control_risk", "did you mean 0.3?"},
+		{"percentage of a ratio", "version: 1\ndesign: trial\ncontrol_risk: 0.3\nrisk_ratio: 75%\npower: 0.8\n", nil, 4, "risk_ratio", "a ratio, not a percentage"},
+		{"binary file", "version: 1\x00\x00\x00", nil, 0, "", "is not a text file"},
+		{"invalid UTF-8", "version: 1\ndesign: \xff\n", nil, 2, "", "is not a text file"},
+		{"colon in a title", "version: 1\ndesign: trial\ntitle: Ward rounds: a trial\n", nil, 3, "", `needs quotes: title: "Ward rounds: a trial"`},
+		// These two made Parse panic before: the direction check read the
+		// entry of mean_difference when the two means gave it, and the
+		// all-pairs check the entry of ratio when n_second gave it.
+		{"direction against the two means", "version: 1\ndesign: trial\noutcome: continuous\nintervention_mean: 3\ncontrol_mean: 5\nsd: 2\npower: 0.8\nsides: 1\ndirection: first-higher\n", nil, 9, "direction", "disagrees with mean_difference -2"},
+		{"all pairs with n_second", "version: 1\ndesign: trial\ncontrol_risk: 0.3\nrisk_ratio: 0.7\nsolve: power\nn: 100\nn_second: 50\narms: 3\ncomparisons: all-pairs\n", nil, 7, "n_second", "allowed: n_second equal to n (100)"},
 	} {
 		_, err := Parse("s.yaml", []byte(c.spec), c.sets)
 		var se *SpecError
 		if !errors.As(err, &se) {
 			t.Errorf("%s: err = %v, want *SpecError", c.name, err)
 			continue
+		}
+		if _, several := err.(SpecErrors); several {
+			t.Errorf("%s: more than the one problem:\n%v", c.name, err)
 		}
 		if se.Line != c.line || se.Key != c.key || !strings.Contains(se.Msg, c.msg) {
 			t.Errorf("%s: got line %d key %q msg %q; want line %d key %q msg containing %q", c.name, se.Line, se.Key, se.Msg, c.line, c.key, c.msg)

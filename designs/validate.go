@@ -5,105 +5,279 @@ import (
 	"math"
 	"sort"
 	"strings"
+
+	"gopkg.in/yaml.v3"
 )
 
 // Designs lists the study designs of specification version 1.
 var Designs = []string{"cohort", "case-control", "trial", "cross-sectional"}
 
-// build validates the collected keys into a Spec.
-func (r *reader) build() (*Spec, error) {
+// build validates the collected keys into a Spec, recording every problem
+// in r.errs; the Spec is nil only when a problem stopped it early.
+func (r *reader) build() *Spec {
 	s := &Spec{Sources: r.sourceMap()}
 
 	// version
 	v, ve, err := r.whole("version")
-	if err != nil {
-		return nil, err
-	}
-	if ve == nil {
-		return nil, r.errFile("version", "missing; allowed: 1 (add the line `version: 1`)")
-	}
-	if v != 1 {
-		return nil, r.errAt(ve, "%d is not supported; allowed: 1", v)
+	switch {
+	case !r.keep(err):
+	case ve == nil:
+		r.missing("version", "allowed: 1 (add the line `version: 1`)")
+	case v != 1:
+		// Another version's keys cannot be judged by this one's rules.
+		r.refuse(r.errAt(ve, "%d is not supported; allowed: 1", v))
+		return nil
 	}
 
-	// design and goal
-	design, de, err := r.choice("design", "", Designs...)
-	if err != nil {
-		return nil, err
+	// design, goal, outcome, pairing and hypothesis decide the other keys
+	sel, ok := r.selection(s)
+	if !ok {
+		r.reportUnknown(nil, nil)
+		return nil
 	}
-	if de == nil {
-		return nil, r.errFile("design", "missing; allowed: %s", orList(Designs))
+	allowed := keysFor(sel)
+	r.reportUnknown(&sel, allowed)
+	r.reportMisplaced(s, sel, allowed)
+	precision := s.Goal == "precision"
+
+	// solve
+	solves := []string{"n", "power", "effect"}
+	if precision {
+		solves = []string{"n", "effect"}
+	}
+	var se *SpecError
+	s.Solve, _, se = r.choice("solve", "n", solves...)
+	if se != nil {
+		if e := r.get("solve"); precision && e != nil && e.node.Value == "power" {
+			se = r.errAt(e, "power does not apply to a precision survey; allowed: n (the size for a margin) or effect (the margin for a size)")
+		}
+		r.refuse(se)
+		// Carry on as if solving n, but call no key missing that only some
+		// solves require.
+		s.Solve, r.solveBad = "n", true
+	}
+
+	// text
+	for _, t := range []struct {
+		key string
+		dst *string
+	}{{"title", &s.Title}, {"primary_outcome", &s.PrimaryOutcome}, {"first_group", &s.FirstGroup}, {"second_group", &s.SecondGroup}} {
+		v, _, err := r.text(t.key)
+		if r.keep(err) {
+			*t.dst = v
+		}
+	}
+	if s.Title == "" {
+		s.Title = "Untitled study"
+	}
+
+	// inflation
+	s.Attrition, _ = r.rangeNum("attrition", 0, func(x float64) bool { return x >= 0 && x < 1 })
+	s.DesignEffect, _ = r.rangeNum("design_effect", 1, func(x float64) bool { return x >= 1 && x <= 1000 })
+
+	if precision {
+		r.buildPrecision(s)
+	} else {
+		r.buildComparison(s)
+	}
+	r.checkSources()
+	s.Given = r.given()
+	return s
+}
+
+// selection reads the keys that decide which others belong: design, goal,
+// outcome, pairing and hypothesis. ok is false when one of them is missing
+// or wrong, so that the keys that belong cannot be known.
+func (r *reader) selection(s *Spec) (sel selector, ok bool) {
+	ok = true
+	design, de, err := r.choice("design", "", Designs...)
+	switch {
+	case !r.keep(err):
+		ok = false
+	case de == nil:
+		r.missing("design", "allowed: %s", orList(Designs))
+		ok = false
 	}
 	s.Design = design
-	goal, ge, err := r.choice("goal", "comparison", "comparison", "precision")
-	if err != nil {
-		return nil, err
-	}
-	if ge != nil && design != "cross-sectional" {
-		return nil, r.errAt(ge, "applies only to design cross-sectional; a %s study always compares two groups", design)
+
+	goal := "comparison"
+	if ge := r.entries["goal"]; ge != nil && ok && design != "cross-sectional" {
+		r.refuse(r.errAt(ge, "applies only to design cross-sectional; a %s study always compares two groups", design))
+	} else if g, _, err := r.choice("goal", "comparison", "comparison", "precision"); r.keep(err) {
+		goal = g
+	} else {
+		ok = false
 	}
 	if design == "cross-sectional" {
 		s.Goal = goal
 	}
 	precision := s.Goal == "precision"
 
-	// outcome, pairing and hypothesis decide the other keys
-	outcomes := []string{"binary", "continuous", "time-to-event"}
-	var oe *entry
-	s.Outcome, oe, err = r.choice("outcome", "binary", outcomes...)
-	if err != nil {
-		return nil, err
-	}
+	outcome, oe, err := r.choice("outcome", "binary", "binary", "continuous", "time-to-event")
 	switch {
-	case precision && s.Outcome != "binary":
-		return nil, r.errAt(oe, "%s does not apply to a precision survey, which estimates one prevalence; allowed: binary", s.Outcome)
-	case design == "case-control" && s.Outcome != "binary":
-		return nil, r.errAt(oe, "%s does not apply to a case-control study, which compares exposure between cases and controls; allowed: binary", s.Outcome)
-	case s.Outcome == "time-to-event" && design != "trial":
-		return nil, r.errAt(oe, "time-to-event applies to design trial; allowed for design %s: binary or continuous", design)
+	case !r.keep(err):
+		ok = false
+	case !ok:
+	case precision && outcome != "binary":
+		r.refuse(r.errAt(oe, "%s does not apply to a precision survey, which estimates one prevalence; allowed: binary", outcome))
+		ok = false
+	case design == "case-control" && outcome != "binary":
+		r.refuse(r.errAt(oe, "%s does not apply to a case-control study, which compares exposure between cases and controls; allowed: binary", outcome))
+		ok = false
+	case outcome == "time-to-event" && design != "trial":
+		r.refuse(r.errAt(oe, "time-to-event applies to design trial; allowed for design %s: binary or continuous", design))
+		ok = false
 	}
-	if s.Pairing, _, err = r.choice("pairing", "", "paired", "crossover"); err != nil {
-		return nil, err
+	s.Outcome = outcome
+
+	// pairing and hypothesis are read where they may apply; elsewhere they
+	// are reported as keys of another selection.
+	if ok && outcome == "continuous" && (design == "trial" || design == "cohort") {
+		p, pe, err := r.choice("pairing", "", "paired", "crossover")
+		switch {
+		case !r.keep(err):
+			ok = false
+		case p == "crossover" && design != "trial":
+			r.refuse(r.errAt(pe, "crossover applies to design trial; allowed for design %s: paired", design))
+			ok = false
+		}
+		s.Pairing = p
 	}
-	if pe := r.get("pairing"); pe != nil && s.Pairing == "crossover" && design != "trial" {
-		return nil, r.errAt(pe, "crossover applies to design trial; allowed for design %s: paired", design)
+	s.Hypothesis = "superiority"
+	if ok && design == "trial" {
+		h, _, err := r.choice("hypothesis", "superiority", "superiority", "non-inferiority", "equivalence")
+		if r.keep(err) {
+			s.Hypothesis = h
+		} else {
+			ok = false
+		}
 	}
-	if s.Hypothesis, _, err = r.choice("hypothesis", "superiority", "superiority", "non-inferiority", "equivalence"); err != nil {
-		return nil, err
-	}
-	sel := selector{design: design, goal: goal, outcome: s.Outcome, pairing: s.Pairing, hypothesis: s.Hypothesis}
-	if r.get("outcome") == nil && (r.get("mean_difference") != nil || r.get("hazard_ratio") != nil) {
-		e := r.get("mean_difference")
-		want := "continuous"
+	if ok && r.entries["outcome"] == nil && (r.get("mean_difference") != nil || r.get("hazard_ratio") != nil) {
+		e, want := r.get("mean_difference"), "continuous"
 		if e == nil {
 			e, want = r.get("hazard_ratio"), "time-to-event"
 		}
-		return nil, r.errAt(e, "belongs to a %s outcome; add `outcome: %s` (the default outcome is binary)", want, want)
+		r.refuse(r.errAt(e, "belongs to a %s outcome; add `outcome: %s` (the default outcome is binary)", want, want))
+		ok = false
 	}
+	return selector{design: design, goal: goal, outcome: s.Outcome, pairing: s.Pairing, hypothesis: s.Hypothesis}, ok
+}
 
-	// keys that do not belong to this selection
-	allowed := keysFor(sel)
-	for _, e := range r.order {
-		if allowed[e.key] {
-			continue
+// reportUnknown reports the keys no specification knows, each with the key
+// it most likely stands for among those allowed (every key when the
+// selection is not known: sel and allowed nil).
+func (r *reader) reportUnknown(sel *selector, allowed map[string]bool) {
+	if allowed == nil {
+		allowed = map[string]bool{}
+		for k := range specKeys {
+			allowed[k] = true
+		}
+	}
+	for _, e := range r.unknown {
+		msg := "unknown key"
+		lower := strings.ToLower(e.key)
+		if _, known := specKeys[lower]; known && !allowed[lower] && sel != nil {
+			// A key of another selection, in capitals.
+			msg += "; keys are written in lower case, and " + lower + " does not apply here either"
+			if h := r.hint(e, sel, allowed, false); h != "" {
+				msg += h
+			} else {
+				where, _ := belongsTo(lower, *sel)
+				msg += where
+			}
+		} else if h := r.hint(e, sel, allowed, true); h != "" {
+			msg += h
+		} else {
+			msg += "; allowed keys are listed in the README (or start from `enough new DESIGN`)"
+		}
+		r.fail(&SpecError{File: e.file, Line: e.line, Key: clip(e.key), Msg: msg})
+		r.refused[e.key] = true
+	}
+}
+
+// hint suggests the key that e, unknown or of another selection, most
+// likely stands for (a key a typo away too, when typos is set). A key not
+// yet given is suggested and its absence is then not reported as well; a
+// key given already is named with its line.
+func (r *reader) hint(e *entry, sel *selector, allowed map[string]bool, typos bool) string {
+	given := r.givenKeys()
+	if e.set {
+		// --set replaces a key the file gives.
+		given = nil
+	}
+	find := func(given map[string]bool) string {
+		if k := suggestKey(e.key, sel, allowed, given); k != "" || !typos {
+			return k
 		}
 		var names []string
-		for k := range allowed {
-			names = append(names, k)
+		for a := range allowed {
+			if !given[a] {
+				names = append(names, a)
+			}
 		}
 		sort.Strings(names)
-		what := "design " + design
-		switch {
-		case design == "cross-sectional":
-			what += " with goal " + goal
-		case s.Outcome != "binary":
-			what += " with a " + s.Outcome + " outcome"
+		if k, ok := nearest(e.key, names); ok {
+			return k
 		}
-		if s.Pairing != "" {
-			what += " (" + s.Pairing + ")"
+		return ""
+	}
+	if k := find(given); k != "" {
+		r.standsFor[k] = true
+		return didYouMean(e, k)
+	}
+	k := find(nil)
+	if k == "" {
+		return ""
+	}
+	ge := r.entries[k]
+	if head, sub, nested := strings.Cut(k, "."); nested {
+		ge = r.nested[head][sub]
+	}
+	switch {
+	case ge == nil:
+		return ""
+	case ge.line > 0:
+		return fmt.Sprintf("; did you mean %q? (it is given already, at line %d)", k, ge.line)
+	}
+	return fmt.Sprintf("; did you mean %q? (it is given already, by %s)", k, ge.file)
+}
+
+// didYouMean suggests key k in place of e: a nested key (cluster.icc) is
+// shown inside its map, as the file would hold it.
+func didYouMean(e *entry, k string) string {
+	head, sub, nested := strings.Cut(k, ".")
+	if !nested || e.set {
+		return fmt.Sprintf("; did you mean %q?", k)
+	}
+	value := "…"
+	if e.node.Kind == yaml.ScalarNode {
+		value = clip(e.node.Value)
+	}
+	return fmt.Sprintf("; did you mean %s: {%s: %s}? (%s belongs inside the %s map)", head, sub, value, sub, head)
+}
+
+// reportMisplaced reports the keys that do not belong to this selection
+// and removes them, so that no later check reads them.
+func (r *reader) reportMisplaced(s *Spec, sel selector, allowed map[string]bool) {
+	design, precision := sel.design, sel.goal == "precision" && sel.design == "cross-sectional"
+	what := "design " + design
+	switch {
+	case design == "cross-sectional":
+		what += " with goal " + sel.goal
+	case s.Outcome != "binary":
+		what += " with a " + s.Outcome + " outcome"
+	}
+	if s.Pairing != "" {
+		what += " (" + s.Pairing + ")"
+	}
+	for _, e := range r.order {
+		if allowed[e.key] || r.refused[e.key] {
+			continue
 		}
-		msg := fmt.Sprintf("does not apply to %s", what)
+		msg := "does not apply to " + what
 		switch {
+		case e.key == "ratio" && s.Pairing == "paired":
+			msg = "does not apply to a paired design: each pair holds one of each; allowed: leave ratio out"
 		case precision && (e.key == "alpha" || e.key == "power" || e.key == "sides"):
 			msg += "; a precision survey is set by margin and confidence"
 		case e.key == "ratio" && design == "cross-sectional":
@@ -121,79 +295,81 @@ func (r *reader) build() (*Spec, error) {
 		case e.key == "margin" || e.key == "margin_scale":
 			msg += "; it belongs to hypothesis non-inferiority or equivalence"
 		default:
-			if sug, ok := counterpart(e.key, design); ok && allowed[sug] {
-				msg += fmt.Sprintf("; did you mean %q?", sug)
-			} else if sug, ok := nearest(e.key, names); ok {
-				msg += fmt.Sprintf("; did you mean %q?", sug)
+			if h := r.hint(e, &sel, allowed, false); h != "" {
+				msg += h
+			} else {
+				where, outcome := belongsTo(e.key, sel)
+				msg += where
+				r.outcomeDoubt = r.outcomeDoubt || outcome
 			}
 		}
-		return nil, r.errAt(e, "%s", msg)
+		r.refuse(r.errAt(e, "%s", msg))
+		delete(r.entries, e.key)
 	}
+}
 
-	// solve
-	solves := []string{"n", "power", "effect"}
-	if precision {
-		solves = []string{"n", "effect"}
-	}
-	var se *entry
-	s.Solve, se, err = r.choice("solve", "n", solves...)
-	if err != nil {
-		if e := r.get("solve"); precision && e != nil && e.node.Value == "power" {
-			return nil, r.errAt(e, "power does not apply to a precision survey; allowed: n (the size for a margin) or effect (the margin for a size)")
+// belongsTo says where a key that does not apply to sel belongs: another
+// outcome of the same design (outcome true), a paired design, or other
+// designs.
+func belongsTo(key string, sel selector) (where string, outcome bool) {
+	for _, o := range []string{"binary", "continuous", "time-to-event"} {
+		for _, p := range []string{"", "paired"} {
+			alt := sel
+			alt.outcome, alt.pairing = o, p
+			if o != sel.outcome && keysFor(alt)[key] {
+				return fmt.Sprintf("; it belongs to a %s outcome (outcome: %s)", o, o), true
+			}
 		}
-		return nil, err
 	}
-	_ = se
+	for _, p := range []string{"paired", "crossover"} {
+		alt := sel
+		alt.pairing = p
+		if p != sel.pairing && keysFor(alt)[key] && (p == "paired" || sel.design == "trial") {
+			return fmt.Sprintf("; it belongs to a %s design (pairing: %s)", p, p), false
+		}
+	}
+	var designs []string
+	for _, d := range Designs {
+		for _, g := range []string{"comparison", "precision"} {
+			if d != "cross-sectional" && g == "precision" {
+				continue
+			}
+			alt := selector{design: d, goal: g, outcome: sel.outcome, hypothesis: "superiority"}
+			if (d != sel.design || g != sel.goal) && keysFor(alt)[key] {
+				name := d
+				if g == "precision" {
+					name += " with goal precision"
+				}
+				designs = append(designs, name)
+				break
+			}
+		}
+	}
+	if len(designs) > 0 {
+		return "; it belongs to design " + orList(designs), false
+	}
+	return "", false
+}
 
-	// text
-	if s.Title, _, err = r.text("title"); err != nil {
-		return nil, err
-	}
-	if s.Title == "" {
-		s.Title = "Untitled study"
-	}
-	if s.PrimaryOutcome, _, err = r.text("primary_outcome"); err != nil {
-		return nil, err
-	}
-	if s.FirstGroup, _, err = r.text("first_group"); err != nil {
-		return nil, err
-	}
-	if s.SecondGroup, _, err = r.text("second_group"); err != nil {
-		return nil, err
-	}
-
-	// inflation
-	if s.Attrition, err = r.rangeNum("attrition", 0, func(x float64) bool { return x >= 0 && x < 1 }); err != nil {
-		return nil, err
-	}
-	if s.DesignEffect, err = r.rangeNum("design_effect", 1, func(x float64) bool { return x >= 1 && x <= 1000 }); err != nil {
-		return nil, err
-	}
-
-	if precision {
-		err = r.buildPrecision(s)
-	} else {
-		err = r.buildComparison(s)
-	}
-	if err != nil {
-		return nil, err
-	}
-
-	// sources must name keys of this specification
+// checkSources refuses a source that names no key of the specification.
+func (r *reader) checkSources() {
 	for _, k := range r.sortedSourceKeys() {
 		e := r.nested["sources"][k]
-		if info, ok := specKeys[k]; ok && info.kind == kindMap && r.get(k) != nil {
-			return nil, r.errAt(e, "names a group of keys; allowed: one of its keys, such as sources.%s.%s", k, map[string]string{"cluster": "icc", "simulate": "seed", "sources": "alpha"}[k])
-		}
-		if r.get(k) != nil {
+		head, sub, dotted := strings.Cut(k, ".")
+		if r.refused[k] || r.refused[head] {
+			// Its key is reported already.
 			continue
 		}
-		if head, sub, ok := strings.Cut(k, "."); ok && r.nested[head][sub] != nil {
+		if info, ok := specKeys[k]; ok && info.kind == kindMap && r.get(k) != nil {
+			r.refuse(r.errAt(e, "names a group of keys; allowed: one of its keys, such as sources.%s.%s", k, map[string]string{"cluster": "icc", "simulate": "seed", "sources": "alpha"}[k]))
+			continue
+		}
+		if r.get(k) != nil || (dotted && r.nested[head][sub] != nil) {
 			continue
 		}
 		var present []string
 		for _, g := range r.order {
-			if g.key != "sources" {
+			if g.key != "sources" && r.entries[g.key] != nil {
 				present = append(present, g.key)
 			}
 		}
@@ -201,10 +377,8 @@ func (r *reader) build() (*Spec, error) {
 		if sug, ok := nearest(k, present); ok {
 			msg += fmt.Sprintf(" (did you mean %q?)", sug)
 		}
-		return nil, r.errAt(e, "%s", msg)
+		r.refuse(r.errAt(e, "%s", msg))
 	}
-	s.Given = r.given()
-	return s, nil
 }
 
 // counterpart maps a key of another design to the key that plays the same
@@ -223,6 +397,9 @@ func counterpart(key, design string) (string, bool) {
 			return ro.effects[len(ro.effects)-1], true
 		}
 	}
+	if _, known := specKeys[key]; !known {
+		return "", false
+	}
 	if sc := scaleOf(key); sc != ScaleRisk {
 		for _, k := range ro.effects {
 			if scaleOf(k) == sc {
@@ -233,105 +410,111 @@ func counterpart(key, design string) (string, bool) {
 	return "", false
 }
 
-// rangeNum reads an optional number with a default and a range check.
-func (r *reader) rangeNum(key string, def float64, ok func(float64) bool) (float64, error) {
-	x, e, err := r.number(key)
-	if err != nil {
-		return 0, err
-	}
-	if e == nil {
-		return def, nil
-	}
-	if !ok(x) {
-		return 0, r.errAt(e, "%s is out of range; allowed: %s", e.node.Value, specKeys[key].allowed)
-	}
-	return x, nil
+// rangeNum reads an optional number with a default and a range check; on a
+// problem, recorded, it returns the default and false.
+func (r *reader) rangeNum(key string, def float64, in func(float64) bool) (float64, bool) {
+	x, _, ok := r.optNum(key, def, in)
+	return x, ok
 }
 
-// probability reads a required probability in (0, 1).
-func (r *reader) probability(key, why string) (float64, error) {
+// optNum reads an optional number checked by in: def when absent. On a
+// problem, recorded, it returns def, the key's entry and false.
+func (r *reader) optNum(key string, def float64, in func(float64) bool) (float64, *entry, bool) {
 	x, e, err := r.number(key)
-	if err != nil {
-		return 0, err
+	if !r.keep(err) {
+		return def, e, false
 	}
 	if e == nil {
-		return 0, r.errFile(key, "missing; %s, a probability in (0, 1)", why)
+		return def, nil, true
 	}
-	if !(x > 0 && x < 1) {
-		return 0, r.errAt(e, "%s is out of range; allowed: a probability strictly between 0 and 1", e.node.Value)
+	if !in(x) {
+		r.refuse(r.rangeErr(e, x, specKeys[key].allowed, in))
+		return def, e, false
 	}
-	return x, nil
+	return x, e, true
 }
 
-func (r *reader) buildPrecision(s *Spec) error {
-	var err error
-	s.Method, _, err = r.choice("method", "wald", "wald")
-	if err != nil {
-		return r.methodError(s)
+func in01(x float64) bool { return x > 0 && x < 1 }
+
+// probability reads a required probability in (0, 1); on a problem,
+// recorded, it returns false.
+func (r *reader) probability(key, why string) (float64, bool) {
+	x, e, err := r.number(key)
+	switch {
+	case !r.keep(err):
+		return 0, false
+	case e == nil:
+		r.missing(key, "%s, a probability in (0, 1)", why)
+		return 0, false
+	case !in01(x):
+		r.refuse(r.rangeErr(e, x, "a probability strictly between 0 and 1", in01))
+		return 0, false
 	}
-	if s.ExpectedPrevalence, err = r.probability("expected_prevalence", "required: the prevalence you expect to estimate"); err != nil {
-		return err
+	return x, true
+}
+
+func (r *reader) buildPrecision(s *Spec) {
+	var err *SpecError
+	if s.Method, _, err = r.choice("method", "wald", "wald"); err != nil {
+		r.refuse(r.methodError(s))
+		s.Method = "wald"
 	}
-	if s.Confidence, err = r.rangeNum("confidence", 0.95, func(x float64) bool { return x >= 0.5 && x < 1 }); err != nil {
-		return err
-	}
+	s.ExpectedPrevalence, _ = r.probability("expected_prevalence", "required: the prevalence you expect to estimate")
+	s.Confidence, _ = r.rangeNum("confidence", 0.95, func(x float64) bool { return x >= 0.5 && x < 1 })
 	pop, pe, err := r.whole("population")
-	if err != nil {
-		return err
+	popOK := r.keep(err)
+	if popOK && pe != nil && pop < 2 {
+		r.refuse(r.errAt(pe, "%d is out of range; allowed: %s", pop, specKeys["population"].allowed))
+		popOK = false
+	} else if popOK {
+		s.Population = pop
 	}
-	if pe != nil && pop < 2 {
-		return r.errAt(pe, "%d is out of range; allowed: %s", pop, specKeys["population"].allowed)
-	}
-	s.Population = pop
+	r.marginKind = "fraction"
 	switch s.Solve {
 	case "n":
+		inMargin := func(x float64) bool { return x > 0 && x < 0.5 }
 		m, me, err := r.number("margin")
-		if err != nil {
-			return err
+		switch {
+		case !r.keep(err):
+		case me == nil:
+			if !r.solveBad {
+				r.missing("margin", "required when solving n: the half-width of the confidence interval, in (0, 0.5)")
+			}
+		case !inMargin(m):
+			r.refuse(r.rangeErr(me, m, "a number in (0, 0.5)", inMargin))
+		default:
+			s.Margin = m
 		}
-		if me == nil {
-			return r.errFile("margin", "missing; required when solving n: the half-width of the confidence interval, in (0, 0.5)")
-		}
-		if !(m > 0 && m < 0.5) {
-			return r.errAt(me, "%s is out of range; allowed: a number in (0, 0.5)", me.node.Value)
-		}
-		s.Margin = m
 		if e := r.get("total"); e != nil {
 			s.Ignored = append(s.Ignored, "total is ignored when solving n")
 		}
 	case "effect":
-		if err := r.size(s, "total", "required when solving effect: the number of people to be surveyed"); err != nil {
-			return err
-		}
+		sizeOK := r.size(s, "total", "required when solving effect: the number of people to be surveyed")
 		if r.get("margin") != nil {
 			s.Ignored = append(s.Ignored, "margin is ignored when solving effect (the margin is what is solved)")
 		}
-		if s.Population > 0 && s.Total > s.Population {
-			e := r.get("total")
-			return r.errAt(e, "%d is more than the population of %d; allowed: at most the population", s.Total, s.Population)
+		if sizeOK && popOK && s.Population > 0 && s.Total > s.Population {
+			r.refuse(r.errAt(r.get("total"), "%d is more than the population of %d; allowed: at most the population", s.Total, s.Population))
 		}
 	}
-	return nil
 }
 
-func (r *reader) methodError(s *Spec) error {
-	if r.get("method") == nil {
-		var fits []string
-		for _, m := range Methods {
-			if m.serves(s.Design, s.Goal, s.Outcome, s.Hypothesis) {
-				fits = append(fits, m.ID)
-			}
-		}
-		return r.errAt(r.entries["method"], "has no value; allowed: %s", orList(fits))
-	}
-	e := r.get("method")
-	name := strings.TrimSpace(e.node.Value)
+// methodError explains why the method key is refused.
+func (r *reader) methodError(s *Spec) *SpecError {
 	var fits []string
 	for _, m := range Methods {
 		if m.serves(s.Design, s.Goal, s.Outcome, s.Hypothesis) {
 			fits = append(fits, m.ID)
 		}
 	}
+	e := r.get("method")
+	if e == nil {
+		return r.errAt(r.entries["method"], "has no value; allowed: %s", orList(fits))
+	}
+	if e.node.Kind != yaml.ScalarNode {
+		return r.errAt(e, "is not a single value; allowed: %s", orList(fits))
+	}
+	name := strings.TrimSpace(e.node.Value)
 	what := "design " + s.Design
 	if s.Design == "cross-sectional" {
 		what += " with goal " + s.Goal
@@ -358,35 +541,39 @@ func (r *reader) methodError(s *Spec) error {
 	return r.errAt(e, "%s", msg)
 }
 
-// size reads the required group or survey size key.
-func (r *reader) size(s *Spec, key, why string) error {
+// size reads the required group or survey size key; on a problem,
+// recorded, it returns false.
+func (r *reader) size(s *Spec, key, why string) bool {
 	x, e, err := r.whole(key)
-	if err != nil {
-		return err
-	}
-	if e == nil {
-		return r.errFile(key, "missing; %s, a whole number of at least 2", why)
-	}
-	if x < 2 {
-		return r.errAt(e, "%d is out of range; allowed: %s", x, specKeys[key].allowed)
+	switch {
+	case !r.keep(err):
+		return false
+	case e == nil:
+		r.missing(key, "%s, a whole number of at least 2", why)
+		return false
+	case x < 2:
+		r.refuse(r.errAt(e, "%d is out of range; allowed: %s", x, specKeys[key].allowed))
+		return false
 	}
 	if key == "n" {
 		s.N = x
 	} else {
 		s.Total = x
 	}
-	return nil
+	return true
 }
 
 // effectToP1 checks the effect value and converts it to the first group's
-// risk.
-func (r *reader) effectToP1(s *Spec, e *entry) error {
+// risk; p2OK says whether the reference risk is usable. It records a
+// problem and returns false when the effect cannot be used.
+func (r *reader) effectToP1(s *Spec, e *entry, p2OK bool) bool {
 	x, p2 := s.EffectValue, s.P2
 	var p1 float64
 	switch scaleOf(s.EffectKey) {
 	case ScaleRatio, ScaleOdds:
 		if !(x > 0) {
-			return r.errAt(e, "%s is out of range; allowed: a number above 0", e.node.Value)
+			r.refuse(r.errAt(e, "%s is out of range; allowed: a number above 0", show(e.node)))
+			return false
 		}
 		if scaleOf(s.EffectKey) == ScaleRatio {
 			p1 = x * p2
@@ -394,38 +581,48 @@ func (r *reader) effectToP1(s *Spec, e *entry) error {
 			p1 = x * p2 / (1 + p2*(x-1))
 		}
 	case ScaleDifference:
-		if !(x > -1 && x < 1) {
-			return r.errAt(e, "%s is out of range; allowed: a number in (-1, 1)", e.node.Value)
+		in := func(x float64) bool { return x > -1 && x < 1 }
+		if !in(x) {
+			r.refuse(r.rangeErr(e, x, "a number in (-1, 1)", in))
+			return false
 		}
 		p1 = p2 + x
 	case ScaleRisk:
-		if !(x > 0 && x < 1) {
-			return r.errAt(e, "%s is out of range; allowed: a probability strictly between 0 and 1", e.node.Value)
+		if !in01(x) {
+			r.refuse(r.rangeErr(e, x, "a probability strictly between 0 and 1", in01))
+			return false
 		}
 		p1 = x
+	}
+	if !p2OK {
+		return false
 	}
 	if s.Solve == "effect" {
 		// The value only names the scale, and for a one-sided test the
 		// direction the test looks.
-		if p1 > 0 && p1 < 1 {
+		if in01(p1) {
 			s.P1 = p1
 		}
-		return nil
+		return true
 	}
 	ro := roles[s.Design]
-	if !(p1 > 0 && p1 < 1) {
-		return r.errAt(e, "%s with %s %g gives a risk of %.4g in the %s; allowed: an effect that keeps the risk strictly between 0 and 1", e.node.Value, s.ReferenceKey, p2, p1, ro.first)
+	if !in01(p1) {
+		r.refuse(r.errAt(e, "%s with %s %g gives a risk of %.4g in the %s; allowed: an effect that keeps the risk strictly between 0 and 1", show(e.node), s.ReferenceKey, p2, p1, ro.first))
+		return false
 	}
 	if math.Abs(p1-p2) < 1e-12 {
 		if s.Hypothesis != "superiority" {
 			// No true difference: the usual assumption of such trials.
 			s.P1 = p2
-			return nil
+			return true
 		}
-		return r.errAt(e, "%s means no difference between the groups: nothing to detect; allowed: an effect other than no difference (or solve: effect)", e.node.Value)
+		if !r.solveBad {
+			r.refuse(r.errAt(e, "%s means no difference between the groups: nothing to detect; allowed: an effect other than no difference (or solve: effect)", show(e.node)))
+		}
+		return false
 	}
 	s.P1 = p1
-	return nil
+	return true
 }
 
 // Scale is the scale on which an effect is stated.

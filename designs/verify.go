@@ -40,18 +40,22 @@ var ErrStopped = errors.New("simulation stopped early")
 // Simulation is the verification of a plan by simulation; its JSON form is
 // the `simulation` object.
 type Simulation struct {
-	Test       string    `json:"test"`
-	TestName   string    `json:"test_name"`
-	Replicates int64     `json:"replicates"`
-	Seed       uint64    `json:"seed"`
-	N          []int     `json:"n"`
-	Power      float64   `json:"power"`
-	SE         float64   `json:"se"`
-	CI         []float64 `json:"ci"`
-	// Type1Error and Type1SE are null when the null run did not happen (a
-	// run stopped early).
-	Type1Error *float64 `json:"type1_error"`
-	Type1SE    *float64 `json:"type1_se"`
+	Test       string  `json:"test"`
+	TestName   string  `json:"test_name"`
+	Replicates int64   `json:"replicates"`
+	Seed       uint64  `json:"seed"`
+	N          []int   `json:"n"`
+	Power      float64 `json:"power"`
+	SE         float64 `json:"se"`
+	// CI is the 95% score (Wilson 1927) interval of Power [low, high]: it
+	// stays a true interval when every replicate, or none, rejects.
+	CI []float64 `json:"ci"`
+	// Type1Error is the simulated type I error, Type1SE its standard error
+	// and Type1CI its 95% score interval; all three are null when the null
+	// run did not happen (a run stopped early).
+	Type1Error *float64  `json:"type1_error"`
+	Type1SE    *float64  `json:"type1_se"`
+	Type1CI    []float64 `json:"type1_ci"`
 	// Type1At says where the null run sits (no difference, or the margin).
 	Type1At         string  `json:"type1_at"`
 	ClosedFormPower float64 `json:"closed_form_power"`
@@ -206,6 +210,8 @@ func Verify(ctx context.Context, s *Spec, res *Result, o SimOptions) error {
 	r0, err0 := power.Simulate(ctx, null.model, power.SimConfig{Replicates: reps, Seed: seed + 1, Workers: o.Workers, Progress: cfg("null (type I error)").Progress})
 	if r0.Replicates > 0 {
 		sim.Type1Error, sim.Type1SE = ptr(r0.Power()), ptr(r0.SE())
+		lo, hi := r0.CI()
+		sim.Type1CI = []float64{lo, hi}
 	}
 	if !sim.Agrees {
 		res.Warnings = append(res.Warnings, fmt.Sprintf(

@@ -54,7 +54,7 @@ func TestStarters(t *testing.T) {
 	for _, c := range []struct{ design, goal, outcome string }{
 		{"cohort", "", ""}, {"case-control", "", ""}, {"trial", "", ""}, {"cross-sectional", "", ""},
 		{"cross-sectional", "precision", ""}, {"trial", "", "continuous"}, {"trial", "", "time-to-event"},
-		{"cohort", "", "continuous"},
+		{"cohort", "", "continuous"}, {"cross-sectional", "", "continuous"},
 	} {
 		data, err := designs.Starter(c.design, c.goal, c.outcome)
 		if err != nil {

@@ -72,7 +72,12 @@ func (r SimResult) SE() float64 {
 	return math.Sqrt(p * (1 - p) / float64(r.Replicates))
 }
 
-// CI is the 95% Wilson score interval for the power.
+// CI is the 95% Wilson score interval for the power, p̂ = k/R:
+//
+//	(p̂ + z²/2R ∓ z √(p̂(1 − p̂)/R + z²/4R²)) / (1 + z²/R),  z = Φ⁻¹(0.975)
+//
+// Unlike the Wald interval p̂ ∓ z SE it does not shrink to a point when
+// every replicate, or none, rejects: with k = R it is [R/(R + z²), 1].
 //
 // References: Wilson EB (1927). Probable inference, the law of succession,
 // and statistical inference. J Am Stat Assoc 22:209–212.
@@ -83,7 +88,17 @@ func (r SimResult) CI() (lo, hi float64) {
 	den := 1 + z*z/n
 	c := (p + z*z/(2*n)) / den
 	h := z * math.Sqrt(p*(1-p)/n+z*z/(4*n*n)) / den
-	return math.Max(0, c-h), math.Min(1, c+h)
+	lo, hi = math.Max(0, c-h), math.Min(1, c+h)
+	// At p̂ = 0 the lower end is exactly 0, and at p̂ = 1 the upper end
+	// exactly 1; rounding would otherwise leave the interval a hair away
+	// from the estimate it surrounds.
+	if r.Rejections == 0 {
+		lo = 0
+	}
+	if r.Rejections == r.Replicates {
+		hi = 1
+	}
+	return lo, hi
 }
 
 // ErrCanceled is returned with a partial result when the context ends a

@@ -121,14 +121,23 @@ func TestSimulateProgress(t *testing.T) {
 }
 
 // TestSimResultCI checks the Wilson interval against R's
-// prop.test(x, n, correct = FALSE)$conf.int (sim_wilson.tsv), and the
-// standard error against √(p(1 − p)/n) written out.
+// prop.test(x, n, correct = FALSE)$conf.int (sim_wilson.tsv) and against
+// statsmodels' proportion_confint(x, n, method="wilson")
+// (wilson_statsmodels.tsv, which holds the extremes a simulation reaches:
+// every replicate or none rejecting out of 10,000 and 20,000), and the
+// standard error against √(p(1 − p)/n) written out. At the extremes the
+// interval keeps a width of about z²/n: it never shrinks to a point.
 func TestSimResultCI(t *testing.T) {
-	for _, row := range reftable.Load(t, "sim_wilson.tsv") {
-		r := SimResult{Rejections: int64(row.I(t, "x")), Replicates: int64(row.I(t, "n"))}
-		lo, hi := r.CI()
-		if math.Abs(lo-row.F(t, "lo")) > 1e-12 || math.Abs(hi-row.F(t, "hi")) > 1e-12 {
-			t.Errorf("%s: CI = [%.15g, %.15g], want [%s, %s]", row["source"], lo, hi, row["lo"], row["hi"])
+	for _, file := range []string{"sim_wilson.tsv", "wilson_statsmodels.tsv"} {
+		for _, row := range reftable.Load(t, file) {
+			r := SimResult{Rejections: int64(row.I(t, "x")), Replicates: int64(row.I(t, "n"))}
+			lo, hi := r.CI()
+			if math.Abs(lo-row.F(t, "lo")) > 1e-12 || math.Abs(hi-row.F(t, "hi")) > 1e-12 {
+				t.Errorf("%s: CI = [%.15g, %.15g], want [%s, %s]", row["source"], lo, hi, row["lo"], row["hi"])
+			}
+			if p := r.Power(); !(lo < hi && lo <= p && p <= hi) {
+				t.Errorf("%s: CI [%g, %g] is a point or misses %g", row["source"], lo, hi, p)
+			}
 		}
 	}
 	r := SimResult{Rejections: 30, Replicates: 100}

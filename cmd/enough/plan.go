@@ -49,12 +49,33 @@ type SimFlags struct {
 
 // addSimFlags registers the simulation flags on cmd.
 func addSimFlags(cmd *cobra.Command, f *SimFlags) {
-	cmd.Flags().IntVar(&f.Workers, "workers", 0, "goroutines for the simulation (0: one per core); the result does not depend on it")
-	cmd.Flags().BoolVarP(&f.Quiet, "quiet", "q", false, "no progress bar on standard error")
-	cmd.Flags().Float64Var(&f.MaxSeconds, "max-seconds", 600, "refuse a simulation predicted to take longer than this many seconds (0: no limit)")
-	cmd.Flags().Int64Var(&f.Replicates, "replicates", 0, "override simulate.replicates")
-	cmd.Flags().Int64Var(&f.Seed, "seed", -1, "override simulate.seed (a whole number of at least 0)")
-	cmd.Flags().Int64Var(&f.MaxReplicates, "max-replicates", 1_000_000_000, "refuse more replicates than this unless raised")
+	wholeFlag(cmd, &f.Workers, "workers", 0, "goroutines for the simulation (0: one per core); the result does not depend on it",
+		"a whole number: 0 (one per core) or more")
+	switchFlag(cmd, &f.Quiet, "quiet", "q", "no progress bar on standard error")
+	decimalFlag(cmd, &f.MaxSeconds, "max-seconds", 600, "refuse a simulation predicted to take longer than this many seconds (0: no limit)",
+		"a number of seconds: 0 (no limit) or more")
+	wholeFlag(cmd, &f.Replicates, "replicates", 0, "override simulate.replicates",
+		"a whole number of at least 100 and at most --max-replicates (1e6 is read as 1000000)")
+	wholeFlag(cmd, &f.Seed, "seed", -1, "override simulate.seed (a whole number of at least 0)",
+		"a whole number of at least 0")
+	wholeFlag(cmd, &f.MaxReplicates, "max-replicates", 1_000_000_000, "refuse more replicates than this unless raised",
+		"a whole number of at least 1 (1e9 is read as 1000000000)")
+}
+
+// specArgs checks the arguments of a command that reads one specification:
+// at most one, or (required) exactly one.
+func specArgs(verb string, required bool) cobra.PositionalArgs {
+	return func(_ *cobra.Command, args []string) error {
+		switch {
+		case len(args) > 1:
+			return &inputError{msg: fmt.Sprintf("%s: %d specifications given (%s); allowed: one specification at most (run enough %s once per file)",
+				verb, len(args), strings.Join(args, ", "), verb)}
+		case len(args) == 0 && required:
+			return &inputError{msg: fmt.Sprintf("%s: needs a specification file; allowed: enough %s SPEC.yaml, or - to read it from standard input (enough plan --verify simulates the built-in demonstration study)",
+				verb, verb)}
+		}
+		return nil
+	}
 }
 
 // NewCmdPlan builds `enough plan`. runF replaces the run step in tests.
@@ -67,17 +88,14 @@ func NewCmdPlan(streams *IO, runF func(*PlanOptions) error) *cobra.Command {
 chosen closed-form method, and write a protocol-ready summary.
 
 Without a file, plans the embedded demonstration study. With "-", reads the
-specification from standard input.`,
+specification from standard input. One specification at most.`,
 		Example: `  enough plan study.yaml
   enough plan study.yaml --format json -o plan.json
   enough plan study.yaml --set power=0.9 --set sources.power="funder's requirement"`,
-		Args: cobra.MaximumNArgs(1),
+		Args: specArgs("plan", false),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			if len(args) == 1 {
 				opts.Spec = args[0]
-			}
-			if !validFormat(opts.Format) {
-				return &inputError{msg: fmt.Sprintf("--format: %q is not a format; allowed: %s", opts.Format, strings.Join(report.Formats, ", "))}
 			}
 			if runF != nil {
 				return runF(opts)
@@ -85,22 +103,13 @@ specification from standard input.`,
 			return planRun(opts)
 		},
 	}
-	cmd.Flags().StringVarP(&opts.Format, "format", "f", "markdown", "output format: markdown, text or json")
-	cmd.Flags().StringVarP(&opts.Output, "output", "o", "", "write to this file (atomically) instead of standard output")
+	formatFlag(cmd, &opts.Format, report.Formats)
+	outputFlag(cmd, &opts.Output)
 	cmd.Flags().StringArrayVar(&opts.Sets, "set", nil, "override one key, key=value (repeatable; dotted keys such as sources.alpha reach nested keys)")
-	cmd.Flags().BoolVar(&opts.Verify, "verify", false, "verify the plan by simulating the study and its planned test (also when the specification has a simulate block)")
-	cmd.Flags().BoolVar(&opts.Exact, "exact", false, "exact power by enumeration of both binomial counts (two-group binary outcomes)")
+	switchFlag(cmd, &opts.Verify, "verify", "", "verify the plan by simulating the study and its planned test (also when the specification has a simulate block)")
+	switchFlag(cmd, &opts.Exact, "exact", "", "exact power by enumeration of both binomial counts (two-group binary outcomes)")
 	addSimFlags(cmd, &opts.Sim)
 	return cmd
-}
-
-func validFormat(f string) bool {
-	for _, x := range report.Formats {
-		if f == x {
-			return true
-		}
-	}
-	return false
 }
 
 func planRun(opts *PlanOptions) error {
@@ -113,11 +122,11 @@ func planRun(opts *PlanOptions) error {
 	}
 	spec, err := designs.Parse(name, data, opts.Sets)
 	if err != nil {
-		return err
+		return withSource(err, name, data)
 	}
 	res, err := designs.Plan(spec)
 	if err != nil {
-		return err
+		return withSource(err, name, data)
 	}
 	if opts.Exact && spec.Method != "exact" {
 		// --exact is method: exact on top of the chosen closed form.

@@ -14,11 +14,8 @@ import (
 	"golang.org/x/term"
 
 	"enough/designs"
+	"enough/designs/report"
 )
-
-// ExitInterrupted is the status of a simulation stopped by Ctrl-C; the
-// output holds what was done, marked partial.
-const ExitInterrupted = 130
 
 // errInterrupted marks a simulation stopped by an interrupt.
 var errInterrupted = errors.New("interrupted: the simulation stopped early; the output holds the replicates done, marked partial")
@@ -37,26 +34,25 @@ closed form. Settings come from the specification's simulate block
 (replicates, seed, n) or the flags. The result for a seed is identical
 whatever the number of workers.
 
+The specification file is required ("-" reads it from standard input);
+"enough plan --verify" without a file simulates the built-in demonstration
+study.
+
 A progress bar is shown on standard error when it is a terminal (not with
 --quiet). Ctrl-C stops cleanly: the output holds the replicates done, marked
 partial, and the exit status is 130.`,
 		Example: `  enough simulate study.yaml
   enough simulate study.yaml --replicates 100000 --seed 7 --format json`,
-		Args: cobra.MaximumNArgs(1),
+		Args: specArgs("simulate", true),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			if len(args) == 1 {
-				opts.Spec = args[0]
-			}
-			if !validFormat(opts.Format) {
-				return &inputError{msg: fmt.Sprintf("--format: %q is not a format", opts.Format)}
-			}
+			opts.Spec = args[0]
 			return planRun(opts)
 		},
 	}
-	cmd.Flags().StringVarP(&opts.Format, "format", "f", "markdown", "output format: markdown, text or json")
-	cmd.Flags().StringVarP(&opts.Output, "output", "o", "", "write to this file (atomically) instead of standard output")
+	formatFlag(cmd, &opts.Format, report.Formats)
+	outputFlag(cmd, &opts.Output)
 	cmd.Flags().StringArrayVar(&opts.Sets, "set", nil, "override one key, key=value (repeatable)")
-	cmd.Flags().BoolVar(&opts.Exact, "exact", false, "also compute exact power by enumeration (two-group binary outcomes)")
+	switchFlag(cmd, &opts.Exact, "exact", "", "also compute exact power by enumeration (two-group binary outcomes)")
 	addSimFlags(cmd, &opts.Sim)
 	return cmd
 }

@@ -9,37 +9,89 @@ import (
 	"enough/designs"
 )
 
-// label returns the human name of a specification key.
+// keyLabels are the human names of the specification's keys that do not
+// depend on the groups or the outcome (see keyLabel).
 var keyLabels = map[string]string{
-	"alpha": "alpha", "sides": "sides", "power": "target power", "n": "enrolment, first group",
-	"total": "enrolment, whole survey", "ratio": "allocation (second per first)",
+	"alpha": "alpha", "sides": "sides", "power": "target power",
+	"ratio":     "allocation (second group per first)",
 	"attrition": "attrition (fraction lost)", "design_effect": "design effect",
-	"unexposed_risk": "risk among the unexposed", "exposed_risk": "risk among the exposed",
-	"control_risk": "risk in the control arm", "intervention_risk": "risk in the intervention arm",
-	"control_exposure": "exposure among controls", "case_exposure": "exposure among cases",
-	"exposure_prevalence":  "share of the surveyed who are exposed",
-	"unexposed_prevalence": "prevalence among the unexposed", "exposed_prevalence": "prevalence among the exposed",
-	"expected_prevalence": "expected prevalence", "risk_ratio": "risk ratio",
-	"prevalence_ratio": "prevalence ratio", "odds_ratio": "odds ratio",
-	"risk_difference": "risk difference", "prevalence_difference": "prevalence difference",
+	"odds_ratio": "odds ratio", "expected_prevalence": "expected prevalence",
 	"margin": "margin (half-width of the interval)", "confidence": "confidence level",
 	"population":      "population size",
-	"mean_difference": "difference in means", "intervention_mean": "mean in the intervention arm",
-	"control_mean": "mean in the control arm", "exposed_mean": "mean among the exposed",
-	"unexposed_mean": "mean among the unexposed", "sd": "standard deviation",
-	"sd_first": "standard deviation, first group", "sd_second": "standard deviation, second group",
+	"mean_difference": "difference in means", "sd": "standard deviation",
 	"sd_difference": "standard deviation of the differences", "within_correlation": "correlation between the two measurements",
 	"baseline_correlation": "correlation with the baseline", "hazard_ratio": "hazard ratio",
-	"control_median": "median survival, control arm", "control_survival": "survival in the control arm",
-	"time": "time of that survival", "accrual": "accrual period", "follow_up": "follow-up after the last entry",
-	"dropout": "dropout per time unit", "non_adherence": "non-adherence (intervention arm)",
-	"contamination": "contamination (control arm)", "arms": "arms", "higher_is_better": "higher is better",
+	"arms": "arms", "higher_is_better": "higher values of the outcome are better",
 	"hypothesis": "hypothesis", "pairing": "pairing", "comparisons": "comparisons",
 	"cluster.size": "mean cluster size", "cluster.icc": "intracluster correlation (ICC)",
-	"cluster.size_cv": "coefficient of variation of cluster sizes", "n_second": "enrolment, second group",
+	"cluster.size_cv": "coefficient of variation of cluster sizes",
 }
 
-func keyLabel(k string) string {
+// keyLabel returns the human name of a specification key, in the words of
+// this result: its group labels and its outcome's measure.
+func keyLabel(r *designs.Result, k string) string {
+	f, g := groupsOf(r)
+	v := vocabOf(r)
+	unit := ""
+	if r.Spec != nil {
+		unit = r.Spec.TimeUnit
+	}
+	switch k {
+	case "attrition":
+		if r.Design == "cross-sectional" {
+			return "non-response (fraction)"
+		}
+	case "unexposed_risk", "control_risk", "unexposed_prevalence":
+		return v.noun + ", " + g.label
+	case "exposed_risk", "intervention_risk", "exposed_prevalence":
+		return v.noun + ", " + f.label
+	case "control_exposure":
+		return "exposure, " + g.label
+	case "case_exposure":
+		return "exposure, " + f.label
+	case "exposure_prevalence":
+		return "share of those surveyed, " + f.label
+	case "risk_ratio", "prevalence_ratio":
+		return v.ratio
+	case "risk_difference", "prevalence_difference":
+		return v.diff
+	case "n":
+		if r.Spec != nil && r.Spec.Pairing == "paired" {
+			return "pairs enrolled"
+		}
+		return "enrolment, " + f.label
+	case "n_second":
+		return "enrolment, " + g.label
+	case "total":
+		if r.Goal == "precision" {
+			return "people invited"
+		}
+		return "people surveyed"
+	case "intervention_mean", "exposed_mean":
+		return "mean, " + f.label
+	case "control_mean", "unexposed_mean":
+		return "mean, " + g.label
+	case "sd_first":
+		return "standard deviation, " + f.label
+	case "sd_second":
+		return "standard deviation, " + g.label
+	case "control_median":
+		return "median survival, " + g.label + " (" + plural(unit) + ")"
+	case "control_survival":
+		return "survival at the time below, " + g.label
+	case "time":
+		return "time of that survival (" + plural(unit) + ")"
+	case "accrual":
+		return "accrual period (" + plural(unit) + ")"
+	case "follow_up":
+		return "follow-up after the last entry (" + plural(unit) + ")"
+	case "dropout":
+		return "dropout per " + singular(unit)
+	case "non_adherence":
+		return "non-adherence, " + f.label
+	case "contamination":
+		return "contamination, " + g.label
+	}
 	if l, ok := keyLabels[k]; ok {
 		return l
 	}
@@ -51,14 +103,6 @@ func sidesWord(sides int) string {
 		return "one-sided"
 	}
 	return "two-sided"
-}
-
-// riskWord is "prevalence" for a cross-sectional study and "risk" otherwise.
-func riskWord(design string) string {
-	if design == "cross-sectional" {
-		return "prevalence"
-	}
-	return "risk"
 }
 
 // source returns " (source: ...)" for a key with a source, and for a key
@@ -113,11 +157,7 @@ func build(r *designs.Result) *document {
 	if r.Goal == "precision" && r.Solve == "effect" {
 		solved = "achievable precision"
 	}
-	article := "a"
-	if strings.ContainsAny(what[:1], "aeiou") {
-		article = "an"
-	}
-	d.subtitle = fmt.Sprintf("%s plan for %s %s, %s outcome", capitalise(solved), article, what, r.Outcome)
+	d.subtitle = fmt.Sprintf("%s plan for %s %s, %s outcome", capitalise(solved), article(what), what, r.Outcome)
 
 	d.sections = append(d.sections, section{heading: "Justification for the protocol", paras: []string{paragraph(r)}})
 	d.sections = append(d.sections, assumptionSection(r))
@@ -135,13 +175,14 @@ func build(r *designs.Result) *document {
 		d.sections = append(d.sections, *v)
 	}
 	if len(r.Warnings) > 0 {
-		d.sections = append(d.sections, section{heading: "Warnings", bullets: r.Warnings})
+		d.sections = append(d.sections, section{heading: "Warnings", bullets: sentences(r.Warnings)})
 	}
 	if len(r.Notes) > 0 {
-		d.sections = append(d.sections, section{heading: "Notes", bullets: r.Notes})
+		d.sections = append(d.sections, section{heading: "Notes", bullets: sentences(r.Notes)})
 	}
 	d.sections = append(d.sections, stepsSection(r))
 	d.sections = append(d.sections, section{heading: "Cautions", bullets: r.Cautions})
+	d.sections = append(d.sections, referenceSection(r))
 
 	spec := r.SpecFile
 	d.footer = append(d.footer, fmt.Sprintf("%s %s · specification %s · SHA-256 %s", r.Tool, r.Version, spec, r.SpecSHA256))
@@ -149,6 +190,18 @@ func build(r *designs.Result) *document {
 		d.footer = append(d.footer, "overridden on the command line: "+strings.Join(r.Overrides, ", "))
 	}
 	return d
+}
+
+// sentences returns warnings or notes as full sentences: a capital first
+// and a full stop last. The messages are written so already; this keeps a
+// line that is not (such as a reason a key is ignored) from reaching the
+// reader as a fragment.
+func sentences(lines []string) []string {
+	out := make([]string, len(lines))
+	for i, l := range lines {
+		out[i] = designs.Sentence(l)
+	}
+	return out
 }
 
 func capitalise(s string) string {
@@ -166,7 +219,7 @@ func assumptionSection(r *designs.Result) section {
 		if src == "" {
 			src = "not stated"
 		}
-		label := keyLabel(a.Key)
+		label := keyLabel(r, a.Key)
 		if a.Key == "margin" && r.Goal != "precision" {
 			label = r.Spec.Hypothesis + " margin"
 		}
@@ -184,20 +237,21 @@ func assumptionSection(r *designs.Result) section {
 	if r.Sides != 0 && !has["sides"] {
 		defaults = append(defaults, sidesWord(r.Sides)+" test")
 	}
-	if r.Ratio != nil && !has["ratio"] && r.Design != "cross-sectional" {
+	if r.Ratio != nil && !has["ratio"] && !has["n_second"] && r.Design != "cross-sectional" && r.Spec.Pairing != "paired" {
 		defaults = append(defaults, "allocation "+allocation(*r.Ratio))
 	}
 	if !has["attrition"] && r.Outcome != "time-to-event" {
-		defaults = append(defaults, "no attrition")
+		if r.Design == "cross-sectional" {
+			defaults = append(defaults, "no non-response")
+		} else {
+			defaults = append(defaults, "no attrition")
+		}
 	}
 	if r.Outcome == "time-to-event" && !has["dropout"] {
 		defaults = append(defaults, "no dropout")
 	}
 	if r.Outcome == "time-to-event" && !has["accrual"] {
 		defaults = append(defaults, "no accrual period (everyone starts together)")
-	}
-	if !has["design_effect"] && r.Spec.Cluster == nil {
-		defaults = append(defaults, "design effect 1")
 	}
 	if r.Goal == "precision" && !has["confidence"] {
 		defaults = append(defaults, "95% confidence")
@@ -212,28 +266,31 @@ func answerSection(r *designs.Result) section {
 	a := r.Result
 	s := section{heading: "Answer"}
 	if r.Goal == "precision" {
+		nonResponse := fmt.Sprintf("allowing for %s non-response", pct(r.Attrition))
+		if r.Attrition == 0 {
+			nonResponse = "no non-response expected"
+		}
 		if r.Solve == "n" {
+			unrounded := fmt.Sprintf("n₀ = %.2f, rounded up", a.N0)
+			if r.DesignEff != 1 || r.Spec.Population > 0 {
+				unrounded = fmt.Sprintf("unrounded %.2f; n₀ = %.2f before the design effect and the finite population correction", a.NStar, a.N0)
+			}
 			s.bullets = append(s.bullets,
-				fmt.Sprintf("**Respondents needed: %s** (unrounded %.2f; n₀ = %.2f before design effect and finite population correction)", count(a.Total), a.NStar, a.N0),
-				fmt.Sprintf("**People to invite: %s**, allowing for %s non-response", count(a.EnrolTotal), pct(r.Attrition)),
+				fmt.Sprintf("**Respondents needed: %s** (%s)", count(a.Total), unrounded),
+				fmt.Sprintf("**People to invite: %s**, %s", count(a.EnrolTotal), nonResponse),
 				fmt.Sprintf("Margin: ±%s at %s confidence", strings.TrimSuffix(pct(*a.Margin), "%")+" percentage points", pct(r.Spec.Confidence)))
 		} else {
 			s.bullets = append(s.bullets,
-				fmt.Sprintf("**Achievable margin: ±%s percentage points** at %s confidence", strings.TrimSuffix(pct(*a.Margin), "%"), pct(r.Spec.Confidence)),
-				fmt.Sprintf("Invited: %s; expected respondents after %s non-response: %s", count(a.EnrolTotal), pct(r.Attrition), count(a.Total)))
+				fmt.Sprintf("**Achievable margin: ±%s percentage points** at %s confidence", strings.TrimSuffix(pct(*a.Margin), "%"), pct(r.Spec.Confidence)))
+			if r.Attrition > 0 {
+				s.bullets = append(s.bullets, fmt.Sprintf("Invited: %s; expected respondents after %s non-response: %s", count(a.EnrolTotal), pct(r.Attrition), count(a.Total)))
+			} else {
+				s.bullets = append(s.bullets, fmt.Sprintf("Invited: %s, all expected to respond", count(a.EnrolTotal)))
+			}
 		}
 		return s
 	}
-	first, second := r.FirstGroup, r.SecondGroup
-	groups := func(n []int) string {
-		switch {
-		case len(n) == 1:
-			return sizeList(n, r)
-		case r.Spec.Cluster != nil:
-			return fmt.Sprintf("%s participants in the %s and %s in the %s", count(n[0]), first, count(n[1]), second)
-		}
-		return members(n[0], first) + " and " + members(n[1], second)
-	}
+	groups := func(n []int) string { return groupSizes(r, n) }
 	// total ends a line of group sizes: ", N in total" (nothing more for
 	// pairs, which are their own total).
 	total := func(n int) string {
@@ -249,6 +306,13 @@ func answerSection(r *designs.Result) section {
 	if a.Arms > 2 {
 		per = " per comparison"
 	}
+	analysable := "Analysable"
+	if r.Attrition > 0 {
+		analysable = fmt.Sprintf("Analysable after %s attrition", pct(r.Attrition))
+		if r.Design == "cross-sectional" {
+			analysable = fmt.Sprintf("Analysable after %s non-response", pct(r.Attrition))
+		}
+	}
 	switch r.Solve {
 	case "n":
 		s.bullets = append(s.bullets,
@@ -262,14 +326,14 @@ func answerSection(r *designs.Result) section {
 		s.bullets = append(s.bullets,
 			fmt.Sprintf("**Power: %s**", pct1(*a.AchievedPower)),
 			fmt.Sprintf("Enrolled%s: %s%s", per, groups(a.Enrol), total(a.EnrolTotal)),
-			fmt.Sprintf("Analysable after %s attrition: %s%s", pct(r.Attrition), sizeList(a.N, r), total(a.Total)))
+			fmt.Sprintf("%s%s: %s%s", analysable, per, sizeList(a.N, r), total(a.Total)))
 	case "effect":
 		det := a.Detectable
-		scale := keyLabel(det.Scale)
 		var dl, du *float64
 		if det.Diluted != nil {
 			dl, du = det.Diluted.Lower, det.Diluted.Upper
 		}
+		name := scaleName(r, det.Scale)
 		for _, side := range []struct {
 			v    *float64
 			e    *designs.Effect
@@ -283,20 +347,25 @@ func answerSection(r *designs.Result) section {
 				s.bullets = append(s.bullets, fmt.Sprintf("%s: cannot be reached with these sizes", capitalise(side.name)))
 				continue
 			}
-			line := fmt.Sprintf("**%s: %s %s**", capitalise(side.name), scale, valueOn(det.Scale, *side.v))
-			if side.e != nil && (side.e.FirstRisk != nil || side.e.CaseExposure != nil) {
-				line += " (" + restateShort(r, side.e) + ")"
+			var line string
+			if firstRiskScale(det.Scale) && side.e != nil {
+				line = fmt.Sprintf("**%s: %s**", capitalise(side.name), detectablePhrase(r, det.Scale, *side.v, side.e))
+			} else {
+				line = fmt.Sprintf("**%s: %s %s**", capitalise(side.name), name, valueOn(det.Scale, *side.v))
+				if side.e != nil && (side.e.FirstRisk != nil || side.e.CaseExposure != nil) {
+					line += " (" + restateShort(r, side.e) + ")"
+				}
 			}
 			if side.e != nil && side.e.StandardizedDifference != nil {
 				line += fmt.Sprintf(" (Cohen's d = %s)", num(*side.e.StandardizedDifference))
 			}
 			if side.dv != nil {
-				line += fmt.Sprintf(" for those who receive the intervention; an intention-to-treat analysis sees %s %s of %s", article(scale), scale, valueOn(det.Scale, *side.dv))
+				line += " for those who receive the intervention; an intention-to-treat analysis sees " + valuesOn(r, det.Scale, []float64{*side.dv})
 			}
 			s.bullets = append(s.bullets, line)
 		}
 		s.bullets = append(s.bullets,
-			fmt.Sprintf("Power: %s; enrolled %s; analysable %s", pct1(*r.Power), groups(a.Enrol), sizeList(a.N, r)))
+			fmt.Sprintf("Power: %s; enrolled %s; %s: %s", pct1(*r.Power), groups(a.Enrol), strings.ToLower(analysable[:1])+analysable[1:], sizeList(a.N, r)))
 	}
 	if a.Events > 0 {
 		s.bullets = append(s.bullets, fmt.Sprintf("Events required: %s", count(a.Events)))
@@ -305,7 +374,8 @@ func answerSection(r *designs.Result) section {
 		s.bullets = append(s.bullets, fmt.Sprintf("Events expected at the analysable sizes: %.1f", *a.ExpectedEvents))
 	}
 	if a.Duration != nil {
-		s.bullets = append(s.bullets, fmt.Sprintf("Study duration: %s %s (accrual %s, then follow-up %s)", num(*a.Duration), r.Spec.TimeUnit, num(r.Spec.Accrual), num(r.Spec.FollowUp)))
+		unit := r.Spec.TimeUnit
+		s.bullets = append(s.bullets, fmt.Sprintf("Study duration: %s (accrual %s, then follow-up %s)", duration(*a.Duration, unit), duration(r.Spec.Accrual, unit), duration(r.Spec.FollowUp, unit)))
 	}
 	if a.Clusters != nil {
 		s.bullets = append(s.bullets,
@@ -318,14 +388,82 @@ func answerSection(r *designs.Result) section {
 	if a.UndilutedN != nil {
 		s.bullets = append(s.bullets, fmt.Sprintf("Without non-adherence and contamination: %s", groups(a.UndilutedN)))
 	}
-	if r.Spec.Pairing != "paired" {
-		line := fmt.Sprintf("Allocation %s:%s = %s", first, second, allocation(*r.Ratio))
-		if r.Design == "cross-sectional" {
-			line += fmt.Sprintf(" (follows from %s of those surveyed being exposed)", pct(r.Spec.ExposurePrevalence))
-		}
-		s.bullets = append(s.bullets, line)
+	s.afterTable = groupTable(r)
+	if r.Design == "cross-sectional" {
+		f, _ := groupsOf(r)
+		s.after = append(s.after, fmt.Sprintf("The split follows from the expected share of %s among those surveyed (%s).", f.the(), pct(r.Spec.ExposurePrevalence)))
 	}
 	return s
+}
+
+// groupTable lists each group with its allocation, enrolment and
+// analysable size (and clusters): a table survives labels of any length.
+func groupTable(r *designs.Result) [][]string {
+	a := r.Result
+	if r.Spec.Pairing == "paired" || len(a.N) != 2 {
+		return nil
+	}
+	f, g := groupsOf(r)
+	enrol := "To enrol"
+	if r.Solve != "n" {
+		enrol = "Enrolled"
+	}
+	share := "Allocation"
+	alloc := []string{"1", strings.TrimPrefix(allocation(*r.Ratio), "1:")}
+	if r.Design == "cross-sectional" {
+		share = "Share surveyed"
+		alloc = []string{pct(r.Spec.ExposurePrevalence), pct(1 - r.Spec.ExposurePrevalence)}
+	}
+	head := []string{"Group", share, enrol, "Analysable"}
+	if a.Clusters != nil {
+		head = append(head, "Clusters")
+	}
+	labels := []string{f.label, g.label}
+	switch {
+	case a.Arms > 2 && r.Spec.Comparisons == "all-pairs":
+		labels[0] = fmt.Sprintf("each of the %d arms", a.Arms)
+	case a.Arms > 2:
+		labels[0] = fmt.Sprintf("%s (each of the %d intervention arms)", f.label, a.Arms-1)
+	}
+	rows := [][]string{head}
+	for i := range 2 {
+		if i == 1 && a.Arms > 2 && r.Spec.Comparisons == "all-pairs" {
+			break
+		}
+		row := []string{labels[i], alloc[i], count(a.Enrol[i]), count(a.N[i])}
+		if a.Clusters != nil {
+			row = append(row, count(a.Clusters[i]))
+		}
+		rows = append(rows, row)
+	}
+	totalRow := []string{"Total", "", count(a.EnrolTotal), count(a.Total)}
+	if a.Arms > 2 {
+		totalRow[0] = "Total over all arms"
+	}
+	if a.Clusters != nil {
+		totalRow = append(totalRow, count(a.Clusters[0]+a.Clusters[1]))
+	}
+	return append(rows, totalRow)
+}
+
+// valuesOn states one or two values on the scale of an effect key: "a
+// difference in means of −5.16 or 5.16", or on the first group's own risk
+// "a risk of 9.55% in the exposed".
+func valuesOn(r *designs.Result, key string, vs []float64) string {
+	var texts []string
+	for _, v := range vs {
+		texts = append(texts, valueOn(key, v))
+	}
+	if firstRiskScale(key) {
+		f, _ := groupsOf(r)
+		noun := vocabOf(r).noun
+		if r.Design == "case-control" {
+			return fmt.Sprintf("%s of %s exposed", strings.Join(texts, " or "), f.the())
+		}
+		return fmt.Sprintf("%s %s of %s %s", article(noun), noun, strings.Join(texts, " or "), f.in())
+	}
+	name := scaleName(r, key)
+	return fmt.Sprintf("%s %s of %s", article(name), name, strings.Join(texts, " or "))
 }
 
 // valueOn formats a value on the scale of an effect key.
@@ -343,10 +481,11 @@ func valueOn(key string, v float64) string {
 
 // restateShort gives the two groups' risks (or exposures) of an effect.
 func restateShort(r *designs.Result, e *designs.Effect) string {
+	f, g := groupsOf(r)
 	if e.CaseExposure != nil {
-		return fmt.Sprintf("%s of %s exposed against %s of %s", pct(*e.CaseExposure), r.FirstGroup, pct(*e.ControlExposure), r.SecondGroup)
+		return fmt.Sprintf("%s of %s exposed against %s of %s", pct(*e.CaseExposure), f.the(), pct(*e.ControlExposure), g.the())
 	}
-	return fmt.Sprintf("%s %s in the %s against %s in the %s", riskWord(r.Design), pct(*e.FirstRisk), r.FirstGroup, pct(*e.SecondRisk), r.SecondGroup)
+	return fmt.Sprintf("%s %s %s against %s %s", vocabOf(r).noun, pct(*e.FirstRisk), f.in(), pct(*e.SecondRisk), g.in())
 }
 
 func effectSection(r *designs.Result) *section {
@@ -354,16 +493,22 @@ func effectSection(r *designs.Result) *section {
 	if e == nil {
 		return nil
 	}
+	f, g := groupsOf(r)
 	s := &section{heading: "The planned effect on every scale"}
 	if e.MeanDifference != nil {
-		if r.Spec.Pairing != "" {
+		if r.Spec.Pairing != "" && r.Spec.Pairing != "crossover" {
 			s.bullets = []string{
 				fmt.Sprintf("Mean within-participant difference: %s", num(*e.MeanDifference)),
 				fmt.Sprintf("In standard deviations of that difference (d_z): %s", num(*e.StandardizedDifference)),
 			}
+		} else if r.Spec.Pairing == "crossover" {
+			s.bullets = []string{
+				fmt.Sprintf("Mean within-participant difference between the treatments: %s", num(*e.MeanDifference)),
+				fmt.Sprintf("In standard deviations of the period difference (d_z): %s", num(*e.StandardizedDifference)),
+			}
 		} else {
 			s.bullets = []string{
-				fmt.Sprintf("Difference in means (%s minus %s): %s", r.FirstGroup, r.SecondGroup, num(*e.MeanDifference)),
+				fmt.Sprintf("Difference in means (%s minus %s): %s", f.label, g.label, num(*e.MeanDifference)),
 				fmt.Sprintf("In standard deviations of the outcome (Cohen's d): %s", num(*e.StandardizedDifference)),
 			}
 		}
@@ -375,9 +520,9 @@ func effectSection(r *designs.Result) *section {
 	if e.HazardRatio != nil {
 		sp := r.Spec
 		s.bullets = []string{
-			fmt.Sprintf("Hazard ratio (%s over %s): %s", r.FirstGroup, r.SecondGroup, num(*e.HazardRatio)),
-			fmt.Sprintf("Median survival under exponential hazards: %s %s in the %s, %s %s in the %s",
-				num(math.Ln2/sp.ControlHazard), sp.TimeUnit, r.SecondGroup, num(math.Ln2/(sp.ControlHazard**e.HazardRatio)), sp.TimeUnit, r.FirstGroup),
+			fmt.Sprintf("Hazard ratio (%s over %s): %s", f.label, g.label, num(*e.HazardRatio)),
+			fmt.Sprintf("Median survival under exponential hazards: %s %s, %s %s",
+				duration(math.Ln2/sp.ControlHazard, sp.TimeUnit), g.in(), duration(math.Ln2/(sp.ControlHazard**e.HazardRatio), sp.TimeUnit), f.in()),
 		}
 		if d := r.Result.DilutedEffect; d != nil {
 			s.bullets = append(s.bullets, fmt.Sprintf("Seen by an intention-to-treat analysis after dilution: %s", num(*d.HazardRatio)))
@@ -386,35 +531,63 @@ func effectSection(r *designs.Result) *section {
 	}
 	if e.CaseExposure != nil {
 		s.bullets = []string{
-			fmt.Sprintf("Exposure among %s: %s (odds %s)", r.FirstGroup, pct(*e.CaseExposure), num(*e.CaseOdds)),
-			fmt.Sprintf("Exposure among %s: %s (odds %s)", r.SecondGroup, pct(*e.ControlExposure), num(*e.ControlOdds)),
+			fmt.Sprintf("Exposure %s: %s (odds %s)", f.in(), pct(*e.CaseExposure), num(*e.CaseOdds)),
+			fmt.Sprintf("Exposure %s: %s (odds %s)", g.in(), pct(*e.ControlExposure), num(*e.ControlOdds)),
 			fmt.Sprintf("Odds ratio: %s", num(*e.OddsRatio)),
 			"Risks, risk ratio, risk difference and number needed to treat are not estimable: a case-control study samples on the outcome.",
 		}
 		return s
 	}
-	rw := riskWord(r.Design)
+	v := vocabOf(r)
 	s.bullets = []string{
-		fmt.Sprintf("%s in the %s: %s; in the %s: %s", capitalise(rw), r.FirstGroup, pct(*e.FirstRisk), r.SecondGroup, pct(*e.SecondRisk)),
-		fmt.Sprintf("%s ratio: %s", capitalise(rw), num(*e.RiskRatio)),
+		fmt.Sprintf("%s %s: %s; %s: %s", capitalise(v.noun), f.in(), pct(*e.FirstRisk), g.in(), pct(*e.SecondRisk)),
+		fmt.Sprintf("%s (%s over %s): %s", capitalise(v.ratio), f.label, g.label, num(*e.RiskRatio)),
 		fmt.Sprintf("Odds ratio: %s", num(*e.OddsRatio)),
-		fmt.Sprintf("%s difference: %s", capitalise(rw), pp(*e.RiskDifference)),
+		fmt.Sprintf("%s (%s minus %s): %s", capitalise(v.diff), f.label, g.label, pp(*e.RiskDifference)),
 	}
 	if e.NNT != nil {
-		var what string
-		switch {
-		case r.Design == "trial" && *e.RiskDifference < 0:
-			what = fmt.Sprintf("Number needed to treat: %s in the %s for one outcome event fewer", count(*e.NNT), r.FirstGroup)
-		case r.Design == "trial":
-			what = fmt.Sprintf("Number needed to treat (or to harm, if the outcome is adverse): %s in the %s for one outcome event more", count(*e.NNT), r.FirstGroup)
-		case *e.RiskDifference > 0:
-			what = fmt.Sprintf("Number needed to harm: %s exposed for one additional case", count(*e.NNT))
-		default:
-			what = fmt.Sprintf("Number needed to be exposed for one case fewer: %s", count(*e.NNT))
-		}
-		s.bullets = append(s.bullets, what+" (1/|difference|, rounded up)")
+		s.bullets = append(s.bullets, nntLine(r, *e.NNT, *e.RiskDifference))
 	}
 	return s
+}
+
+// nntLine states the number needed to treat, to harm or to be exposed.
+// Whether the difference is a benefit or a harm follows from the sign of
+// the difference (first group minus second) and from higher_is_better,
+// which says whether the outcome is desirable.
+func nntLine(r *designs.Result, nnt int, rd float64) string {
+	desirable := r.Spec.HigherIsBetter
+	benefit := (rd > 0) == desirable
+	f, g := groupsOf(r)
+	v := vocabOf(r)
+	trial := r.Design == "trial"
+	name := "Number needed to harm"
+	switch {
+	case benefit && trial:
+		name = "Number needed to treat"
+	case benefit:
+		name = "Number needed to be exposed"
+	}
+	who, person := "people", "person"
+	if trial {
+		who, person = "participants treated", "participant"
+	}
+	event := "outcome event"
+	if r.Design == "cross-sectional" {
+		event = "case"
+	}
+	var what string
+	switch {
+	case desirable && rd > 0:
+		what = "one more " + person + " with the outcome"
+	case desirable:
+		what = "one " + person + " fewer with the outcome"
+	case rd > 0:
+		what = "one " + event + " more"
+	default:
+		what = "one " + event + " fewer"
+	}
+	return fmt.Sprintf("%s (%s against %s): %s, that is %s for every %s %s (1/|%s|, rounded up)", name, f.label, g.label, count(nnt), what, count(nnt), who, v.diff)
 }
 
 func alternativeSection(r *designs.Result) section {
@@ -444,7 +617,7 @@ func alternativeSection(r *designs.Result) section {
 				}
 				sides = append(sides, v+" "+side.name)
 			}
-			line = fmt.Sprintf("%s (%s): %s %s no difference", alt.Name, alt.Short, keyLabel(det.Scale), strings.Join(sides, ", "))
+			line = fmt.Sprintf("%s (%s): %s %s no difference", alt.Name, alt.Short, scaleName(r, det.Scale), strings.Join(sides, ", "))
 		}
 		s.bullets = append(s.bullets, line)
 	}
@@ -458,68 +631,13 @@ func exactSection(r *designs.Result) *section {
 		return nil
 	}
 	s := &section{heading: "Exact power by enumeration"}
-	s.bullets = append(s.bullets, fmt.Sprintf("Exact power of %s at %s: %s (every pair of counts enumerated; no Monte-Carlo error)", r.TestName, sizeList(a.N, r), pct1(*a.ExactPower)))
+	s.bullets = append(s.bullets, fmt.Sprintf("Exact power of %s at %s: %s (every pair of counts enumerated, as in Suissa & Shuster 1985; no Monte-Carlo error)", r.TestName, sizeList(a.N, r), pct1(*a.ExactPower)))
 	if x := a.Exact; x != nil {
 		s.bullets = append(s.bullets,
 			fmt.Sprintf("Smallest first-group size with exact power at or above the target: %s (the closed form gives %s)", count(x.First), count(x.ClosedForm)),
 			fmt.Sprintf("Smallest size beyond which the exact power stays at or above the target: %s (window searched: %s to %s)", count(x.Stable), count(x.Window[0]), count(x.Window[1])))
 	}
 	return s
-}
-
-// simulationSection reports the verification by simulation.
-func simulationSection(r *designs.Result) *section {
-	v := r.Simulation
-	if v == nil {
-		return nil
-	}
-	s := &section{heading: "Verification by simulation"}
-	sizes := count(v.N[0])
-	if len(v.N) == 2 {
-		sizes = fmt.Sprintf("%s and %s", count(v.N[0]), count(v.N[1]))
-	}
-	if v.Partial {
-		s.paras = append(s.paras, fmt.Sprintf("**Partial:** the simulation was stopped after %s replicates; the figures below rest on those alone.", count(int(v.Replicates))))
-	}
-	if len(v.CI) == 2 {
-		s.bullets = append(s.bullets, fmt.Sprintf("Simulated power of %s with %s analysable: **%s** (Monte-Carlo standard error %.2f points; 95%% interval %s to %s; %s replicates, seed %d)",
-			v.TestName, sizes, pct1(v.Power), 100*v.SE, pct1(v.CI[0]), pct1(v.CI[1]), count(int(v.Replicates)), v.Seed))
-		agree := "agrees with it"
-		if !v.Agrees {
-			agree = "parts ways with it (more than 3 standard errors and 1 point)"
-		}
-		what := "Closed form"
-		if r.Method == "exact" {
-			what = "Exact power"
-		}
-
-		s.bullets = append(s.bullets, fmt.Sprintf("%s at the same sizes: %s; the simulation differs by %s points and %s", what, pct1(v.ClosedFormPower), signed2(100*v.Difference), agree))
-	}
-	if v.Type1Error != nil {
-		s.bullets = append(s.bullets, fmt.Sprintf("Type I error simulated at %s: %s (standard error %.2f points), against alpha %g", v.Type1At, pct1(*v.Type1Error), 100**v.Type1SE, *r.Alpha))
-	}
-	if so := v.Solved; so != nil {
-		n := count(so.N[0])
-		if len(so.N) == 2 {
-			n = fmt.Sprintf("%s and %s", count(so.N[0]), count(so.N[1]))
-		}
-		line := fmt.Sprintf("Smallest size whose simulated power reaches the target (same random numbers at every candidate size): %s, with power %s (standard error %.2f points)", n, pct1(so.Power), 100*so.SE)
-		if so.NSE > 0 {
-			line += fmt.Sprintf("; Monte-Carlo uncertainty about ±%.0f in the first group", math.Ceil(so.NSE))
-		}
-		s.bullets = append(s.bullets, line)
-	}
-	s.bullets = append(s.bullets, v.Notes...)
-	return s
-}
-
-// signed2 formats a signed number with two decimals, never "-0.00".
-func signed2(x float64) string {
-	v := fmt.Sprintf("%+.2f", x)
-	if v == "-0.00" {
-		v = "+0.00"
-	}
-	return strings.Replace(v, "-", "−", 1)
 }
 
 // stepsSection lists the steps the computation took, in order, with their

@@ -22,7 +22,9 @@ type section struct {
 	table   [][]string // first row is the header
 	bullets []string
 	ordered bool
-	after   []string // paragraphs after the table and list
+	// afterTable is a second table, after the list (first row the header).
+	afterTable [][]string
+	after      []string // paragraphs after the tables and list
 }
 
 // markdown writes the document as GitHub-flavoured Markdown.
@@ -38,19 +40,7 @@ func (d *document) markdown(w io.Writer) error {
 			b.WriteString(p)
 			b.WriteString("\n\n")
 		}
-		if len(s.table) > 0 {
-			for i, row := range s.table {
-				cells := make([]string, len(row))
-				for j, c := range row {
-					cells[j] = strings.ReplaceAll(c, "|", `\|`)
-				}
-				fmt.Fprintf(&b, "| %s |\n", strings.Join(cells, " | "))
-				if i == 0 {
-					fmt.Fprintf(&b, "|%s\n", strings.Repeat(" --- |", len(row)))
-				}
-			}
-			b.WriteString("\n")
-		}
+		markdownTable(&b, s.table)
 		for i, item := range s.bullets {
 			if s.ordered {
 				fmt.Fprintf(&b, "%d. %s\n", i+1, item)
@@ -61,6 +51,7 @@ func (d *document) markdown(w io.Writer) error {
 		if len(s.bullets) > 0 {
 			b.WriteString("\n")
 		}
+		markdownTable(&b, s.afterTable)
 		for _, p := range s.after {
 			b.WriteString(p)
 			b.WriteString("\n\n")
@@ -76,6 +67,41 @@ func (d *document) markdown(w io.Writer) error {
 	return err
 }
 
+// markdownTable writes a table whose first row is the header.
+func markdownTable(b *strings.Builder, table [][]string) {
+	if len(table) == 0 {
+		return
+	}
+	for i, row := range table {
+		cells := make([]string, len(row))
+		for j, c := range row {
+			cells[j] = strings.ReplaceAll(c, "|", `\|`)
+		}
+		fmt.Fprintf(b, "| %s |\n", strings.Join(cells, " | "))
+		if i == 0 {
+			fmt.Fprintf(b, "|%s\n", strings.Repeat(" --- |", len(row)))
+		}
+	}
+	b.WriteString("\n")
+}
+
+// textTable writes a table as aligned columns.
+func textTable(b *strings.Builder, table [][]string) {
+	if len(table) == 0 {
+		return
+	}
+	tw := tabwriter.NewWriter(b, 0, 0, 2, ' ', 0)
+	for _, row := range table {
+		cells := make([]string, len(row))
+		for j, c := range row {
+			cells[j] = plain(c)
+		}
+		fmt.Fprintln(tw, strings.Join(cells, "\t"))
+	}
+	tw.Flush()
+	b.WriteString("\n")
+}
+
 // text writes the document as plain text, wrapped at 78 columns.
 func (d *document) text(w io.Writer) error {
 	var b strings.Builder
@@ -89,18 +115,7 @@ func (d *document) text(w io.Writer) error {
 			b.WriteString(wrap(plain(p), 78, ""))
 			b.WriteString("\n\n")
 		}
-		if len(s.table) > 0 {
-			tw := tabwriter.NewWriter(&b, 0, 0, 2, ' ', 0)
-			for _, row := range s.table {
-				cells := make([]string, len(row))
-				for j, c := range row {
-					cells[j] = plain(c)
-				}
-				fmt.Fprintln(tw, strings.Join(cells, "\t"))
-			}
-			tw.Flush()
-			b.WriteString("\n")
-		}
+		textTable(&b, s.table)
 		for i, item := range s.bullets {
 			mark := "  - "
 			if s.ordered {
@@ -112,6 +127,7 @@ func (d *document) text(w io.Writer) error {
 		if len(s.bullets) > 0 {
 			b.WriteString("\n")
 		}
+		textTable(&b, s.afterTable)
 		for _, p := range s.after {
 			b.WriteString(wrap(plain(p), 78, ""))
 			b.WriteString("\n\n")

@@ -23,7 +23,7 @@ func paragraph(r *designs.Result) string {
 func methodPhrase(id, name string) string {
 	switch id {
 	case "fleiss-cc":
-		return "Fleiss's formula with the continuity correction of Fleiss, Tytun & Ury (1980)"
+		return "Fleiss's formula (Fleiss, Levin & Paik 2003) with the continuity correction of Fleiss, Tytun & Ury (1980)"
 	case "fleiss":
 		return "Fleiss's formula without continuity correction (Fleiss, Levin & Paik 2003)"
 	case "kelsey":
@@ -35,7 +35,7 @@ func methodPhrase(id, name string) string {
 	case "blackwelder":
 		return "the Wald method of Blackwelder (1982)"
 	case "t":
-		return "the exact power of the t test from the noncentral t distribution (Lenth 1989)"
+		return "the exact power of the t test from the noncentral t distribution (Owen 1965; Lenth 1989)"
 	case "z":
 		return "the normal approximation for means (Chow, Shao & Wang 2008)"
 	case "schoenfeld":
@@ -48,6 +48,18 @@ func methodPhrase(id, name string) string {
 	return name
 }
 
+// testPhrase names the planned analysis: analysis of covariance when the
+// plan adjusts for the baseline, whatever the hypothesis.
+func testPhrase(r *designs.Result) string {
+	switch {
+	case r.Spec.BaselineCorrelation > 0:
+		return "analysis of covariance adjusting for the baseline value"
+	case r.Test == "t-welch":
+		return "Welch's t test (Welch 1947)"
+	}
+	return r.TestName
+}
+
 // intro says what is compared and by which test.
 func intro(b *strings.Builder, r *designs.Result) {
 	s := r.Spec
@@ -57,86 +69,81 @@ func intro(b *strings.Builder, r *designs.Result) {
 		outcome = "the " + r.Outcome + " primary outcome"
 		subject = "The " + r.Outcome + " primary outcome"
 	}
-	first, second := r.FirstGroup, r.SecondGroup
+	f, g := groupsOf(r)
 	alpha := *r.Alpha
 	var test string
 	switch s.Hypothesis {
 	case "non-inferiority":
-		test = fmt.Sprintf("%s at a one-sided alpha of %g", r.TestName, alpha)
+		test = fmt.Sprintf("%s at a one-sided alpha of %g", testPhrase(r), alpha)
 	case "equivalence":
-		test = fmt.Sprintf("two one-sided tests (%s), each at an alpha of %g, which amounts to a %s confidence interval", r.TestName, alpha, pct(1-2*alpha))
+		test = fmt.Sprintf("two one-sided tests (%s; Schuirmann 1987), each at an alpha of %g, which amounts to a %s confidence interval", testPhrase(r), alpha, pct(1-2*alpha))
 	default:
-		name := r.TestName
-		if s.BaselineCorrelation > 0 {
-			name = "analysis of covariance adjusting for the baseline value"
-		}
-		test = fmt.Sprintf("%s at a %s alpha of %g", name, sidesWord(r.Sides), alpha)
+		test = fmt.Sprintf("%s at a %s alpha of %g", testPhrase(r), sidesWord(r.Sides), alpha)
 		if r.Sides == 1 {
-			test += fmt.Sprintf(" (rejecting only when the %s %s)", first, directionWord(r))
+			test += fmt.Sprintf(" (rejecting only when %s %s %s)", f.the(), f.has(), directionWord(r))
 		}
 	}
 	switch {
+	case r.Design == "case-control" && s.PrimaryOutcome != "":
+		fmt.Fprintf(b, "%s %s the primary outcome, %s, and %s %s; the primary analysis compares the proportion exposed between them using %s. ",
+			capitalise(f.the()), f.has(), outcome, g.the(), g.doesNot(), test)
 	case r.Design == "case-control":
-		defines := outcome + " as the outcome that defines a case"
-		if s.PrimaryOutcome == "" {
-			defines = "cases defined by the outcome under study"
-		}
-		fmt.Fprintf(b, "The primary analysis compares the proportion exposed between %s and %s, with %s, using %s. ", first, second, defines, test)
+		fmt.Fprintf(b, "The primary analysis compares the proportion exposed %s using %s. ", between(f, g), test)
 	case r.Design == "cross-sectional":
-		fmt.Fprintf(b, "The survey compares %s between %s and %s respondents using %s. ", meanOrPrevalence(r, outcome), first, second, test)
+		fmt.Fprintf(b, "The survey compares %s %s using %s. ", strings.ToLower(subject[:1])+subject[1:], between(f, g), test)
 	case s.Pairing == "paired":
 		fmt.Fprintf(b, "%s will be compared within pairs (matched pairs, or the same participants before and after) using %s. ", subject, test)
 	case s.Pairing == "crossover":
-		fmt.Fprintf(b, "In a two-period AB/BA crossover, %s will be compared by contrasting the period differences between the two sequences (Senn 2002), using %s. ", strings.ToLower(subject[:1])+subject[1:], test)
+		fmt.Fprintf(b, "In a two-period AB/BA crossover, %s will be compared by contrasting the period differences %s (Senn 2002), using %s. ",
+			strings.ToLower(subject[:1])+subject[1:], between(f, g), test)
 	default:
-		fmt.Fprintf(b, "%s will be compared between the %s and the %s using %s. ", subject, first, second, test)
+		fmt.Fprintf(b, "%s will be compared %s using %s. ", subject, between(f, g), test)
 	}
 	switch {
 	case s.Hypothesis == "non-inferiority" && s.MarginScale == "ratio":
-		fmt.Fprintf(b, "The question is whether the %s is not worse than the %s beyond a non-inferiority margin of %s on the %s scale%s: %s, and the null hypothesis is that the %s, %s over %s, is %s %s. ",
-			first, second, num(s.Margin), ratioWord(s), source(r, "margin"), betterText(s), ratioWord(s), first, second, map[bool]string{true: "at most", false: "at least"}[s.HigherIsBetter], num(s.Margin))
+		fmt.Fprintf(b, "The question is whether the outcome %s is not worse than %s beyond a non-inferiority margin of %s on the %s scale%s: %s, and the null hypothesis is that the %s, %s over %s, is %s %s%s. ",
+			f.in(), g.in(), num(s.Margin), ratioWord(r), source(r, "margin"), betterText(r), ratioWord(r), f.label, g.label,
+			map[bool]string{true: "at most", false: "at least"}[s.HigherIsBetter], num(s.Margin), restricted(r))
 	case s.Hypothesis == "non-inferiority":
-		fmt.Fprintf(b, "The question is whether the %s is not worse than the %s by more than the non-inferiority margin of %s (%s)%s. ", first, second, marginText(s), betterText(s), source(r, "margin"))
+		fmt.Fprintf(b, "The question is whether the outcome %s is not worse than %s by more than the non-inferiority margin of %s (%s%s). ", f.in(), g.in(), marginText(s), betterText(r), srcSemi(r, "margin"))
 	case s.Hypothesis == "equivalence" && s.MarginScale == "ratio":
-		fmt.Fprintf(b, "The question is whether the %s between the arms lies within the equivalence margins of %s and %s%s. ", ratioWord(s), num(1/s.Margin), num(s.Margin), source(r, "margin"))
+		fmt.Fprintf(b, "The question is whether the %s, %s over %s, lies within the equivalence margins of %s and %s%s%s. ", ratioWord(r), f.label, g.label, num(1/s.Margin), num(s.Margin), source(r, "margin"), restricted(r))
 	case s.Hypothesis == "equivalence":
 		fmt.Fprintf(b, "The question is whether the difference between the arms lies within the equivalence margin of ±%s%s. ", marginText(s), source(r, "margin"))
 	}
 	if a := r.Result; a.Arms > 2 {
-		what := "each intervention arm against the control arm"
+		what := fmt.Sprintf("each of the %d intervention arms against %s", a.Arms-1, g.allocatedTo())
 		if s.Comparisons == "all-pairs" {
 			what = "every pair of arms"
 		}
-		fmt.Fprintf(b, "The trial has %d arms; the %d comparisons (%s) each use alpha %g/%d = %.4g (Bonferroni), and the analysis will use Holm's procedure, which keeps the same family-wise error and is at least as powerful. ",
+		fmt.Fprintf(b, "The trial has %d arms; the %d comparisons (%s) each use alpha %g/%d = %.4g (Bonferroni; Dunn 1961), and the analysis will use Holm's procedure (Holm 1979), which keeps the same family-wise error and is at least as powerful. ",
 			a.Arms, a.Comparisons, what, alpha, a.Comparisons, *a.AlphaPerComparison)
 	}
+}
+
+// restricted cites the restricted maximum-likelihood risks of a score test
+// on a ratio margin.
+func restricted(r *designs.Result) string {
+	if r.Outcome != "binary" {
+		return ""
+	}
+	return "; the score test uses the " + vocabOf(r).noun + "s restricted to the margin (Miettinen & Nurminen 1985)"
 }
 
 // directionWord says which way a one-sided superiority test looks.
 func directionWord(r *designs.Result) string {
 	lower := r.Spec.Direction < 0
-	what := "risk"
+	what := vocabOf(r).noun
 	switch {
 	case r.Outcome == "continuous":
 		what = "mean"
 	case r.Outcome == "time-to-event":
 		what = "hazard"
-	case r.Design == "case-control":
-		what = "exposure"
-	case r.Design == "cross-sectional":
-		what = "prevalence"
 	}
 	if lower {
-		return "has the lower " + what
+		return "the lower " + what
 	}
-	return "has the higher " + what
-}
-
-func meanOrPrevalence(r *designs.Result, outcome string) string {
-	if r.Outcome == "continuous" {
-		return "the mean of " + outcome
-	}
-	return "the prevalence of " + outcome
+	return "the higher " + what
 }
 
 // marginText states the margin on the outcome's scale.
@@ -147,50 +154,63 @@ func marginText(s *designs.Spec) string {
 	return num(s.Margin)
 }
 
-func betterText(s *designs.Spec) string {
-	if s.Outcome == "time-to-event" {
-		if s.HigherIsBetter {
-			return "the event is desirable, so a higher hazard is better"
-		}
+// betterText says which values of the outcome are better.
+func betterText(r *designs.Result) string {
+	s := r.Spec
+	switch {
+	case s.Outcome == "time-to-event" && s.HigherIsBetter:
+		return "the event is desirable, so a higher hazard is better"
+	case s.Outcome == "time-to-event":
 		return "the event is harmful, so a lower hazard is better"
-	}
-	if s.HigherIsBetter {
+	case s.Outcome == "binary" && s.HigherIsBetter:
+		return "the outcome is desirable, so a higher proportion is better"
+	case s.Outcome == "binary":
+		return "the outcome is adverse, so a lower risk is better"
+	case s.HigherIsBetter:
 		return "a higher value of the outcome is better"
 	}
 	return "a lower value of the outcome is better"
 }
 
 // ratioWord names the ratio of a ratio margin.
-func ratioWord(s *designs.Spec) string {
-	if s.Outcome == "time-to-event" {
+func ratioWord(r *designs.Result) string {
+	if r.Outcome == "time-to-event" {
 		return "hazard ratio"
 	}
-	return "risk ratio"
+	return vocabOf(r).ratio
 }
 
 // assume states the assumptions behind the effect.
 func assume(b *strings.Builder, r *designs.Result) {
 	s := r.Spec
-	first, second := r.FirstGroup, r.SecondGroup
+	f, g := groupsOf(r)
+	v := vocabOf(r)
 	refSrc := source(r, s.ReferenceKey)
 	eff := source(r, s.EffectKey)
 	e := r.Result.Effect
 	switch r.Outcome {
 	case "continuous":
+		if r.Design == "cross-sectional" {
+			fmt.Fprintf(b, "We expect %s to make up %s of those surveyed%s. ", f.the(), pct(s.ExposurePrevalence), source(r, "exposure_prevalence"))
+		}
 		assumeMeans(b, r)
 		return
 	case "time-to-event":
-		fmt.Fprintf(b, "We assume exponential survival in the %s with %s (a hazard of %.4g per %s%s)",
-			second, survivalText(s), s.ControlHazard, singular(s.TimeUnit), srcSemi(r, controlKey(s)))
+		fmt.Fprintf(b, "We assume exponential survival %s with %s (a hazard of %.4g per %s%s)",
+			g.in(), survivalText(s), s.ControlHazard, singular(s.TimeUnit), srcSemi(r, controlKey(s)))
 		switch {
 		case r.Solve == "effect":
 		case s.Hypothesis != "superiority" && s.HazardRatio == 1:
-			b.WriteString(" and assume the same hazard in both arms")
+			b.WriteString(" and the same hazard in both arms")
 		default:
 			fmt.Fprintf(b, " and plan for a hazard ratio of %s%s", num(s.HazardRatio), eff)
 		}
-		fmt.Fprintf(b, ". Participants enter uniformly over %s %s and are followed for %s %s after the last one enters (%s %s in all)",
-			num(s.Accrual), s.TimeUnit, num(s.FollowUp), s.TimeUnit, num(s.Accrual+s.FollowUp), s.TimeUnit)
+		if s.Accrual > 0 {
+			fmt.Fprintf(b, ". Participants enter uniformly over %s and are followed for %s after the last one enters (%s in all)",
+				duration(s.Accrual, s.TimeUnit), duration(s.FollowUp, s.TimeUnit), duration(s.Accrual+s.FollowUp, s.TimeUnit))
+		} else {
+			fmt.Fprintf(b, ". All participants enter together and are followed for %s", duration(s.FollowUp, s.TimeUnit))
+		}
 		if s.Dropout > 0 {
 			fmt.Fprintf(b, ", with %s lost to follow-up per %s%s", pct(s.Dropout), singular(s.TimeUnit), source(r, "dropout"))
 		}
@@ -201,28 +221,38 @@ func assume(b *strings.Builder, r *designs.Result) {
 	if r.Solve == "effect" {
 		switch r.Design {
 		case "case-control":
-			fmt.Fprintf(b, "We assume that %s of %s are exposed%s. ", pct(s.P2), second, refSrc)
+			fmt.Fprintf(b, "We assume that %s of %s are exposed%s. ", pct(s.P2), g.the(), refSrc)
 		case "cross-sectional":
-			fmt.Fprintf(b, "We expect %s of those surveyed to be exposed%s and a prevalence of %s among the unexposed%s. ", pct(s.ExposurePrevalence), source(r, "exposure_prevalence"), pct(s.P2), refSrc)
+			fmt.Fprintf(b, "We expect %s to make up %s of those surveyed%s and a %s of %s %s%s. ", f.the(), pct(s.ExposurePrevalence), source(r, "exposure_prevalence"), v.noun, pct(s.P2), g.in(), refSrc)
 		default:
-			fmt.Fprintf(b, "We assume a %s of %s in the %s%s. ", riskWord(r.Design), pct(s.P2), second, refSrc)
+			fmt.Fprintf(b, "We assume a %s of %s %s%s. ", v.noun, pct(s.P2), g.in(), refSrc)
 		}
 		return
 	}
 	switch {
 	case r.Design == "case-control":
 		fmt.Fprintf(b, "We assume that %s of %s are exposed%s and plan for an odds ratio of %s%s, which means that %s of %s are exposed. ",
-			pct(s.P2), second, refSrc, num(*e.OddsRatio), eff, pct(*e.CaseExposure), first)
+			pct(s.P2), g.the(), refSrc, num(*e.OddsRatio), eff, pct(*e.CaseExposure), f.the())
 	case r.Design == "cross-sectional":
-		fmt.Fprintf(b, "We expect %s of those surveyed to be exposed%s, a prevalence of %s among the unexposed%s and of %s among the exposed%s: a prevalence ratio of %s (difference %s; odds ratio %s). ",
-			pct(s.ExposurePrevalence), source(r, "exposure_prevalence"), pct(s.P2), refSrc, pct(*e.FirstRisk), eff, num(*e.RiskRatio), pp(*e.RiskDifference), num(*e.OddsRatio))
+		fmt.Fprintf(b, "We expect %s to make up %s of those surveyed%s, a %s of %s %s%s and of %s %s%s: a %s of %s (%s %s; odds ratio %s). ",
+			f.the(), pct(s.ExposurePrevalence), source(r, "exposure_prevalence"), v.noun, pct(s.P2), g.in(), refSrc, pct(*e.FirstRisk), f.in(), eff,
+			v.ratio, num(*e.RiskRatio), diffWord(v), pp(*e.RiskDifference), num(*e.OddsRatio))
 	case s.Hypothesis != "superiority" && s.P1 == s.P2:
-		fmt.Fprintf(b, "We assume the same risk of %s in both arms%s. ", pct(s.P2), refSrc)
+		fmt.Fprintf(b, "We assume the same %s of %s in both arms%s. ", v.noun, pct(s.P2), refSrc)
 	default:
-		fmt.Fprintf(b, "We assume a risk of %s in the %s%s and plan for a risk of %s in the %s%s: a risk ratio of %s (risk difference %s; odds ratio %s). ",
-			pct(s.P2), second, refSrc, pct(*e.FirstRisk), first, eff, num(*e.RiskRatio), pp(*e.RiskDifference), num(*e.OddsRatio))
+		fmt.Fprintf(b, "We assume a %s of %s %s%s and plan for a %s of %s %s%s: a %s of %s (%s %s; odds ratio %s). ",
+			v.noun, pct(s.P2), g.in(), refSrc, v.noun, pct(*e.FirstRisk), f.in(), eff, v.ratio, num(*e.RiskRatio), diffWord(v), pp(*e.RiskDifference), num(*e.OddsRatio))
 	}
 	dilution(b, r)
+}
+
+// diffWord is the difference's name inside parentheses after its ratio:
+// "risk difference", or "difference" when the noun is a long phrase.
+func diffWord(v vocab) string {
+	if v.noun == "proportion" {
+		return "difference"
+	}
+	return v.diff
 }
 
 func controlKey(s *designs.Spec) string {
@@ -238,7 +268,7 @@ func controlKey(s *designs.Spec) string {
 func survivalText(s *designs.Spec) string {
 	for _, g := range s.Given {
 		if g.Key == "control_median" {
-			return fmt.Sprintf("a median survival of %s %s", g.Value, s.TimeUnit)
+			return "a median survival of " + durationText(g.Value, s.TimeUnit)
 		}
 	}
 	var surv, t string
@@ -250,27 +280,13 @@ func survivalText(s *designs.Spec) string {
 			t = g.Value
 		}
 	}
-	return fmt.Sprintf("a survival of %s at %s %s", surv, t, s.TimeUnit)
-}
-
-// singular drops a plural s from a time unit: months → month.
-func singular(unit string) string {
-	if unit == "" {
-		return unit
-	}
-	if strings.HasSuffix(unit, "s") && unit != "time units" {
-		return strings.TrimSuffix(unit, "s")
-	}
-	if unit == "time units" {
-		return "time unit"
-	}
-	return unit
+	return fmt.Sprintf("a survival of %s at %s", surv, durationText(t, s.TimeUnit))
 }
 
 // assumeMeans states the assumptions of a continuous outcome.
 func assumeMeans(b *strings.Builder, r *designs.Result) {
 	s := r.Spec
-	sdSrc := source(r, "sd")
+	f, g := groupsOf(r)
 	switch {
 	case s.Pairing != "" && s.WithinCorrelation != 0:
 		fmt.Fprintf(b, "We assume a standard deviation of %s for one measurement%s and a correlation of %s between a participant's two measurements, which give a standard deviation of %s for the difference (sd √(2(1 − ρ)))",
@@ -278,29 +294,46 @@ func assumeMeans(b *strings.Builder, r *designs.Result) {
 	case s.Pairing != "":
 		fmt.Fprintf(b, "We assume a standard deviation of %s for a participant's difference between the two measurements%s", num(s.SD1), orSource(r, "sd_difference", "sd"))
 	case s.RawSD1 != s.RawSD2:
-		fmt.Fprintf(b, "We assume standard deviations of %s in the %s and %s in the %s%s", num(s.RawSD1), r.FirstGroup, num(s.RawSD2), r.SecondGroup, orSource(r, "sd_first", "sd_second"))
+		fmt.Fprintf(b, "We assume standard deviations of %s %s and %s %s%s", num(s.RawSD1), f.in(), num(s.RawSD2), g.in(), orSource(r, "sd_first", "sd_second"))
 	default:
-		fmt.Fprintf(b, "We assume a standard deviation of %s%s", num(s.RawSD1), sdSrc)
+		fmt.Fprintf(b, "We assume a standard deviation of %s%s", num(s.RawSD1), source(r, "sd"))
 	}
-	if s.BaselineCorrelation > 0 {
-		fmt.Fprintf(b, "; adjusting for the baseline measurement by analysis of covariance (correlation %s with the outcome%s) shrinks the variance by the factor 1 − ρ² = %.4g, to a residual standard deviation of %s (Borm, Fransen & Lemmens 2007)",
-			num(s.BaselineCorrelation), srcSemi(r, "baseline_correlation"), 1-s.BaselineCorrelation*s.BaselineCorrelation, num(s.SD1))
-	}
+	// The effect joins the first sentence with "and", unless the baseline
+	// adjustment or the correlation of a pair has made that sentence long:
+	// then it has its own.
+	verb, effect := "", ""
 	if r.Solve != "effect" {
 		if s.Hypothesis != "superiority" && s.MeanDiff == 0 {
-			b.WriteString("; we assume no true difference between the arms")
+			verb, effect = "assume", "no true difference between the arms"
 		} else {
-			d := *r.Result.Effect.StandardizedDifference
 			label := "Cohen's d"
 			if s.Pairing != "" {
 				label = "d_z, in standard deviations of the difference"
 			}
-			fmt.Fprintf(b, "; we plan for a difference in means of %s (%s = %s%s)", num(s.MeanDiff), label, num(d), srcSemi(r, "mean_difference"))
+			verb, effect = "plan for", fmt.Sprintf("a difference in means of %s (%s = %s%s)", num(s.MeanDiff), label, num(*r.Result.Effect.StandardizedDifference), srcSemi(r, "mean_difference"))
 		}
+	}
+	long := s.Pairing != "" && s.WithinCorrelation != 0
+	if s.BaselineCorrelation > 0 {
+		long = true
+		fmt.Fprintf(b, "; adjusting for the baseline measurement by analysis of covariance (correlation %s with the outcome%s) shrinks the variance by the factor 1 − ρ² = %.4g, to a residual standard deviation of %s (Borm, Fransen & Lemmens 2007)",
+			num(s.BaselineCorrelation), srcSemi(r, "baseline_correlation"), 1-s.BaselineCorrelation*s.BaselineCorrelation, num(s.SD1))
+	}
+	switch {
+	case effect == "":
+	case long:
+		fmt.Fprintf(b, ". We %s %s", verb, effect)
+	default:
+		if verb == "assume" {
+			verb = "" // "We assume a standard deviation of 2.2 and no true difference"
+		} else {
+			verb += " "
+		}
+		fmt.Fprintf(b, " and %s%s", verb, effect)
 	}
 	b.WriteString(". ")
 	if s.Test == "t-welch" {
-		b.WriteString("The analysis uses Welch's test, whose degrees of freedom follow the Welch–Satterthwaite approximation. ")
+		b.WriteString("Welch's test takes its degrees of freedom from the Welch–Satterthwaite approximation. ")
 	}
 	dilution(b, r)
 }
@@ -332,14 +365,12 @@ func dilution(b *strings.Builder, r *designs.Result) {
 	var seen string
 	switch {
 	case d.MeanDifference != nil:
-		seen = "a difference in means of " + num(*d.MeanDifference)
+		seen = "a difference in means of " + num(*d.MeanDifference) + " (Lachin & Foulkes 1986)"
 	case d.HazardRatio != nil:
-		seen = "a hazard ratio of " + num(*d.HazardRatio)
+		seen = "a hazard ratio of " + num(*d.HazardRatio) + " (Lachin & Foulkes 1986)"
 	default:
-		seen = fmt.Sprintf("risks of %s and %s (risk ratio %s; Lachin & Foulkes 1986)", pct(*d.FirstRisk), pct(*d.SecondRisk), num(*d.RiskRatio))
-	}
-	if !strings.Contains(seen, "Lachin") {
-		seen += " (Lachin & Foulkes 1986)"
+		v := vocabOf(r)
+		seen = fmt.Sprintf("%ss of %s and %s (%s %s; Lachin & Foulkes 1986)", v.noun, pct(*d.FirstRisk), pct(*d.SecondRisk), v.ratio, num(*d.RiskRatio))
 	}
 	fmt.Fprintf(b, "With %s, an intention-to-treat analysis sees %s. ", strings.Join(parts, " and "), seen)
 }
@@ -347,31 +378,45 @@ func dilution(b *strings.Builder, r *designs.Result) {
 // dilutionParts names the non-adherence and contamination assumed.
 func dilutionParts(r *designs.Result) []string {
 	s := r.Spec
+	f, g := groupsOf(r)
 	var parts []string
 	if s.NonAdherence > 0 {
-		parts = append(parts, fmt.Sprintf("%s of the %s not receiving the intervention%s", pct(s.NonAdherence), r.FirstGroup, source(r, "non_adherence")))
+		parts = append(parts, fmt.Sprintf("%s of those allocated to %s not receiving the intervention%s", pct(s.NonAdherence), f.allocatedTo(), source(r, "non_adherence")))
 	}
 	if s.Contamination > 0 {
-		parts = append(parts, fmt.Sprintf("%s of the %s receiving the intervention nonetheless%s", pct(s.Contamination), r.SecondGroup, source(r, "contamination")))
+		parts = append(parts, fmt.Sprintf("%s of those allocated to %s receiving the intervention nonetheless%s", pct(s.Contamination), g.allocatedTo(), source(r, "contamination")))
 	}
 	return parts
+}
+
+// allocationPhrase states the allocation without the labels, which the
+// sizes that follow it name: "with equal allocation", "with 1:2
+// allocation".
+func allocationPhrase(r *designs.Result) string {
+	s := r.Spec
+	switch {
+	case r.Design == "cross-sectional":
+		return "with the groups in the proportions expected among those surveyed"
+	case s.Pairing == "paired":
+		return ""
+	}
+	alloc := "with " + allocation(*r.Ratio) + " allocation"
+	if *r.Ratio == 1 {
+		alloc = "with equal allocation"
+	}
+	if s.Pairing == "crossover" {
+		alloc += " between the sequences"
+	}
+	return alloc
 }
 
 // conclude states the answer.
 func conclude(b *strings.Builder, r *designs.Result) {
 	s := r.Spec
 	a := r.Result
-	first, second := r.FirstGroup, r.SecondGroup
+	f, g := groupsOf(r)
 	method := methodPhrase(r.Method, r.MethodName)
-	alloc := fmt.Sprintf("with %s allocation (%s to %s)", allocation(*r.Ratio), first, second)
-	switch {
-	case r.Design == "cross-sectional":
-		alloc = "with the groups in proportion to the exposure"
-	case s.Pairing == "paired":
-		alloc = ""
-	case s.Pairing == "crossover":
-		alloc = fmt.Sprintf("with %s allocation between the sequences", allocation(*r.Ratio))
-	}
+	alloc := allocationPhrase(r)
 	switch r.Solve {
 	case "n":
 		target := "To reach a power of at least " + pct1(*r.Power)
@@ -384,27 +429,27 @@ func conclude(b *strings.Builder, r *designs.Result) {
 			if a.Arms > 2 {
 				per, all = " per comparison", "for each comparison"
 			}
-			fmt.Fprintf(b, "%s, %s requires %s events%s; with the expected probabilities of an observed event, that is %s and %s, %s, who are expected to yield %.1f events between them; the achieved power is %s. ",
-				target, method, count(a.Events), per, members(a.N[0], first), members(a.N[1], second), all, *a.ExpectedEvents, pct1(*a.AchievedPower))
+			fmt.Fprintf(b, "%s, %s requires %s events%s; with the expected probabilities of an observed event (Lachin & Foulkes 1986), that is %s and %s, %s, who are expected to yield %.1f events between them; the achieved power is %s. ",
+				target, method, count(a.Events), per, f.size(a.N[0]), g.size(a.N[1]), all, *a.ExpectedEvents, pct1(*a.AchievedPower))
 		case s.Pairing == "paired":
 			fmt.Fprintf(b, "%s, %s requires %s pairs; the achieved power is %s. ", target, method, count(a.N[0]), pct1(*a.AchievedPower))
 		case r.Design == "cross-sectional":
-			fmt.Fprintf(b, "%s, %s requires %s analysable respondents, of whom about %s are expected to be exposed and %s unexposed; the achieved power at these numbers is %s. ",
-				target, method, count(a.Total), count(a.N[0]), count(a.N[1]), pct1(*a.AchievedPower))
+			fmt.Fprintf(b, "%s, %s requires %s analysable respondents, of whom about %s and %s are expected; the achieved power at these numbers is %s. ",
+				target, method, count(a.Total), f.size(a.N[0]), g.size(a.N[1]), pct1(*a.AchievedPower))
 		case a.Arms > 2:
 			fmt.Fprintf(b, "%s, %s requires, for each comparison, %s and %s; the achieved power at these numbers is %s. ",
-				target, method, members(a.N[0], first), members(a.N[1], second), pct1(*a.AchievedPower))
+				target, method, f.size(a.N[0]), g.size(a.N[1]), pct1(*a.AchievedPower))
 		case s.Cluster != nil && a.Clusters != nil:
-			fmt.Fprintf(b, "%s, a t test on the cluster summaries (%d degrees of freedom), with the design effect below, requires %s participants in the %s and %s in the %s, %s analysable in all; the achieved power at these numbers is %s. ",
-				target, a.Clusters[0]+a.Clusters[1]-2, count(a.N[0]), first, count(a.N[1]), second, count(a.Total), pct1(*a.AchievedPower))
+			fmt.Fprintf(b, "%s, a t test on the cluster summaries (%d degrees of freedom), with the design effect below, requires %s and %s, %s analysable in all; the achieved power at these numbers is %s. ",
+				target, a.Clusters[0]+a.Clusters[1]-2, f.size(a.N[0]), g.size(a.N[1]), count(a.Total), pct1(*a.AchievedPower))
 		default:
 			fmt.Fprintf(b, "%s, %s requires %s and %s, %s analysable in all; the achieved power at these numbers is %s. ",
-				target, method, members(a.N[0], first), members(a.N[1], second), count(a.Total), pct1(*a.AchievedPower))
+				target, method, f.size(a.N[0]), g.size(a.N[1]), count(a.Total), pct1(*a.AchievedPower))
 		}
 		clusterSentence(b, r)
 		armsSentence(b, r)
 		if a.UndilutedN != nil && fmt.Sprint(a.UndilutedN) != fmt.Sprint(a.N) {
-			fmt.Fprintf(b, "Without the dilution, %s would have sufficed. ", sizeList(a.UndilutedN, r))
+			fmt.Fprintf(b, "Without the dilution, %s would have sufficed. ", groupSizes(r, a.UndilutedN))
 		}
 		inflation(b, r)
 	case "power":
@@ -444,11 +489,7 @@ func conclude(b *strings.Builder, r *designs.Result) {
 			if side.v == nil {
 				continue
 			}
-			text := fmt.Sprintf("%s %s of %s", article(keyLabel(det.Scale)), keyLabel(det.Scale), valueOn(det.Scale, *side.v))
-			if side.e != nil && (side.e.FirstRisk != nil || side.e.CaseExposure != nil) {
-				text += " (" + restateShort(r, side.e) + ")"
-			}
-			sides = append(sides, text)
+			sides = append(sides, detectablePhrase(r, det.Scale, *side.v, side.e))
 		}
 		if len(sides) == 0 {
 			b.WriteString(": no effect in either direction reaches that power. ")
@@ -456,16 +497,38 @@ func conclude(b *strings.Builder, r *designs.Result) {
 			fmt.Fprintf(b, " at %s. ", strings.Join(sides, " or "))
 		}
 		if dd := det.Diluted; dd != nil && len(sides) > 0 {
-			var seen []string
+			var seen []float64
 			for _, v := range []*float64{dd.Lower, dd.Upper} {
 				if v != nil {
-					seen = append(seen, valueOn(det.Scale, *v))
+					seen = append(seen, *v)
 				}
 			}
-			fmt.Fprintf(b, "These are the effects of receiving the intervention; with %s, an intention-to-treat analysis sees %s %s of %s (Lachin & Foulkes 1986). ",
-				strings.Join(dilutionParts(r), " and "), article(keyLabel(det.Scale)), keyLabel(det.Scale), strings.Join(seen, " or "))
+			fmt.Fprintf(b, "These are the effects of receiving the intervention; with %s, an intention-to-treat analysis sees %s (Lachin & Foulkes 1986). ",
+				strings.Join(dilutionParts(r), " and "), valuesOn(r, det.Scale, seen))
 		}
 	}
+}
+
+// detectablePhrase states one detectable effect: "a risk ratio of 0.33
+// (risk 1.65% in the exposed against 5% in the unexposed)", or on the
+// first group's own risk "a risk of 9.55% in the exposed (against 5% in
+// the unexposed)".
+func detectablePhrase(r *designs.Result, scale string, v float64, e *designs.Effect) string {
+	f, g := groupsOf(r)
+	voc := vocabOf(r)
+	if firstRiskScale(scale) && e != nil {
+		first, second := e.FirstRisk, e.SecondRisk
+		if e.CaseExposure != nil {
+			return fmt.Sprintf("%s of %s exposed (against %s of %s)", pct(*e.CaseExposure), f.the(), pct(*e.ControlExposure), g.the())
+		}
+		return fmt.Sprintf("a %s of %s %s (against %s %s)", voc.noun, pct(*first), f.in(), pct(*second), g.in())
+	}
+	name := scaleName(r, scale)
+	text := fmt.Sprintf("%s %s of %s", article(name), name, valueOn(scale, v))
+	if e != nil && (e.FirstRisk != nil || e.CaseExposure != nil) {
+		text += " (" + restateShort(r, e) + ")"
+	}
+	return text
 }
 
 // sizeList phrases analysable sizes: "12 pairs" or "20 and 20".
@@ -484,26 +547,21 @@ func sizeList(n []int, r *designs.Result) string {
 // 2 intervention arms and 94 in the control arm".
 func groupSizes(r *designs.Result, n []int) string {
 	a := r.Result
+	f, g := groupsOf(r)
 	switch {
+	case len(n) == 1:
+		return sizeList(n, r)
 	case a.Arms > 2 && r.Spec.Comparisons == "all-pairs":
 		return fmt.Sprintf("%s in each of the %d arms", count(n[0]), a.Arms)
 	case a.Arms > 2:
-		arms := fmt.Sprintf("%d arms compared with the %s", a.Arms-1, r.SecondGroup)
-		if l := r.FirstGroup; strings.HasSuffix(l, " arm") || strings.HasSuffix(l, " group") {
-			arms = fmt.Sprintf("%d %ss", a.Arms-1, l)
-		}
-		return fmt.Sprintf("%s in each of the %s and %s", count(n[0]), arms, members(n[1], r.SecondGroup))
+		return fmt.Sprintf("%s in each of the %d intervention arms and %s", count(n[0]), a.Arms-1, g.size(n[1]))
 	}
-	return members(n[0], r.FirstGroup) + " and " + members(n[1], r.SecondGroup)
+	return f.size(n[0]) + " and " + g.size(n[1])
 }
 
 // enrolList phrases the enrolment per group.
 func enrolList(r *designs.Result) string {
-	a := r.Result
-	if len(a.Enrol) == 1 {
-		return sizeList(a.Enrol, r)
-	}
-	return groupSizes(r, a.Enrol)
+	return groupSizes(r, r.Result.Enrol)
 }
 
 // clusterSentence describes a cluster design.
@@ -515,11 +573,22 @@ func clusterSentence(b *strings.Builder, r *designs.Result) {
 	}
 	deff := "1 + (m − 1) ICC (Donner & Klar 2000)"
 	if c.SizeCV > 0 {
-		deff = fmt.Sprintf("1 + ((cv² + 1) m − 1) ICC with a cluster-size coefficient of variation of %s (Eldridge, Ashby & Kerry 2006)", num(c.SizeCV))
+		deff = fmt.Sprintf("1 + ((cv² + 1) m − 1) ICC (Donner & Klar 2000; Eldridge, Ashby & Kerry 2006), with a cluster-size coefficient of variation of %s", num(c.SizeCV))
 	}
-	fmt.Fprintf(b, "Clusters of %s participants on average with an intracluster correlation of %s%s give a design effect of %.4g, from %s. The arms need %s and %s clusters to enrol them, which bring %s and %s participants; the analysis is a t test on cluster summaries with %d degrees of freedom. ",
-		num(c.Size), num(c.ICC), source(r, "cluster.icc"), *a.DesignEffect, deff, count(a.Clusters[0]), count(a.Clusters[1]),
-		count(a.WholeClusters[0]), count(a.WholeClusters[1]), a.Clusters[0]+a.Clusters[1]-2)
+	f, g := groupsOf(r)
+	fmt.Fprintf(b, "Clusters of %s participants on average with an intracluster correlation of %s%s give a design effect of %.4g, from %s. Enrolling them takes %s and %s, which bring %s and %s participants. ",
+		num(c.Size), num(c.ICC), source(r, "cluster.icc"), *a.DesignEffect, deff,
+		clustersIn(f, a.Clusters[0]), clustersIn(g, a.Clusters[1]),
+		count(a.WholeClusters[0]), count(a.WholeClusters[1]))
+}
+
+// clustersIn phrases a number of clusters for a group: "29 clusters in
+// the club schools", "12 clusters for participants receiving home visits".
+func clustersIn(g group, k int) string {
+	if g.form == formTreatment {
+		return fmt.Sprintf("%s clusters for %s", count(k), g.the())
+	}
+	return fmt.Sprintf("%s clusters %s", count(k), g.in())
 }
 
 // armsSentence gives the totals of a trial with several arms.
@@ -532,7 +601,8 @@ func armsSentence(b *strings.Builder, r *designs.Result) {
 		fmt.Fprintf(b, "Each of the %d arms has %s analysable participants, %s in all. ", a.Arms, count(a.N[0]), count(a.Total))
 		return
 	}
-	fmt.Fprintf(b, "Each of the %d intervention arms has %s analysable participants and the control arm %s, %s in all. ", a.Arms-1, count(a.N[0]), count(a.N[1]), count(a.Total))
+	_, g := groupsOf(r)
+	fmt.Fprintf(b, "Each of the %d intervention arms has %s analysable participants and %s %s, %s in all. ", a.Arms-1, count(a.N[0]), g.allocatedTo(), count(a.N[1]), count(a.Total))
 }
 
 // inflation describes the design effect and attrition steps.
@@ -555,12 +625,13 @@ func inflation(b *strings.Builder, r *designs.Result) {
 		return
 	}
 	if r.Design == "cross-sectional" {
+		f, g := groupsOf(r)
 		if r.DesignEff > 1 {
-			fmt.Fprintf(b, "These numbers include a design effect of %g. ", r.DesignEff)
+			fmt.Fprintf(b, "These numbers include a design effect of %g%s. ", r.DesignEff, source(r, "design_effect"))
 		}
 		if r.Attrition > 0 {
-			fmt.Fprintf(b, "Allowing for %s non-response, we will invite %s people (about %s exposed and %s unexposed).",
-				pct(r.Attrition), count(a.EnrolTotal), count(a.Enrol[0]), count(a.Enrol[1]))
+			fmt.Fprintf(b, "Allowing for %s non-response%s, we will invite %s people (about %s and %s).",
+				pct(r.Attrition), source(r, "attrition"), count(a.EnrolTotal), f.size(a.Enrol[0]), g.size(a.Enrol[1]))
 		} else {
 			fmt.Fprintf(b, "No non-response is expected, so we will survey %s people.", count(a.EnrolTotal))
 		}
@@ -568,8 +639,8 @@ func inflation(b *strings.Builder, r *designs.Result) {
 	}
 	switch {
 	case r.Spec.Cluster != nil && r.Attrition > 0:
-		fmt.Fprintf(b, "Allowing for %s attrition, we will enrol %s participants in the %s and %s in the %s, %s in total.",
-			pct(r.Attrition), count(a.Enrol[0]), r.FirstGroup, count(a.Enrol[1]), r.SecondGroup, count(a.EnrolTotal))
+		fmt.Fprintf(b, "Allowing for %s attrition, we will enrol %s, %s in total.",
+			pct(r.Attrition), groupSizes(r, a.Enrol), count(a.EnrolTotal))
 	case r.Spec.Cluster != nil:
 		fmt.Fprintf(b, "No attrition is expected, so the enrolment target is %s in total.", count(a.EnrolTotal))
 	case r.DesignEff > 1 && r.Attrition > 0:
@@ -591,20 +662,26 @@ func precisionParagraph(r *designs.Result) string {
 	var b strings.Builder
 	outcome := s.PrimaryOutcome
 	if outcome == "" {
-		outcome = "the outcome"
+		outcome = "the binary outcome under study"
 	}
-	fmt.Fprintf(&b, "The survey will estimate the prevalence of %s, expected to be about %s%s, with a %s confidence interval (Wald, normal approximation; Cochran 1977). ",
+	fmt.Fprintf(&b, "The primary outcome is %s, expected in about %s of the population%s; the survey will estimate this proportion with a %s confidence interval (Wald, normal approximation; Cochran 1977). ",
 		outcome, pct(s.ExpectedPrevalence), source(r, "expected_prevalence"), pct(s.Confidence))
 	marg := strings.TrimSuffix(pct(*a.Margin), "%")
 	if r.Solve == "n" {
-		fmt.Fprintf(&b, "For a margin of ±%s percentage points, simple random sampling needs n₀ = %.2f respondents (unrounded)", marg, a.N0)
-		if r.DesignEff > 1 {
-			fmt.Fprintf(&b, "; the design effect of %g%s raises this", r.DesignEff, source(r, "design_effect"))
+		adjusted := r.DesignEff != 1 || s.Population > 0
+		if !adjusted {
+			fmt.Fprintf(&b, "For a margin of ±%s percentage points, simple random sampling needs n₀ = %.2f, rounded up to %s respondents. ", marg, a.N0, count(a.Total))
+		} else {
+			fmt.Fprintf(&b, "For a margin of ±%s percentage points, simple random sampling would need n₀ = %.2f", marg, a.N0)
+			var changes []string
+			if r.DesignEff != 1 {
+				changes = append(changes, fmt.Sprintf("the design effect of %g%s raises this", r.DesignEff, source(r, "design_effect")))
+			}
+			if s.Population > 0 {
+				changes = append(changes, fmt.Sprintf("the finite population of %s lowers it", count(s.Population)))
+			}
+			fmt.Fprintf(&b, "; %s, to %.2f, rounded up to %s respondents. ", strings.Join(changes, " and "), a.NStar, count(a.Total))
 		}
-		if s.Population > 0 {
-			fmt.Fprintf(&b, "; the finite population of %s lowers it", count(s.Population))
-		}
-		fmt.Fprintf(&b, ", to %s respondents. ", count(a.Total))
 		if r.Attrition > 0 {
 			fmt.Fprintf(&b, "Allowing for %s non-response%s, %s people will be invited.", pct(r.Attrition), source(r, "attrition"), count(a.EnrolTotal))
 		} else {
@@ -613,12 +690,12 @@ func precisionParagraph(r *designs.Result) string {
 	} else {
 		fmt.Fprintf(&b, "Inviting %s people", count(a.EnrolTotal))
 		if r.Attrition > 0 {
-			fmt.Fprintf(&b, " and expecting %s non-response (%s respondents)", pct(r.Attrition), count(a.Total))
+			fmt.Fprintf(&b, " and expecting %s non-response%s (%s respondents)", pct(r.Attrition), source(r, "attrition"), count(a.Total))
 		}
 		if r.DesignEff > 1 {
-			fmt.Fprintf(&b, ", with a design effect of %g", r.DesignEff)
+			fmt.Fprintf(&b, ", with a design effect of %g%s", r.DesignEff, source(r, "design_effect"))
 		}
-		fmt.Fprintf(&b, ", the estimate will lie within ±%s percentage points of the true prevalence at that confidence level.", marg)
+		fmt.Fprintf(&b, ", the estimate will lie within ±%s percentage points of the true proportion at that confidence level.", marg)
 	}
 	return b.String()
 }
@@ -629,13 +706,4 @@ func article(word string) string {
 		return "an"
 	}
 	return "a"
-}
-
-// members phrases a group size: "734 in the follow-up arm" for a label that
-// names an arm or group, "734 cases" otherwise.
-func members(n int, label string) string {
-	if strings.HasSuffix(label, " arm") || strings.HasSuffix(label, " group") || strings.HasSuffix(label, " sequence") {
-		return count(n) + " in the " + label
-	}
-	return count(n) + " " + label
 }

@@ -61,10 +61,10 @@ func TestGolden(t *testing.T) {
 			}
 			want, err := os.ReadFile(path)
 			if err != nil {
-				t.Fatalf("%v (run go test ./report -update)", err)
+				t.Fatalf("%v (run go test ./designs/report -update)", err)
 			}
 			if !bytes.Equal(b.Bytes(), want) {
-				t.Errorf("%s differs from the golden file; run go test ./report -update and review the diff", path)
+				t.Errorf("%s differs from the golden file; run go test ./designs/report -update and review the diff", path)
 			}
 		}
 	}

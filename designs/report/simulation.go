@@ -1,0 +1,157 @@
+package report
+
+import (
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+
+	"enough/designs"
+)
+
+// simDecimals is the number of decimals of a percentage that a Monte-Carlo
+// estimate supports: the position of the first significant digit of its
+// standard error in points (0.28 points: one decimal), or, when every
+// replicate or none rejected and the standard error is 0, of the half-width
+// of the score interval. It is then raised until the interval's two ends
+// print differently, so that an interval never reads "100.0% to 100.0%".
+func simDecimals(se float64, ci []float64) int {
+	x := 100 * se
+	if !(x > 0) && len(ci) == 2 {
+		x = 100 * (ci[1] - ci[0]) / 2
+	}
+	d := 1
+	if x > 0 {
+		d = min(3, max(0, int(-math.Floor(math.Log10(x)))))
+	}
+	for len(ci) == 2 && d < 4 && pctD(ci[0], d) == pctD(ci[1], d) {
+		d++
+	}
+	return d
+}
+
+// pctD formats a proportion as a percentage with d decimals.
+func pctD(p float64, d int) string {
+	return strconv.FormatFloat(100*p, 'f', d, 64) + "%"
+}
+
+// unitsD is p in units of the last printed decimal of pctD(p, d).
+func unitsD(p float64, d int) int64 {
+	v, _ := strconv.ParseFloat(strings.TrimSuffix(pctD(p, d), "%"), 64)
+	return int64(math.Round(v * math.Pow10(d)))
+}
+
+// printedDifference states how far the first printed percentage lies from
+// the second, read from the two figures as printed, so that the difference
+// can never disagree with them: "0.2 points above", "the same to the
+// precision shown".
+func printedDifference(a, b float64, d int) string {
+	u := unitsD(a, d) - unitsD(b, d)
+	if u == 0 {
+		return "the same to the precision shown"
+	}
+	word := "above"
+	if u < 0 {
+		word, u = "below", -u
+	}
+	v := strconv.FormatFloat(float64(u)/math.Pow10(d), 'f', d, 64)
+	unit := "points"
+	if v == "1" {
+		unit = "point"
+	}
+	return fmt.Sprintf("%s %s %s", v, unit, word)
+}
+
+// estimateText states a simulated proportion and what backs it: "81.1%,
+// with a 95% score interval of 80.5% to 81.6% and a Monte-Carlo standard
+// error of 0.28 points". When every replicate, or none, rejected, the
+// standard error is 0 and says nothing: the count is given instead. bold
+// sets the figure in bold; cite names the interval's source.
+func estimateText(p, se float64, ci []float64, reps int64, d int, bold, cite bool) string {
+	value := pctD(p, d)
+	if bold {
+		value = "**" + value + "**"
+	}
+	var lead string
+	switch {
+	case p == 1:
+		lead = fmt.Sprintf("every one of the %s replicates rejecting", count(int(reps)))
+	case p == 0:
+		lead = fmt.Sprintf("none of the %s replicates rejecting", count(int(reps)))
+	}
+	var with []string
+	if len(ci) == 2 {
+		source := ""
+		if cite {
+			source = " (Wilson 1927)"
+		}
+		with = append(with, fmt.Sprintf("a 95%% score interval%s of %s to %s", source, pctD(ci[0], d), pctD(ci[1], d)))
+	}
+	if p > 0 && p < 1 {
+		with = append(with, fmt.Sprintf("a Monte-Carlo standard error of %s points", strconv.FormatFloat(100*se, 'f', d+1, 64)))
+	}
+	var parts []string
+	if lead != "" {
+		parts = append(parts, lead)
+	}
+	if len(with) > 0 {
+		parts = append(parts, "with "+strings.Join(with, " and "))
+	}
+	if len(parts) == 0 {
+		return value
+	}
+	return value + ", " + strings.Join(parts, ", ")
+}
+
+// simulationSection reports the verification by simulation.
+func simulationSection(r *designs.Result) *section {
+	v := r.Simulation
+	if v == nil {
+		return nil
+	}
+	s := &section{heading: "Verification by simulation"}
+	sizes := count(v.N[0])
+	if len(v.N) == 2 {
+		sizes = fmt.Sprintf("%s and %s", count(v.N[0]), count(v.N[1]))
+	}
+	if v.Partial {
+		s.paras = append(s.paras, fmt.Sprintf("**Partial:** the simulation was stopped after %s replicates; the figures below rest on those alone.", count(int(v.Replicates))))
+	}
+	if len(v.CI) == 2 {
+		d := simDecimals(v.SE, v.CI)
+		s.bullets = append(s.bullets, fmt.Sprintf("Simulated power of %s with %s analysable (%s replicates, seed %d): %s",
+			v.TestName, sizes, count(int(v.Replicates)), v.Seed, estimateText(v.Power, v.SE, v.CI, v.Replicates, d, true, true)))
+		agree := "so the two agree (within 3 standard errors or 1 point)"
+		if !v.Agrees {
+			agree = "so the two part ways (more than 3 standard errors and 1 point apart)"
+		}
+		what := "Closed form"
+		if r.Method == "exact" {
+			what = "Exact power"
+		}
+		s.bullets = append(s.bullets, fmt.Sprintf("%s at the same sizes: %s; the simulated power is %s, %s",
+			what, pctD(v.ClosedFormPower, d), printedDifference(v.Power, v.ClosedFormPower, d), agree))
+	}
+	if v.Type1Error != nil {
+		d := simDecimals(*v.Type1SE, v.Type1CI)
+		s.bullets = append(s.bullets, fmt.Sprintf("Type I error simulated at %s, against alpha %g: %s",
+			v.Type1At, *r.Alpha, estimateText(*v.Type1Error, *v.Type1SE, v.Type1CI, v.Replicates, d, false, len(v.CI) != 2)))
+	}
+	if so := v.Solved; so != nil {
+		n := count(so.N[0])
+		if len(so.N) == 2 {
+			n = fmt.Sprintf("%s and %s", count(so.N[0]), count(so.N[1]))
+		}
+		d := simDecimals(so.SE, nil)
+		line := fmt.Sprintf("Smallest size whose simulated power reaches the target (same random numbers at every candidate size): %s, with power %s", n, pctD(so.Power, d))
+		if so.Power > 0 && so.Power < 1 {
+			line += fmt.Sprintf(" (standard error %s points)", strconv.FormatFloat(100*so.SE, 'f', d+1, 64))
+		}
+		if so.NSE > 0 {
+			line += fmt.Sprintf("; Monte-Carlo uncertainty about ±%.0f in the first group", math.Ceil(so.NSE))
+		}
+		s.bullets = append(s.bullets, line)
+	}
+	s.bullets = append(s.bullets, v.Notes...)
+	return s
+}
