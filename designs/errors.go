@@ -198,18 +198,35 @@ func checkText(file string, data []byte) *SpecError {
 	if bytes.IndexByte(data, 0) >= 0 {
 		return &SpecError{File: file, Msg: "is not a text file (it contains NUL bytes, as binary files do); " + want}
 	}
+	if utf8.Valid(data) && !hasControl(data) {
+		return nil
+	}
+	line := 1
 	for i := 0; i < len(data); {
 		c, size := utf8.DecodeRune(data[i:])
-		line := 1 + bytes.Count(data[:i], []byte("\n"))
 		switch {
 		case c == utf8.RuneError && size <= 1:
 			return &SpecError{File: file, Line: line, Msg: fmt.Sprintf("is not a text file (byte 0x%02X on this line is not UTF-8; save the file as UTF-8); %s", data[i], want)}
 		case c < 0x20 && c != '\t' && c != '\n' && c != '\r', c == 0x7F:
 			return &SpecError{File: file, Line: line, Msg: fmt.Sprintf("is not a text file (a control character, 0x%02X, on this line); %s", c, want)}
 		}
+		if c == '\n' {
+			line++
+		}
 		i += size
 	}
 	return nil
+}
+
+// hasControl says whether data holds a control character other than tab,
+// newline and carriage return.
+func hasControl(data []byte) bool {
+	for _, b := range data {
+		if (b < 0x20 && b != '\t' && b != '\n' && b != '\r') || b == 0x7F {
+			return true
+		}
+	}
+	return false
 }
 
 var yamlLine = regexp.MustCompile(`^yaml: line (\d+): (.*)$`)

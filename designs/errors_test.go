@@ -496,3 +496,17 @@ func TestLongValuesClipped(t *testing.T) {
 		}
 	}
 }
+
+// BenchmarkParseLarge parses a specification padded with comments to the
+// 1 MiB limit: the text checks must stay linear in the file's size (a
+// quadratic line count once took 13 s here).
+func BenchmarkParseLarge(b *testing.B) {
+	spec := "version: 1\ndesign: trial\ncontrol_risk: 0.2\nrisk_ratio: 0.7\npower: 0.8\n"
+	data := []byte(spec + strings.Repeat("# a comment line of padding, as long as many real ones\n", (MaxSpecBytes-len(spec))/56))
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := Parse("large.yaml", data, nil); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
