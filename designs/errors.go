@@ -41,8 +41,8 @@ func (e *SpecError) Error() string {
 }
 
 // SpecErrors is several independent problems of one specification, in file
-// order (line, then key); problems with no line (a missing key, a --set
-// override) come last.
+// order (line, then key), then the file's problems with no line (a missing
+// key), then those of the --set overrides in command-line order.
 //
 // [Parse] returns a [*SpecError] when a specification has exactly one
 // problem and SpecErrors when it has several, never an empty SpecErrors.
@@ -83,18 +83,39 @@ func AllSpecErrors(err error) []*SpecError {
 	return nil
 }
 
-// result sorts the problems into file order, drops repeats, and returns
-// nil, the one *SpecError, or the SpecErrors.
-func (e SpecErrors) result() error {
+// result sorts the problems, drops repeats, and returns nil, the one
+// *SpecError, or the SpecErrors. The order is the file's: problems with a
+// line by line (then key), then the file's problems with no line (a
+// missing key) by key, then those of the --set overrides in the order sets
+// gives them, each override's in the order they were found.
+func (e SpecErrors) result(sets []string) error {
+	setPos := map[string]int{}
+	for i, s := range sets {
+		if _, seen := setPos[setOrigin(s)]; !seen {
+			setPos[setOrigin(s)] = i
+		}
+	}
+	class := func(se *SpecError) (int, int) {
+		if i, ok := setPos[se.File]; ok {
+			return 2, i
+		}
+		if se.Line == 0 {
+			return 1, 0
+		}
+		return 0, se.Line
+	}
 	sort.SliceStable(e, func(i, j int) bool {
-		a, b := e[i], e[j]
-		if (a.Line == 0) != (b.Line == 0) {
-			return b.Line == 0
+		ca, pa := class(e[i])
+		cb, pb := class(e[j])
+		switch {
+		case ca != cb:
+			return ca < cb
+		case pa != pb:
+			return pa < pb
+		case ca == 2:
+			return false
 		}
-		if a.Line != b.Line {
-			return a.Line < b.Line
-		}
-		return a.Key < b.Key
+		return e[i].Key < e[j].Key
 	})
 	var out SpecErrors
 	seen := map[string]bool{}
@@ -231,74 +252,127 @@ func hasControl(data []byte) bool {
 
 var yamlLine = regexp.MustCompile(`^yaml: line (\d+): (.*)$`)
 
-// syntaxError turns a YAML parser error into one line: the line, the
-// parser's words, and a plain hint at the usual cause.
+// syntaxError turns a YAML parser error into one line: the line, and in
+// plain words what is wrong there and how to mend it. The parser's own
+// words are never shown.
 func syntaxError(file string, data []byte, err error) *SpecError {
-	msg := err.Error()
-	m := yamlLine.FindStringSubmatch(strings.SplitN(msg, "\n", 2)[0])
+	first := strings.SplitN(err.Error(), "\n", 2)[0]
+	m := yamlLine.FindStringSubmatch(first)
 	if m == nil {
-		msg = strings.TrimPrefix(strings.ReplaceAll(msg, "\n", "; "), "yaml: ")
-		se := &SpecError{File: file, Msg: "YAML syntax error: " + msg}
-		if a := unknownAnchor.FindStringSubmatch(msg); a != nil {
-			se.Line = lineOf(data, "*"+a[1])
-			se.Msg += fmt.Sprintf("; the alias *%s needs an anchor &%s on an earlier value (put quotes around a value that starts with *)", a[1], a[1])
+		problem := strings.TrimPrefix(first, "yaml: ")
+		if a := unknownAnchor.FindStringSubmatch(problem); a != nil {
+			return &SpecError{File: file, Line: lineOf(data, "*"+a[1]),
+				Msg: fmt.Sprintf("YAML syntax error: the alias *%s needs an anchor &%s on an earlier value (put quotes around a value that starts with *)", clip(a[1]), clip(a[1]))}
 		}
-		return se
+		if parserProblem(problem) {
+			// A parser error on the first line (0-based 0) has no line.
+			return &SpecError{File: file, Line: 1, Msg: "YAML syntax error: " + syntaxHint(problem, lineText(data, 1), "", false)}
+		}
+		return &SpecError{File: file, Msg: "YAML syntax error: " + syntaxHint(problem, "", "", false)}
 	}
 	line, _ := strconv.Atoi(m[1])
-	if strings.HasPrefix(m[2], "did not find expected") {
-		// yaml.v3 reports a parser error at the 0-based line of the
-		// construct it was reading; make it 1-based.
+	if parserProblem(m[2]) {
+		// yaml.v3 reports a parser error (not a scanner error) at the
+		// 0-based line of the construct it was reading; make it 1-based.
 		line++
 	}
 	if tl := tabLine(data, line); tl > 0 {
 		// yaml.v3 may report the line before the tab; point at it.
 		return &SpecError{File: file, Line: tl, Msg: "YAML syntax error: a tab character in the indentation; allowed: spaces only"}
 	}
-	se := &SpecError{File: file, Line: line, Msg: "YAML syntax error: " + m[2]}
-	if hint := syntaxHint(m[2], lineText(data, line), lineText(data, line-1)); hint != "" {
-		se.Msg += "; " + hint
-	}
-	return se
+	return &SpecError{File: file, Line: line, Msg: "YAML syntax error: " + syntaxHint(m[2], lineText(data, line), lineText(data, line-1), false)}
 }
+
+// parserProblem reports whether a YAML problem comes from yaml.v3's
+// parser, whose line is 0-based, rather than from its scanner.
+func parserProblem(problem string) bool {
+	if problem == "found undefined tag handle" {
+		return true
+	}
+	if !strings.HasPrefix(problem, "did not find expected") {
+		return false
+	}
+	for _, scanner := range []string{"alphabetic or numeric", "hexdecimal", "line break"} {
+		if strings.Contains(problem, scanner) {
+			return false
+		}
+	}
+	return true
+}
+
+// setSyntaxError is the message for a --set value that is not YAML.
+func setSyntaxError(key, value string, err error) string {
+	problem := strings.SplitN(err.Error(), "\n", 2)[0]
+	problem = strings.TrimPrefix(problem, "yaml: ")
+	problem = linePrefix.ReplaceAllString(problem, "")
+	if (strings.HasPrefix(problem, "mapping values are not allowed") || strings.HasPrefix(problem, "did not find expected key")) && strings.Contains(value, ": ") {
+		return fmt.Sprintf("value is not valid YAML: it contains \": \"; put it in quotes: --set '%s=%s'", clip(key), clip(strconv.Quote(value)))
+	}
+	return "value is not valid YAML: " + syntaxHint(problem, "", "", true)
+}
+
+// afterQuote matches a line whose quoted value is followed by more text
+// (title: "Ward" rounds).
+var afterQuote = regexp.MustCompile(`^[^:"']+:\s+("[^"]*"|'[^']*')\s*[^\s#]`)
+
+var linePrefix = regexp.MustCompile(`^line \d+: `)
 
 var unknownAnchor = regexp.MustCompile(`unknown anchor '([^']*)' referenced`)
 
-// syntaxHint says in plain words what usually causes a YAML parser error,
-// from its wording and the text of its line (and the line before).
-func syntaxHint(msg, text, before string) string {
+// syntaxHint says in plain words what is wrong, from the YAML parser's
+// problem, the text of its line and of the line before (both "" for a
+// --set value, where set is true). It never repeats the parser's words: a
+// problem it does not know gets a general sentence.
+func syntaxHint(problem, text, before string, set bool) string {
 	indent := func(s string) int { return len(s) - len(strings.TrimLeft(s, " ")) }
+	opened := " opened on this line"
+	if set {
+		opened = ""
+	}
+	has := func(s string) bool { return strings.Contains(problem, s) }
 	switch {
-	case strings.HasPrefix(msg, "mapping values are not allowed"):
+	case has("mapping values are not allowed"):
 		key, value, ok := strings.Cut(strings.TrimSpace(text), ": ")
 		value = strings.TrimSpace(value)
-		if ok && strings.HasPrefix(value, ":") {
-			return "a colon too many: one colon and a space follow a key"
-		}
-		if ok && strings.Contains(value, ": ") && !strings.ContainsAny(value, `"`) {
-			return fmt.Sprintf("a value that contains \": \" needs quotes: %s: %s", clip(key), clip(strconv.Quote(strings.TrimSpace(value))))
-		}
-		if ok && strings.Contains(value, ": ") {
-			return "a value that contains \": \" needs quotes around it"
-		}
-		if strings.TrimSpace(before) != "" && indent(text) > indent(before) {
+		switch {
+		case ok && strings.HasPrefix(value, ":"):
+			return "a colon too many: a key is followed by one colon and a space"
+		case ok && strings.Contains(value, ": ") && !strings.ContainsAny(value, `"`):
+			return fmt.Sprintf("a value contains \": \"; put it in quotes: %s: %s", clip(key), clip(strconv.Quote(value)))
+		case ok && strings.Contains(value, ": "):
+			return "a value contains \": \"; put the whole value in quotes"
+		case strings.TrimSpace(before) != "" && indent(text) > indent(before):
 			return "this line is indented more than the line above, whose key already has a value: start keys of the same map in the same column"
 		}
-		return "a value that contains \": \" needs quotes around it"
-	case strings.HasPrefix(msg, "did not find expected key"):
-		if strings.HasPrefix(strings.TrimSpace(text), "- ") {
+		return "a value contains \": \", or a line is indented more than the one above; put such a value in quotes, and start keys of one map in the same column"
+	case has("expected ',' or ']'"):
+		return "a [ … ] list" + opened + " is not closed (close it with ], or put quotes around a value that starts with [)"
+	case has("expected ',' or '}'"):
+		return "a { … } map" + opened + " is not closed (close it with }, or put quotes around a value that starts with {)"
+	case has("did not find expected key") && !set:
+		t := strings.TrimSpace(text)
+		switch {
+		case strings.HasPrefix(t, "- "):
 			return "a list item (- ) stands where a key was expected; check the indentation"
+		case strings.Count(t, "]") > strings.Count(t, "[") || strings.Count(t, "}") > strings.Count(t, "{"):
+			return "a ] or } on this line closes nothing; remove it, or put the value in quotes"
+		case afterQuote.MatchString(t):
+			return "text follows the closing quotation mark; put the whole value in quotes"
 		}
 		return "check the indentation: keys of one map start in the same column, and keys inside sources, cluster or simulate are indented by the same spaces"
-	case strings.HasPrefix(msg, "did not find expected ',' or ']'"):
-		return "a [ is not closed on its line (put quotes around a value that starts with [)"
-	case strings.HasPrefix(msg, "did not find expected ',' or '}'"):
-		return "a { is not closed on its line (put quotes around a value that starts with {)"
-	case strings.HasPrefix(msg, "could not find expected ':'"):
+	case has("could not find expected ':'"):
 		return "a key needs a colon and a space before its value, as in `design: trial`"
-	case strings.HasPrefix(msg, "found unexpected end of stream"):
-		return "a quotation mark opened here is not closed"
-	case strings.HasPrefix(msg, "found character that cannot start any token"):
+	case has("end of stream"):
+		if set {
+			return "a quotation mark is not closed"
+		}
+		return "the file ends inside a quoted text: a quotation mark opened on this line is not closed"
+	case has("document indicator"):
+		if set {
+			return "a line --- or ... stands inside a quoted text; close the quotation mark before it"
+		}
+		return "a quotation mark opened on this line is not closed before a line --- or ... (which ends a document); close it"
+	case has("cannot start any token"):
 		_, value, _ := strings.Cut(text, ":")
 		if value = strings.TrimLeft(value, " "); value != "" && strings.ContainsAny(value[:1], "@`%") {
 			return fmt.Sprintf("a value that starts with %s needs quotes around it", value[:1])
@@ -307,8 +381,31 @@ func syntaxHint(msg, text, before string) string {
 			return "a tab stands where YAML takes spaces"
 		}
 		return "a value that starts with a character such as @ or ` needs quotes around it"
+	case has("tab character"):
+		return "a tab character in the indentation; allowed: spaces only"
+	case has("node content"):
+		return "a value is missing, or starts with a character YAML keeps for itself (such as ], } or a comma); put quotes around such a value"
+	case has("tag"), has("expected '>'"):
+		return "a value that starts with ! needs quotes around it (YAML reads ! as a type)"
+	case has("escape"), has("hexdecimal"), has("hexadecimal"):
+		return `a backslash inside double quotes starts an escape such as \n; write \\ for a backslash, or use single quotes`
+	case has("alphabetic or numeric"):
+		return "& and * start YAML anchors and aliases and need a name after them; put quotes around a value that starts with & or *"
+	case has("directive"), has("document start"), has("incompatible YAML"):
+		return "a line that starts with % is read as a YAML directive; remove it (a comment starts with #), or put the value in quotes"
+	case has("block sequence entries"):
+		return "a list item (- ) cannot follow its key on the same line; start the list on the next line, indented, or put quotes around a value that starts with -"
+	case has("'-' indicator"):
+		return "the items of one list (- ) start in the same column"
+	case has("excessive aliasing"):
+		return "aliases (*name) expand to too much text; allowed: a specification without aliases of aliases"
+	case has("max depth"):
+		return "values are nested too deep; allowed: a specification as `enough new` writes it"
 	}
-	return ""
+	if set {
+		return "check its quotation marks and brackets (a text with special characters goes in quotes)"
+	}
+	return "the text on this line is not valid YAML; check its colons, quotation marks, brackets and indentation, and those of the line above"
 }
 
 // lineText returns the 1-based line of data, or "".

@@ -119,28 +119,36 @@ func TestSpecErrorsContract(t *testing.T) {
 	}
 }
 
-// TestSpecErrorsResult checks the order problems are reported in (line,
-// then key; problems with no line last), that repeats are dropped, and that
-// one problem is a *SpecError and none is nil.
+// TestSpecErrorsResult checks the order problems are reported in (the
+// file's by line, then key; the file's with no line; then the --set
+// overrides' in command-line order), that repeats are dropped, and that one
+// problem is a *SpecError and none is nil.
 func TestSpecErrorsResult(t *testing.T) {
 	l7 := &SpecError{File: "s.yaml", Line: 7, Key: "alhpa", Msg: "unknown key"}
 	l3 := &SpecError{File: "s.yaml", Line: 3, Key: "attrition", Msg: "15 is out of range"}
 	l3b := &SpecError{File: "s.yaml", Line: 3, Key: "attrition.x", Msg: "other"}
 	none := &SpecError{File: "s.yaml", Key: "power", Msg: "missing"}
-	set := &SpecError{File: "--set alpha=2", Key: "alpha", Msg: "2 is out of range"}
+	noneB := &SpecError{File: "s.yaml", Key: "design", Msg: "missing"}
+	alpha := &SpecError{File: "--set alpha=2", Key: "alpha", Msg: "2 is out of range"}
+	sides := &SpecError{File: "--set sides=3", Key: "sides", Msg: "3 is not allowed"}
+	sidesB := &SpecError{File: "--set sides=3", Key: "direction", Msg: "other"}
 	for _, c := range []struct {
 		name string
 		in   SpecErrors
+		sets []string
 		want string // the lines, "|"-joined; "" for nil
 	}{
-		{"none", nil, ""},
-		{"one", SpecErrors{l7}, l7.Error()},
-		{"line order", SpecErrors{l7, none, l3}, l3.Error() + "|" + l7.Error() + "|" + none.Error()},
-		{"key breaks ties", SpecErrors{l3b, l3}, l3.Error() + "|" + l3b.Error()},
-		{"no line keeps its order", SpecErrors{set, none}, set.Error() + "|" + none.Error()},
-		{"repeat dropped", SpecErrors{l3, l7, l3}, l3.Error() + "|" + l7.Error()},
+		{"none", nil, nil, ""},
+		{"one", SpecErrors{l7}, nil, l7.Error()},
+		{"line order", SpecErrors{l7, none, l3}, nil, l3.Error() + "|" + l7.Error() + "|" + none.Error()},
+		{"key breaks ties", SpecErrors{l3b, l3}, nil, l3.Error() + "|" + l3b.Error()},
+		{"the file's missing keys by key", SpecErrors{none, noneB}, nil, noneB.Error() + "|" + none.Error()},
+		{"the file's problems before the overrides'", SpecErrors{alpha, none, l7}, []string{"alpha=2"}, l7.Error() + "|" + none.Error() + "|" + alpha.Error()},
+		{"overrides in command-line order, not by key", SpecErrors{alpha, sides}, []string{"sides=3", "alpha=2"}, sides.Error() + "|" + alpha.Error()},
+		{"one override's problems in the order found", SpecErrors{alpha, sides, sidesB}, []string{"sides=3", "alpha=2"}, sides.Error() + "|" + sidesB.Error() + "|" + alpha.Error()},
+		{"repeat dropped", SpecErrors{l3, l7, l3}, nil, l3.Error() + "|" + l7.Error()},
 	} {
-		err := c.in.result()
+		err := c.in.result(c.sets)
 		got := ""
 		if err != nil {
 			got = strings.ReplaceAll(err.Error(), "\n", "|")
@@ -198,6 +206,18 @@ func TestParseSeveralErrors(t *testing.T) {
 		{"keys of another outcome: the outcome's own keys are not called missing",
 			"version: 1\ndesign: trial\noutcome: continuous\ncontrol_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8\n", nil,
 			[]want{{4, "control_risk", "it belongs to a binary outcome"}, {5, "risk_ratio", "it belongs to a binary outcome"}}},
+		{"a required key in capitals is one problem, not two",
+			"Version: 1\ndesign: trial\ncontrol_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8\n", nil,
+			[]want{{1, "Version", `unknown key; did you mean "version"?`}}},
+		{"so is a design in capitals, whose keys are then unknowable",
+			"version: 1\nDesign: trial\ncontrol_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8\n", nil,
+			[]want{{2, "Design", `unknown key; did you mean "design"?`}}},
+		{"a required key missing, and an unknown key that is not it",
+			"version: 1\ndesign: trial\ncontrol_risk: 0.2\nrisk_ratio: 0.75\nPowr: 0.8\nalpha: 0.01\n", nil,
+			[]want{{5, "Powr", `did you mean "power"?`}}},
+		{"overrides in command-line order, after the file's problems",
+			"version: 1\ndesign: trial\ncontrol_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8\nattrition: 15\n", []string{"sides=3", "alpha=2", "power=x"},
+			[]want{{6, "attrition", "did you mean 0.15?"}, {0, "sides", "allowed: 1 or 2"}, {0, "alpha", "(0, 0.5]"}, {0, "power", `"x" is not a number`}}},
 		{"a suggested key is not called missing as well",
 			"version: 1\ndesign: cross-sectional\nunexposed_prevalence: 0.1\nprevalence_ratio: 2\nexposure_prevalence: 0.3\nsolve: power\nn: 400\n", nil,
 			[]want{{7, "n", `did you mean "total"?`}}},
@@ -272,6 +292,49 @@ func TestSuggestions(t *testing.T) {
 		{"a key of a precision survey in a comparison", xs + "confidence: 0.9\n", "confidence", "it belongs to design cross-sectional with goal precision", "", nil},
 		{"a word too long to be a typo", trial + long + ": 1\n", strings.Repeat("x", 60) + "…", "allowed keys are listed in the README", "did you mean", nil},
 		{"a word like no key", cc + "colour: blue\n", "colour", "allowed keys are listed in the README", "did you mean", nil},
+		{"the first group's risk of a cohort in a trial that has its effect", trial + "exposed_risk: 0.14\n", "exposed_risk", "does not apply to design trial; the effect is given already, by risk_ratio at line 4", "intervention_risk", nil},
+		{"the same on the command line", trial, "exposed_risk", "the effect is given already, by risk_ratio at line 4", "did you mean", []string{"exposed_risk=0.14"}},
+		{"a synonym of a second effect", trial + "rd: 0.05\ndelta: 0.05\n", "delta", "the effect is given already, by risk_ratio at line 4", "did you mean", nil},
+		{"a typo of sd_first where sd is given", cont + "sd_frist: 3\n", "sd_frist", "the standard deviation is given already, by sd at line 5", "did you mean", nil},
+		{"n_second's synonym with ratio given", trial + "ratio: 2\nallocation_ratio: 2\n", "allocation_ratio", `did you mean "ratio"? (it is given already, at line 6)`, "", nil},
+		{"a design effect beside a cluster", trial + "cluster: {size: 20, icc: 0.05}\ndeff: 2\n", "deff", "the design effect is given already, by cluster at line 6", "did you mean", nil},
+		{"an effect key of the design when none is given", "version: 1\ndesign: trial\ncontrol_risk: 0.2\npower: 0.8\nexposed_risk: 0.14\n", "exposed_risk", `did you mean "intervention_risk"?`, "", nil},
+		{"controls per case", cc + "controls_per_case: 3\n", "controls_per_case", `did you mean "ratio"?`, "", nil},
+		{"controls per case is no key of a trial", trial + "controls_per_case: 3\n", "controls_per_case", "unknown key", "did you mean", nil},
+		{"non-compliance", trial + "non_compliance: 0.1\n", "non_compliance", `did you mean "non_adherence"?`, "", nil},
+		{"noncompliance", trial + "noncompliance: 0.1\n", "noncompliance", `did you mean "non_adherence"?`, "", nil},
+		{"non-compliance in a cohort, which has none", cohort + "non_compliance: 0.1\n", "non_compliance", "unknown key", "did you mean", nil},
+		{"two-sided", trial + "two_sided: true\n", "two_sided", `did you mean "sides"?`, "", nil},
+		{"seed at the top level", trial + "seed: 7\n", "seed", "did you mean simulate: {seed: 7}? (seed belongs inside the simulate map)", "", nil},
+		{"replicates at the top level", trial + "replicates: 5000\n", "replicates", "did you mean simulate: {replicates: 5000}?", "", nil},
+		{"seed on the command line", trial, "seed", `did you mean "simulate.seed"?`, "", []string{"seed=7"}},
+		{"exposure in controls", "version: 1\ndesign: case-control\nexposure_in_controls: 0.2\nodds_ratio: 2\npower: 0.8\n", "exposure_in_controls", `did you mean "control_exposure"?`, "", nil},
+	})
+}
+
+// TestValueHints checks the suggestions for values written in the trade's
+// other words or forms: each suggests a value the key then accepts.
+func TestValueHints(t *testing.T) {
+	const (
+		trial = "version: 1\ndesign: trial\ncontrol_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8\n"
+		cc    = "version: 1\ndesign: case-control\ncontrol_exposure: 0.2\nodds_ratio: 2\npower: 0.8\n"
+		rest  = "control_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8\n"
+	)
+	checkKeyCases(t, []keyCase{
+		{"ratio as the summary prints it", trial + "ratio: 1:2\n", "ratio", `"1:2" is not a number; allowed: a number above 0; did you mean ratio: 2? (the second group's size per member of the first)`, "", nil},
+		{"controls per case as 1:4", cc + "ratio: 1:4\n", "ratio", "did you mean ratio: 4?", "", nil},
+		{"ratio 2:1 is a half", trial + "ratio: 2:1\n", "ratio", "did you mean ratio: 0.5?", "", nil},
+		{"ratio 0:1 means nothing", trial + "ratio: 0:1\n", "ratio", "is not a number", "did you mean", nil},
+		{"sides two", trial + "sides: two\n", "sides", `"two" is not a whole number; allowed: 1 or 2; did you mean sides: 2?`, "", nil},
+		{"sides one-sided", trial + "sides: one-sided\n", "sides", "did you mean sides: 1?", "", nil},
+		{"sides two in a non-inferiority trial, which takes 1 only", "version: 1\ndesign: trial\nhypothesis: non-inferiority\nhigher_is_better: false\nmargin: 0.05\ncontrol_risk: 0.2\npower: 0.8\nsides: two\n", "sides", "not a whole number", "did you mean", nil},
+		{"outcome survival", "version: 1\ndesign: trial\noutcome: survival\n", "outcome", `(did you mean "time-to-event"?)`, "", nil},
+		{"outcome survival in a cohort, which has none", "version: 1\ndesign: cohort\noutcome: survival\n", "outcome", "is not allowed", "did you mean", nil},
+		{"outcome dichotomous", "version: 1\ndesign: cohort\noutcome: dichotomous\n", "outcome", `(did you mean "binary"?)`, "", nil},
+		{"design RCT", "version: 1\ndesign: RCT\n" + rest, "design", `"RCT" is not allowed; allowed: cohort, case-control, trial or cross-sectional (did you mean "trial"?)`, "", nil},
+		{"design randomised trial", "version: 1\ndesign: randomised trial\n" + rest, "design", `(did you mean "trial"?)`, "", nil},
+		{"design randomized controlled trial", "version: 1\ndesign: Randomized Controlled Trial\n" + rest, "design", `(did you mean "trial"?)`, "", nil},
+		{"hypothesis non-inferior", trial + "hypothesis: non-inferior\n", "hypothesis", `(did you mean "non-inferiority"?)`, "", nil},
 	})
 }
 
@@ -303,6 +366,10 @@ func specTexts(t *testing.T) map[string]string {
 
 var suggested = regexp.MustCompile(`did you mean "([a-z_.]+)"\?$`)
 
+// refusedAfter matches the refusals of a suggested key that mean the
+// suggestion was no help.
+var refusedAfter = regexp.MustCompile(`unknown key|does not apply|given twice|a second effect key|given together with`)
+
 // TestSuggestionsAreAccepted adds every key and synonym in turn to every
 // starter and example (as written and upper-cased) and follows the
 // suggestion it gets: the suggested key is then accepted in its place,
@@ -331,7 +398,7 @@ func TestSuggestionsAreAccepted(t *testing.T) {
 					followed++
 					fixed := text + "\n" + m[1] + ": 0.1\n"
 					for _, after := range parseAll(t, fixed, nil) {
-						if after.Key == m[1] && (strings.Contains(after.Msg, "unknown key") || strings.Contains(after.Msg, "does not apply") || strings.Contains(after.Msg, "given twice")) {
+						if after.Key == m[1] && refusedAfter.MatchString(after.Msg) {
 							t.Errorf("%s: %s suggests %q, which is then refused: %s", name, word, m[1], after.Error())
 						}
 					}
@@ -341,6 +408,38 @@ func TestSuggestionsAreAccepted(t *testing.T) {
 	}
 	if followed < 100 {
 		t.Errorf("only %d suggestions followed", followed)
+	}
+}
+
+// TestMissingSaysWhatIsAllowed removes each top-level key and each key of
+// a nested map from every starter and example in turn: every key then
+// called missing says what is allowed after "; allowed: ", so that the
+// JSON form fills its allowed field.
+func TestMissingSaysWhatIsAllowed(t *testing.T) {
+	keyLine := regexp.MustCompile(`^\s*([a-z_]+):`)
+	seen := map[string]bool{}
+	for name, text := range specTexts(t) {
+		lines := strings.Split(text, "\n")
+		for i, l := range lines {
+			if keyLine.FindStringSubmatch(l) == nil {
+				continue
+			}
+			cut := strings.Join(append(append([]string(nil), lines[:i]...), lines[i+1:]...), "\n")
+			for _, se := range parseAll(t, cut, nil) {
+				if !strings.HasPrefix(se.Msg, "missing") {
+					continue
+				}
+				seen[se.Key] = true
+				if !strings.HasPrefix(se.Msg, "missing; ") || !strings.Contains(se.Msg, "; allowed: ") {
+					t.Errorf("%s without line %d: %q does not say what is allowed", name, i+1, se.Error())
+				}
+			}
+		}
+	}
+	for _, k := range []string{"version", "design", "power", "control_risk", "cluster.icc"} {
+		if !seen[k] {
+			t.Errorf("no specification lacking %s was tried", k)
+		}
 	}
 }
 
@@ -401,8 +500,20 @@ func TestPercentLike(t *testing.T) {
 		{"control risk 100: 1 is no risk either", head + "control_risk: 100\nrisk_ratio: 0.75\npower: 0.8\n", "control_risk", "out of range", "did you mean", nil},
 		{"attrition 150", head + "control_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8\nattrition: 150\n", "attrition", "out of range", "did you mean", nil},
 		{"design effect is no fraction", head + "control_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8\ndesign_effect: 0.5\n", "design_effect", "out of range", "did you mean", nil},
-		{"power written 80%", head + "control_risk: 0.2\nrisk_ratio: 0.75\npower: 80%\n", "power", `"80%" is a percentage; allowed: a number above alpha and below 1, written as a fraction (0.8 for 80%)`, "", nil},
-		{"control risk written 12.5%", head + "control_risk: '12.5%'\nrisk_ratio: 0.75\npower: 0.8\n", "control_risk", "(0.125 for 12.5%)", "", nil},
+		{"power written 80%", head + "control_risk: 0.2\nrisk_ratio: 0.75\npower: 80%\n", "power", `"80%" is a percentage; allowed: a number above alpha and below 1, written as a fraction; did you mean 0.8?`, "", nil},
+		{"control risk written 12.5%", head + "control_risk: '12.5%'\nrisk_ratio: 0.75\npower: 0.8\n", "control_risk", "did you mean 0.125?", "", nil},
+		{"power written 0.8%: 0.008 is below alpha, so no guess", head + "control_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8%\n", "power", `"0.8%" is a percentage, and the fraction it stands for, 0.008, is out of range too; allowed: a number above alpha (0.05) and below 1`, "did you mean", nil},
+		{"power written 3% against alpha 0.01: 0.03 is above it", head + "control_risk: 0.2\nrisk_ratio: 0.75\nalpha: 0.01\npower: 3%\n", "power", "did you mean 0.03?", "", nil},
+		{"attrition written 10%: the fraction is not said twice", head + "control_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8\nattrition: 10%\n", "attrition", `"10%" is a percentage; allowed: a fraction in [0, 1); did you mean 0.1?`, "written as a fraction", nil},
+		{"alpha written 60%: 0.6 is above 0.5", head + "control_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8\nalpha: 60%\n", "alpha", "out of range too", "did you mean", nil},
+		{"icc 5", head + "control_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8\ncluster: {size: 20, icc: 5}\n", "cluster.icc", "5 is out of range; allowed: the intracluster correlation coefficient, in [0, 1); did you mean 0.05?", "", nil},
+		{"icc written 5%", head + "control_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8\ncluster:\n  size: 20\n  icc: 5%\n", "cluster.icc", `"5%" is a percentage; allowed: the intracluster correlation coefficient, in [0, 1), written as a fraction; did you mean 0.05?`, "", nil},
+		{"icc 5 on the command line", head + "control_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8\ncluster: {size: 20, icc: 0.05}\n", "cluster.icc", "did you mean 0.05?", "", []string{"cluster.icc=5"}},
+		{"icc 100: 1 is no icc", head + "control_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8\ncluster: {size: 20, icc: 100}\n", "cluster.icc", "out of range", "did you mean", nil},
+		{"cluster size is no fraction", head + "control_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8\ncluster: {size: 1, icc: 0.05}\n", "cluster.size", "out of range", "did you mean", nil},
+		{"baseline correlation 50", head + "outcome: continuous\nmean_difference: 2\nsd: 5\npower: 0.8\nbaseline_correlation: 50\n", "baseline_correlation", "50 is out of range; allowed: a number in [0, 1); did you mean 0.5?", "", nil},
+		{"within correlation 60", head + "outcome: continuous\npairing: paired\nmean_difference: 2\nsd: 5\npower: 0.8\nwithin_correlation: 60\n", "within_correlation", "did you mean 0.6?", "", nil},
+		{"within correlation -60", head + "outcome: continuous\npairing: paired\nmean_difference: 2\nsd: 5\npower: 0.8\nwithin_correlation: -60\n", "within_correlation", "did you mean -0.6?", "", nil},
 		{"a risk ratio written 75%", head + "control_risk: 0.2\nrisk_ratio: 75%\npower: 0.8\n", "risk_ratio", "risk_ratio is a ratio, not a percentage; allowed: a number above 0", "fraction", nil},
 		{"a ratio margin written 110%", ni + "margin_scale: ratio\nmargin: 110%\n", "margin", "margin is a ratio, not a percentage", "fraction", nil},
 		{"a mean difference written 5%", head + "outcome: continuous\nmean_difference: 5%\nsd: 2\npower: 0.8\n", "mean_difference", `"5%" is a percentage; allowed: a number (first group minus second)`, "fraction", nil},
@@ -440,34 +551,89 @@ func TestFileErrors(t *testing.T) {
 	}
 }
 
-// TestSyntaxHints checks that a YAML syntax error keeps the parser's words
-// and its line, and adds a plain hint at the usual cause.
+// parserWords are phrases of the YAML library's own messages: no message
+// may show them.
+var parserWords = regexp.MustCompile(`mapping values|did not find|could not find|end of stream|cannot start any token|node content|tag handle|escape character|hexdecimal|alphabetic or numeric|document indicator|directive name|block sequence entries|violates indentation|^yaml|line \d+:`)
+
+// TestSyntaxHints checks that a YAML syntax error gives its line and says
+// in plain words what is wrong there and how to mend it, never in the YAML
+// library's words; a --set value likewise.
 func TestSyntaxHints(t *testing.T) {
-	const head = "version: 1\ndesign: trial\n"
+	const (
+		head = "version: 1\ndesign: trial\n"
+		full = head + "control_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8\n"
+	)
 	for _, c := range []struct {
 		name, spec string
+		sets       []string
 		line       int
 		msg        string // a fragment of the message
 	}{
-		{"colon in a value", head + "title: Ward rounds: a trial\n", 3, `mapping values are not allowed in this context; a value that contains ": " needs quotes: title: "Ward rounds: a trial"`},
-		{"colon in a source", head + "sources:\n  power: the funder: a rule\n", 4, `needs quotes: power: "the funder: a rule"`},
-		{"colon in a value with quotes", head + "title: The \"best\": a trial\n", 3, `a value that contains ": " needs quotes around it`},
-		{"a colon too many", head + "power: : 0.8\n", 3, "a colon too many"},
-		{"indented under a value", head + "control_risk: 0.2\n  risk_ratio: 0.75\n", 4, "this line is indented more than the line above"},
-		{"indentation of a nested map", head + "sources:\n  power: a\n power2: b\n", 5, "did not find expected key; check the indentation"},
-		{"a list item among keys", head + "- power: 0.8\n", 3, "a list item (- ) stands where a key was expected"},
-		{"no colon", "version: 1\ndesign trial\npower: 0.8\n", 2, "a key needs a colon and a space before its value"},
-		{"unclosed bracket", head + "control_risk: [0.2\npower: 0.8\n", 3, "a [ is not closed on its line"},
-		{"unclosed brace", head + "cluster: {size: 20\npower: 0.8\n", 3, "a { is not closed on its line"},
-		{"unclosed quote", head + "title: \"Ward rounds\npower: 0.8\n", 3, "a quotation mark opened here is not closed"},
-		{"a value starting with @", head + "title: @ward\n", 3, "a value that starts with @ needs quotes around it"},
-		{"a tab in the indentation", head + "\tpower: 0.8\n", 3, "a tab character in the indentation; allowed: spaces only"},
-		{"an alias with no anchor", head + "power: *target\n", 3, "the alias *target needs an anchor &target"},
+		{"colon in a value", head + "title: Ward rounds: a trial\n", nil, 3, `YAML syntax error: a value contains ": "; put it in quotes: title: "Ward rounds: a trial"`},
+		{"colon in a source", head + "sources:\n  power: the funder: a rule\n", nil, 4, `put it in quotes: power: "the funder: a rule"`},
+		{"colon in a value with quotes", head + "title: The \"best\": a trial\n", nil, 3, `a value contains ": "; put the whole value in quotes`},
+		{"a colon too many", head + "power: : 0.8\n", nil, 3, "a colon too many"},
+		{"indented under a value", head + "control_risk: 0.2\n  risk_ratio: 0.75\n", nil, 4, "this line is indented more than the line above"},
+		{"indentation of a nested map", head + "sources:\n  power: a\n power2: b\n", nil, 5, "check the indentation: keys of one map start in the same column"},
+		{"a list item among keys", head + "- power: 0.8\n", nil, 3, "a list item (- ) stands where a key was expected"},
+		{"a bracket too many", head + "title: [a]]\n", nil, 3, "a ] or } on this line closes nothing"},
+		{"text after a closing quote", head + "title: \"Ward\" rounds\n", nil, 3, "text follows the closing quotation mark; put the whole value in quotes"},
+		{"text after a closing quote on the first line", "title: 'Ward' rounds\n", nil, 1, "text follows the closing quotation mark"},
+		{"no colon", "version: 1\ndesign trial\npower: 0.8\n", nil, 2, "a key needs a colon and a space before its value"},
+		{"unclosed bracket", head + "control_risk: [0.2\npower: 0.8\n", nil, 3, "a [ … ] list opened on this line is not closed (close it with ]"},
+		{"unclosed brace", head + "cluster: {size: 20\npower: 0.8\n", nil, 3, "a { … } map opened on this line is not closed (close it with }"},
+		{"unclosed quote", head + "title: \"Ward rounds\npower: 0.8\n", nil, 3, "the file ends inside a quoted text: a quotation mark opened on this line is not closed"},
+		{"a line --- inside quotes", head + "title: \"Ward\n---\nrounds\"\n", nil, 3, "a quotation mark opened on this line is not closed before a line --- or ..."},
+		{"a value starting with @", head + "title: @ward\n", nil, 3, "a value that starts with @ needs quotes around it"},
+		{"a value starting with ]", head + "power: ]\n", nil, 3, "a value is missing, or starts with a character YAML keeps for itself"},
+		{"a value starting with !", head + "title: !x!y ward\n", nil, 3, "a value that starts with ! needs quotes around it"},
+		{"a backslash in double quotes", head + "title: \"a\\qb\"\n", nil, 3, `write \\ for a backslash`},
+		{"an anchor with no name", head + "power: &\n", nil, 3, "& and * start YAML anchors and aliases"},
+		{"a directive", "%FOO\nversion: 1\n", nil, 0, "a line that starts with % is read as a YAML directive"},
+		{"a tab in the indentation", head + "\tpower: 0.8\n", nil, 3, "a tab character in the indentation; allowed: spaces only"},
+		{"an alias with no anchor", head + "power: *target\n", nil, 3, "the alias *target needs an anchor &target"},
+		{"a --set list not closed", full, []string{"control_risk=[1"}, 0, "value is not valid YAML: a [ … ] list is not closed (close it with ]"},
+		{"a --set map not closed", full, []string{"cluster={size: 20"}, 0, "value is not valid YAML: a { … } map is not closed"},
+		{"a --set quote not closed", full, []string{`title="Ward`}, 0, "value is not valid YAML: a quotation mark is not closed"},
+		{"a --set value with a colon", full, []string{`title=Ward: "a" trial`}, 0, `value is not valid YAML: it contains ": "; put it in quotes: --set 'title="Ward: \"a\" trial"'`},
 	} {
-		_, err := Parse("s.yaml", []byte(c.spec), nil)
+		_, err := Parse("s.yaml", []byte(c.spec), c.sets)
 		var se *SpecError
-		if !errors.As(err, &se) || se.Line != c.line || !strings.Contains(se.Msg, "YAML syntax error: ") || !strings.Contains(se.Msg, c.msg) {
+		switch {
+		case !errors.As(err, &se) || se.Line != c.line || !strings.Contains(se.Msg, c.msg):
 			t.Errorf("%s: err = %v; want line %d and %q", c.name, err, c.line, c.msg)
+		case c.sets == nil && !strings.HasPrefix(se.Msg, "YAML syntax error: "):
+			t.Errorf("%s: %q does not start with \"YAML syntax error: \"", c.name, se.Msg)
+		}
+		for _, se := range AllSpecErrors(err) {
+			if parserWords.MatchString(se.Msg) {
+				t.Errorf("%s: the YAML library's words: %q", c.name, se.Msg)
+			}
+		}
+	}
+}
+
+// TestSyntaxHintWords checks the plain sentence for every problem the YAML
+// library is known to report, and for one it is not: never its words.
+func TestSyntaxHintWords(t *testing.T) {
+	for _, problem := range []string{
+		"mapping values are not allowed in this context", "did not find expected key",
+		"did not find expected ',' or ']'", "did not find expected ',' or '}'",
+		"could not find expected ':'", "found unexpected end of stream",
+		"found character that cannot start any token", "found a tab character that violates indentation",
+		"found a tab character where an indentation space is expected", "did not find expected node content",
+		"found undefined tag handle", "did not find the expected '>'", "found unknown escape character",
+		"did not find expected hexdecimal number", "did not find expected alphabetic or numeric character",
+		"found unexpected document indicator", "found duplicate %YAML directive", "found unknown directive name",
+		"did not find expected <document start>", "found incompatible YAML document",
+		"block sequence entries are not allowed in this context", "did not find expected '-' indicator",
+		"document contains excessive aliasing", "exceeded max depth of 10000", "a problem no one has seen yet",
+	} {
+		for _, set := range []bool{false, true} {
+			got := syntaxHint(problem, "title: x", "design: trial", set)
+			if got == "" || parserWords.MatchString(got) || strings.Contains(got, problem) {
+				t.Errorf("syntaxHint(%q, set %v) = %q", problem, set, got)
+			}
 		}
 	}
 }

@@ -1,6 +1,7 @@
 package designs
 
 import (
+	"slices"
 	"sort"
 	"strings"
 )
@@ -261,6 +262,30 @@ var fractionKeys = map[string]bool{
 	"exposure_prevalence": true, "unexposed_prevalence": true,
 	"exposed_prevalence": true, "expected_prevalence": true,
 	"control_survival": true, "risk_difference": true, "prevalence_difference": true,
+	// Correlations are no fractions, but 50 is as surely a percentage.
+	"baseline_correlation": true, "within_correlation": true, "cluster.icc": true,
+}
+
+// fractionRange returns what a fraction key accepts, so that a value read
+// as a percentage is suggested only when it would be accepted. alpha is
+// the level in force, which power must exceed (0 when not known).
+func fractionRange(key string, alpha float64) func(float64) bool {
+	in01 := func(x float64) bool { return x > 0 && x < 1 }
+	from0 := func(x float64) bool { return x >= 0 && x < 1 }
+	pm1 := func(x float64) bool { return x > -1 && x < 1 }
+	switch key {
+	case "alpha":
+		return func(x float64) bool { return x > 0 && x <= 0.5 }
+	case "power":
+		return func(x float64) bool { return x > alpha && x < 1 }
+	case "confidence":
+		return func(x float64) bool { return x >= 0.5 && x < 1 }
+	case "attrition", "dropout", "non_adherence", "contamination", "baseline_correlation", "cluster.icc":
+		return from0
+	case "risk_difference", "prevalence_difference", "within_correlation":
+		return pm1
+	}
+	return in01
 }
 
 // ratioKeys take a ratio, which is a plain number and not a percentage.
@@ -279,6 +304,7 @@ const (
 	roleSize       = "@size"       // the enrolment: n or total
 	roleLoss       = "@loss"       // attrition, or dropout in time-to-event plans
 	roleAllocation = "@allocation" // ratio, or exposure_prevalence in surveys
+	roleControls   = "@controls"   // ratio of a case-control study
 )
 
 // synonyms maps words of the trade that are not keys of this selection to
@@ -309,6 +335,18 @@ var synonyms = map[string]string{
 
 	"allocation": roleAllocation, "allocation_ratio": roleAllocation,
 
+	"controls_per_case": roleControls, "control_case_ratio": roleControls,
+	"control_to_case_ratio": roleControls,
+
+	"exposure_in_controls": "control_exposure", "exposure_in_cases": "case_exposure",
+
+	"non_compliance": "non_adherence", "noncompliance": "non_adherence",
+	"nonadherence": "non_adherence",
+
+	"seed": "simulate.seed", "random_seed": "simulate.seed",
+	"replicates": "simulate.replicates", "replications": "simulate.replicates",
+	"simulations": "simulate.replicates", "n_simulations": "simulate.replicates",
+
 	"icc": "cluster.icc", "intracluster_correlation": "cluster.icc",
 	"cluster_size": "cluster.size",
 
@@ -324,7 +362,8 @@ var synonyms = map[string]string{
 
 	"sigma": "sd", "standard_deviation": "sd", "stdev": "sd", "std_dev": "sd",
 
-	"tails": "sides", "sided": "sides",
+	"tails": "sides", "sided": "sides", "two_sided": "sides", "one_sided": "sides",
+	"twosided": "sides", "onesided": "sides",
 
 	"median_survival": "control_median", "median": "control_median",
 
@@ -395,6 +434,10 @@ func resolveRole(role string, sel selector) string {
 			return "exposure_prevalence"
 		}
 		return "ratio"
+	case roleControls:
+		if sel.design == "case-control" {
+			return "ratio"
+		}
 	}
 	return ""
 }
@@ -411,7 +454,7 @@ func suggestKey(word string, sel *selector, allowed, given map[string]bool) stri
 	if len(word) > maxSuggestLen {
 		return ""
 	}
-	norm := strings.NewReplacer("-", "_", " ", "_").Replace(strings.ToLower(strings.TrimSpace(word)))
+	norm := wordKey(word)
 	fits := func(k string) bool {
 		if k == "" || k == word || given[k] {
 			return false
@@ -435,4 +478,88 @@ func suggestKey(word string, sel *selector, allowed, given map[string]bool) stri
 		}
 	}
 	return ""
+}
+
+// exclusive returns the keys of selection sel that cannot be given together
+// with key, and the noun for what either of them gives ("the effect"):
+// suggesting key where one of them is given would only lead to the next
+// refusal.
+func exclusive(key string, sel selector) (noun string, others []string) {
+	ro := roles[sel.design]
+	without := func(ks []string) []string {
+		var out []string
+		for _, k := range ks {
+			if k != key {
+				out = append(out, k)
+			}
+		}
+		return out
+	}
+	head, _, _ := strings.Cut(key, ".")
+	switch {
+	case sel.outcome == "binary" && slices.Contains(ro.effects, key):
+		return "the effect", without(ro.effects)
+	case sel.outcome == "continuous" && key == "mean_difference":
+		return "the effect", []string{ro.means[0], ro.means[1]}
+	case sel.outcome == "continuous" && (key == ro.means[0] || key == ro.means[1]) && key != "":
+		return "the effect", []string{"mean_difference"}
+	case sel.outcome == "continuous" && sel.pairing == "" && key == "sd":
+		return "the standard deviation", []string{"sd_first", "sd_second"}
+	case sel.outcome == "continuous" && sel.pairing == "" && (key == "sd_first" || key == "sd_second"):
+		return "the standard deviation", []string{"sd"}
+	case sel.outcome == "continuous" && sel.pairing != "" && key == "sd_difference":
+		return "the standard deviation", []string{"sd", "within_correlation"}
+	case sel.outcome == "continuous" && sel.pairing != "" && (key == "sd" || key == "within_correlation"):
+		return "the standard deviation", []string{"sd_difference"}
+	case sel.outcome == "time-to-event" && key == "control_median":
+		return "the control arm's survival", []string{"control_survival", "time"}
+	case sel.outcome == "time-to-event" && (key == "control_survival" || key == "time"):
+		return "the control arm's survival", []string{"control_median"}
+	case key == "ratio":
+		return "the allocation", []string{"n_second"}
+	case key == "n_second":
+		return "the allocation", []string{"ratio"}
+	case head == "cluster":
+		return "the design effect", []string{"design_effect"}
+	case key == "design_effect":
+		return "the design effect", []string{"cluster"}
+	}
+	return "", nil
+}
+
+// valueWords maps the trade's other words for a value of a text key to the
+// value enough takes (outcome: survival is time-to-event). The words are
+// written in lower case with underscores (see wordKey).
+var valueWords = map[string]map[string]string{
+	"design": {
+		"rct": "trial", "randomised_trial": "trial", "randomized_trial": "trial",
+		"randomised_controlled_trial": "trial", "randomized_controlled_trial": "trial",
+		"controlled_trial": "trial", "clinical_trial": "trial",
+		"cohort_study": "cohort", "prospective_cohort": "cohort",
+		"case_control_study": "case-control", "casecontrol": "case-control",
+		"cross_sectional_survey": "cross-sectional", "crosssectional": "cross-sectional",
+		"prevalence_survey": "cross-sectional",
+	},
+	"outcome": {
+		"survival": "time-to-event", "time_to_event": "time-to-event", "tte": "time-to-event",
+		"event_time": "time-to-event", "survival_time": "time-to-event",
+		"dichotomous": "binary", "binomial": "binary", "proportion": "binary", "yes_no": "binary",
+		"numeric": "continuous", "normal": "continuous", "quantitative": "continuous",
+		"mean": "continuous", "means": "continuous",
+	},
+	"pairing": {"matched": "paired", "pairs": "paired", "cross_over": "crossover"},
+	"hypothesis": {
+		"noninferiority": "non-inferiority", "non_inferior": "non-inferiority", "ni": "non-inferiority",
+		"equivalent": "equivalence", "superior": "superiority",
+	},
+	"sides": {
+		"two": "2", "two_sided": "2", "twosided": "2", "2_sided": "2", "both": "2",
+		"one": "1", "one_sided": "1", "onesided": "1", "1_sided": "1",
+	},
+}
+
+// wordKey writes a word as the keys of valueWords and synonyms are
+// written: lower case, with underscores for spaces and hyphens.
+func wordKey(word string) string {
+	return strings.NewReplacer("-", "_", " ", "_").Replace(strings.ToLower(strings.TrimSpace(word)))
 }

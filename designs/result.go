@@ -292,3 +292,17 @@ func typedValue(s string) any {
 	}
 	return s
 }
+
+// MarshalJSON writes what the file gave with its value typed, as the
+// assumption's own value is.
+func (f FileValue) MarshalJSON() ([]byte, error) {
+	type plain struct {
+		Value  any    `json:"value,omitempty"`
+		Source string `json:"source,omitempty"`
+	}
+	c := plain{Source: f.Source}
+	if f.Value != "" {
+		c.Value = typedValue(f.Value)
+	}
+	return json.Marshal(c)
+}

@@ -9,6 +9,7 @@ import (
 	"io"
 	"math"
 	"regexp"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -213,6 +214,15 @@ type reader struct {
 	// outcome itself may be wrong, so the keys it would require are not
 	// reported missing.
 	outcomeDoubt bool
+	// design is the design once read, and precision says that it is a
+	// precision survey, for the values suggested (see fits).
+	design    string
+	precision bool
+	// alpha is the level in force once read (0 before), which power must
+	// exceed.
+	alpha float64
+	// absent holds the problems that say a key is missing.
+	absent map[*SpecError]bool
 	// solveBad is set when solve has a bad value: the keys it would
 	// require are then not reported missing.
 	solveBad bool
@@ -226,7 +236,7 @@ type reader struct {
 }
 
 func newReader(file string) *reader {
-	return &reader{file: file, entries: map[string]*entry{}, nested: map[string]map[string]*entry{}, refused: map[string]bool{}, standsFor: map[string]bool{}}
+	return &reader{file: file, entries: map[string]*entry{}, nested: map[string]map[string]*entry{}, refused: map[string]bool{}, standsFor: map[string]bool{}, absent: map[*SpecError]bool{}}
 }
 
 func (r *reader) errAt(e *entry, format string, args ...any) *SpecError {
@@ -254,16 +264,36 @@ func (r *reader) refuse(err *SpecError) {
 	}
 }
 
-// missing records that a required key is absent, unless the key was
-// suggested in place of an unknown or misplaced one (fixing that one
-// supplies it).
-func (r *reader) missing(key, format string, args ...any) {
+// missing records that a required key is absent: "missing; WHY;
+// allowed: ALLOWED" (why may be ""), unless the key was suggested in place
+// of an unknown or misplaced one (fixing that one supplies it; see
+// dropSupplied for a suggestion made later).
+func (r *reader) missing(key, why, allowed string) {
 	switch {
 	case r.standsFor[key]:
 	case r.outcomeDoubt && outcomeNeeds(key):
 	default:
-		r.refuse(r.errFile(key, "missing; "+format, args...))
+		msg := "missing; allowed: " + allowed
+		if why != "" {
+			msg = "missing; " + why + "; allowed: " + allowed
+		}
+		se := r.errFile(key, "%s", msg)
+		r.absent[se] = true
+		r.refuse(se)
 	}
+}
+
+// dropSupplied removes the missing keys that were suggested, after they
+// were found missing, in place of an unknown key (Version: 1 stands for
+// the missing version): one line says it.
+func (r *reader) dropSupplied() {
+	kept := r.errs[:0]
+	for _, se := range r.errs {
+		if !(r.absent[se] && r.standsFor[se.Key]) {
+			kept = append(kept, se)
+		}
+	}
+	r.errs = kept
 }
 
 // outcomeNeeds reports whether key ("" for the effect) is required by the
@@ -330,7 +360,8 @@ func Parse(file string, data []byte, sets []string) (*Spec, error) {
 		r.applySet(s)
 	}
 	spec := r.build()
-	if err := r.errs.result(); err != nil {
+	r.dropSupplied()
+	if err := r.errs.result(sets); err != nil {
 		return nil, err
 	}
 	spec.File = file
@@ -465,9 +496,12 @@ func (r *reader) checkNested(head, sub string, e *entry) *SpecError {
 	return nil
 }
 
+// setOrigin names a --set override as the file of its problems.
+func setOrigin(s string) string { return "--set " + clip(s) }
+
 // applySet applies one --set key=value override.
 func (r *reader) applySet(s string) {
-	origin := "--set " + clip(s)
+	origin := setOrigin(s)
 	key, val, ok := strings.Cut(s, "=")
 	key = strings.TrimSpace(key)
 	if !ok || key == "" {
@@ -476,7 +510,7 @@ func (r *reader) applySet(s string) {
 	}
 	var doc yaml.Node
 	if err := yaml.Unmarshal([]byte(val), &doc); err != nil {
-		r.fail(&SpecError{File: origin, Key: clip(key), Msg: "value is not valid YAML: " + strings.TrimPrefix(err.Error(), "yaml: ")})
+		r.fail(&SpecError{File: origin, Key: clip(key), Msg: setSyntaxError(key, val, err)})
 		return
 	}
 	node := &yaml.Node{Kind: yaml.ScalarNode, Tag: "!!null", Value: ""}
@@ -597,21 +631,59 @@ func (r *reader) isRatio(key string) bool {
 }
 
 // percentMsg explains a value written as a percentage ("20%"): a key that
-// takes a fraction is told the fraction, a ratio that it is no percentage.
+// takes a fraction is told the fraction, when that would be accepted; a
+// ratio that it is no percentage.
 func (r *reader) percentMsg(key string, n *yaml.Node) string {
-	allowed := specKeys[key].allowed
+	allowed := allowedOf(key)
 	written := clip(strings.TrimSpace(n.Value))
 	switch {
 	case r.isFraction(key):
+		asFraction := ", written as a fraction"
+		if strings.Contains(allowed, "fraction") {
+			asFraction = ""
+		}
 		p, err := strconv.ParseFloat(strings.TrimSpace(strings.TrimSuffix(written, "%")), 64)
 		if err != nil {
-			return fmt.Sprintf("%s is a percentage; allowed: %s, written as a fraction", show(n), allowed)
+			return fmt.Sprintf("%s is a percentage; allowed: %s%s", show(n), allowed, asFraction)
 		}
-		return fmt.Sprintf("%s is a percentage; allowed: %s, written as a fraction (%s for %s)", show(n), allowed, fmtFraction(p/100), written)
+		x := p / 100
+		if r.fractionAccepts(key, x) {
+			return fmt.Sprintf("%s is a percentage; allowed: %s%s; did you mean %s?", show(n), allowed, asFraction, fmtFraction(x))
+		}
+		return fmt.Sprintf("%s is a percentage, and the fraction it stands for, %s, is out of range too; allowed: %s%s", show(n), fmtFraction(x), r.allowedNow(key), asFraction)
 	case r.isRatio(key):
 		return fmt.Sprintf("%s is a percentage, but %s is a ratio, not a percentage; allowed: %s", show(n), key, allowed)
 	}
 	return fmt.Sprintf("%s is a percentage; allowed: %s", show(n), allowed)
+}
+
+// allowedOf says what key allows; a nested key (cluster.icc) too.
+func allowedOf(key string) string {
+	if head, sub, ok := strings.Cut(key, "."); ok {
+		switch head {
+		case "cluster":
+			return clusterKeys[sub]
+		case "simulate":
+			return simulateKeys[sub]
+		}
+	}
+	return specKeys[key].allowed
+}
+
+// allowedNow says what key allows, with the level in force for power.
+func (r *reader) allowedNow(key string) string {
+	if key == "power" && r.alpha > 0 {
+		return fmt.Sprintf("a number above alpha (%g) and below 1", r.alpha)
+	}
+	return allowedOf(key)
+}
+
+// fractionAccepts reports whether the fraction x would be accepted for key.
+func (r *reader) fractionAccepts(key string, x float64) bool {
+	if key == "margin" && r.precision {
+		return x > 0 && x < 0.5
+	}
+	return fractionRange(key, r.alpha)(x)
 }
 
 // rangeErr is the error for a number outside the range in allows. When
@@ -640,7 +712,7 @@ func (r *reader) number(key string) (v float64, e *entry, err *SpecError) {
 		if n.Kind == yaml.ScalarNode && percentLike.MatchString(n.Value) {
 			return 0, e, r.errAt(e, "%s", r.percentMsg(key, n))
 		}
-		return 0, e, r.errAt(e, "%s is not a number; allowed: %s", show(n), specKeys[key].allowed)
+		return 0, e, r.errAt(e, "%s is not a number; allowed: %s%s", show(n), specKeys[key].allowed, ratioHint(key, n))
 	}
 	f, perr := strconv.ParseFloat(strings.ReplaceAll(n.Value, "_", ""), 64)
 	if perr != nil || math.IsNaN(f) || math.IsInf(f, 0) {
@@ -652,6 +724,24 @@ func (r *reader) number(key string) (v float64, e *entry, err *SpecError) {
 		return 0, e, r.errAt(e, "%s is not a finite number; allowed: %s", show(n), specKeys[key].allowed)
 	}
 	return f, e, nil
+}
+
+var colonRatio = regexp.MustCompile(`^\s*([0-9]+(?:\.[0-9]+)?)\s*:\s*([0-9]+(?:\.[0-9]+)?)\s*$`)
+
+// ratioHint reads an allocation written as a:b (ratio: 1:2, as summaries
+// print it) as the number ratio takes, the second group per member of the
+// first: "; did you mean ratio: 2?".
+func ratioHint(key string, n *yaml.Node) string {
+	m := colonRatio.FindStringSubmatch(n.Value)
+	if key != "ratio" || n.Kind != yaml.ScalarNode || m == nil {
+		return ""
+	}
+	a, _ := strconv.ParseFloat(m[1], 64)
+	b, _ := strconv.ParseFloat(m[2], 64)
+	if !(a > 0 && b > 0) {
+		return ""
+	}
+	return fmt.Sprintf("; did you mean ratio: %s? (the second group's size per member of the first)", fmtFraction(b/a))
 }
 
 // whole reads a whole-number key.
@@ -702,10 +792,31 @@ func (r *reader) choice(key, def string, allowed ...string) (string, *entry, *Sp
 		}
 	}
 	msg := fmt.Sprintf("%s is not allowed; allowed: %s", show(e.node), orList(allowed))
-	if s, ok := nearest(v, allowed); ok {
+	s, ok := valueWords[key][wordKey(v)]
+	if !ok || !slices.Contains(allowed, s) {
+		s, ok = nearest(v, allowed)
+	}
+	if ok && r.fits(key, s) {
 		msg += fmt.Sprintf(" (did you mean %q?)", s)
 	}
 	return "", e, r.errAt(e, "%s", msg)
+}
+
+// fits reports whether value, suggested for key, is accepted by the design
+// read so far (a cohort has no time-to-event outcome).
+func (r *reader) fits(key, value string) bool {
+	if key != "outcome" {
+		return true
+	}
+	switch {
+	case r.design == "":
+		return true
+	case r.design == "case-control" || r.precision:
+		return value == "binary"
+	case r.design != "trial":
+		return value != "time-to-event"
+	}
+	return true
 }
 
 // show renders a YAML value for a message.

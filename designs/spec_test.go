@@ -68,7 +68,9 @@ func TestParseErrors(t *testing.T) {
 		{"set no equals", trialBase, []string{"alpha"}, 0, "", "key=value"},
 		{"set unknown", trialBase, []string{"powr=0.9"}, 0, "powr", `did you mean "power"`},
 		{"set unknown beside the file's key", trialBase, []string{"Power=0.9"}, 0, "Power", `did you mean "power"`},
-		{"set malformed", trialBase, []string{"alpha=[0.05"}, 0, "alpha", "value is not valid YAML"},
+		{"set malformed", trialBase, []string{"alpha=[0.05"}, 0, "alpha", "value is not valid YAML: a [ … ] list is not closed"},
+		{"set with a colon in its text", trialBase, []string{`title=Ward rounds: "a" trial`}, 0, "title", "value is not valid YAML"},
+		{"set with a quote not closed", trialBase, []string{`title="Ward rounds`}, 0, "title", "value is not valid YAML: a quotation mark is not closed"},
 		{"set nested into a number", trialBase, []string{"alpha.x=1"}, 0, "alpha", "has no nested keys"},
 		{"unknown key in capitals", trialBase + "ALPHA: 0.01\n", nil, 6, "ALPHA", `unknown key; did you mean "alpha"?`},
 		{"unknown key in capitals, given already", trialBase + "POWER: 0.9\n", nil, 6, "POWER", `did you mean "power"? (it is given already, at line 5)`},
@@ -81,7 +83,7 @@ func TestParseErrors(t *testing.T) {
 		{"percentage of a ratio", "version: 1\ndesign: trial\ncontrol_risk: 0.3\nrisk_ratio: 75%\npower: 0.8\n", nil, 4, "risk_ratio", "a ratio, not a percentage"},
 		{"binary file", "version: 1\x00\x00\x00", nil, 0, "", "is not a text file"},
 		{"invalid UTF-8", "version: 1\ndesign: \xff\n", nil, 2, "", "is not a text file"},
-		{"colon in a title", "version: 1\ndesign: trial\ntitle: Ward rounds: a trial\n", nil, 3, "", `needs quotes: title: "Ward rounds: a trial"`},
+		{"colon in a title", "version: 1\ndesign: trial\ntitle: Ward rounds: a trial\n", nil, 3, "", `put it in quotes: title: "Ward rounds: a trial"`},
 		// These two made Parse panic before: the direction check read the
 		// entry of mean_difference when the two means gave it, and the
 		// all-pairs check the entry of ratio when n_second gave it.

@@ -22,7 +22,7 @@ func (r *reader) build() *Spec {
 	switch {
 	case !r.keep(err):
 	case ve == nil:
-		r.missing("version", "allowed: 1 (add the line `version: 1`)")
+		r.missing("version", "", "1 (add the line `version: 1`)")
 	case v != 1:
 		// Another version's keys cannot be judged by this one's rules.
 		r.refuse(r.errAt(ve, "%d is not supported; allowed: 1", v))
@@ -95,10 +95,13 @@ func (r *reader) selection(s *Spec) (sel selector, ok bool) {
 	case !r.keep(err):
 		ok = false
 	case de == nil:
-		r.missing("design", "allowed: %s", orList(Designs))
+		r.missing("design", "", orList(Designs))
 		ok = false
 	}
 	s.Design = design
+	if ok {
+		r.design = design
+	}
 
 	goal := "comparison"
 	if ge := r.entries["goal"]; ge != nil && ok && design != "cross-sectional" {
@@ -112,6 +115,7 @@ func (r *reader) selection(s *Spec) (sel selector, ok bool) {
 		s.Goal = goal
 	}
 	precision := s.Goal == "precision"
+	r.precision = precision
 
 	outcome, oe, err := r.choice("outcome", "binary", "binary", "continuous", "time-to-event")
 	switch {
@@ -209,6 +213,11 @@ func (r *reader) hint(e *entry, sel *selector, allowed map[string]bool, typos bo
 		if k := suggestKey(e.key, sel, allowed, given); k != "" || !typos {
 			return k
 		}
+		if given[wordKey(e.key)] {
+			// The key itself in capitals, given already: no typo of
+			// another key.
+			return ""
+		}
 		var names []string
 		for a := range allowed {
 			if !given[a] {
@@ -222,6 +231,17 @@ func (r *reader) hint(e *entry, sel *selector, allowed map[string]bool, typos bo
 		return ""
 	}
 	if k := find(given); k != "" {
+		if sel != nil {
+			// A key that goes with none of those given already is no
+			// help: it would be refused next.
+			if noun, others := exclusive(k, *sel); noun != "" {
+				for _, o := range others {
+					if ge := r.entries[o]; ge != nil && ge != e {
+						return fmt.Sprintf("; %s is given already, by %s %s", noun, o, where(ge))
+					}
+				}
+			}
+		}
 		r.standsFor[k] = true
 		return didYouMean(e, k)
 	}
@@ -233,13 +253,18 @@ func (r *reader) hint(e *entry, sel *selector, allowed map[string]bool, typos bo
 	if head, sub, nested := strings.Cut(k, "."); nested {
 		ge = r.nested[head][sub]
 	}
-	switch {
-	case ge == nil:
+	if ge == nil {
 		return ""
-	case ge.line > 0:
-		return fmt.Sprintf("; did you mean %q? (it is given already, at line %d)", k, ge.line)
 	}
-	return fmt.Sprintf("; did you mean %q? (it is given already, by %s)", k, ge.file)
+	return fmt.Sprintf("; did you mean %q? (it is given already, %s)", k, where(ge))
+}
+
+// where says where an entry was given: "at line 4", or "by --set k=v".
+func where(e *entry) string {
+	if e.line > 0 {
+		return fmt.Sprintf("at line %d", e.line)
+	}
+	return "by " + e.file
 }
 
 // didYouMean suggests key k in place of e: a nested key (cluster.icc) is
@@ -436,15 +461,15 @@ func (r *reader) optNum(key string, def float64, in func(float64) bool) (float64
 
 func in01(x float64) bool { return x > 0 && x < 1 }
 
-// probability reads a required probability in (0, 1); on a problem,
-// recorded, it returns false.
-func (r *reader) probability(key, why string) (float64, bool) {
+// probability reads a required probability in (0, 1), what says what it
+// is; on a problem, recorded, it returns false.
+func (r *reader) probability(key, what string) (float64, bool) {
 	x, e, err := r.number(key)
 	switch {
 	case !r.keep(err):
 		return 0, false
 	case e == nil:
-		r.missing(key, "%s, a probability in (0, 1)", why)
+		r.missing(key, "", what+", a probability in (0, 1)")
 		return 0, false
 	case !in01(x):
 		r.refuse(r.rangeErr(e, x, "a probability strictly between 0 and 1", in01))
@@ -459,7 +484,7 @@ func (r *reader) buildPrecision(s *Spec) {
 		r.refuse(r.methodError(s))
 		s.Method = "wald"
 	}
-	s.ExpectedPrevalence, _ = r.probability("expected_prevalence", "required: the prevalence you expect to estimate")
+	s.ExpectedPrevalence, _ = r.probability("expected_prevalence", "the prevalence you expect to estimate")
 	s.Confidence, _ = r.rangeNum("confidence", 0.95, func(x float64) bool { return x >= 0.5 && x < 1 })
 	pop, pe, err := r.whole("population")
 	popOK := r.keep(err)
@@ -478,7 +503,7 @@ func (r *reader) buildPrecision(s *Spec) {
 		case !r.keep(err):
 		case me == nil:
 			if !r.solveBad {
-				r.missing("margin", "required when solving n: the half-width of the confidence interval, in (0, 0.5)")
+				r.missing("margin", "required when solving n", "the half-width of the confidence interval, a number in (0, 0.5)")
 			}
 		case !inMargin(m):
 			r.refuse(r.rangeErr(me, m, "a number in (0, 0.5)", inMargin))
@@ -489,7 +514,7 @@ func (r *reader) buildPrecision(s *Spec) {
 			s.Ignored = append(s.Ignored, "total is ignored when solving n")
 		}
 	case "effect":
-		sizeOK := r.size(s, "total", "required when solving effect: the number of people to be surveyed")
+		sizeOK := r.size(s, "total", "required when solving effect", "the number of people to be surveyed")
 		if r.get("margin") != nil {
 			s.Ignored = append(s.Ignored, "margin is ignored when solving effect (the margin is what is solved)")
 		}
@@ -541,15 +566,15 @@ func (r *reader) methodError(s *Spec) *SpecError {
 	return r.errAt(e, "%s", msg)
 }
 
-// size reads the required group or survey size key; on a problem,
-// recorded, it returns false.
-func (r *reader) size(s *Spec, key, why string) bool {
+// size reads the group or survey size key, required (why) and what it is;
+// on a problem, recorded, it returns false.
+func (r *reader) size(s *Spec, key, why, what string) bool {
 	x, e, err := r.whole(key)
 	switch {
 	case !r.keep(err):
 		return false
 	case e == nil:
-		r.missing(key, "%s, a whole number of at least 2", why)
+		r.missing(key, why, what+", a whole number of at least 2")
 		return false
 	case x < 2:
 		r.refuse(r.errAt(e, "%d is out of range; allowed: %s", x, specKeys[key].allowed))

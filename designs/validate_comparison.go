@@ -84,6 +84,9 @@ func (r *reader) buildComparison(s *Spec) {
 	}
 	var alphaOK bool
 	s.Alpha, alphaOK = r.rangeNum("alpha", defAlpha, func(x float64) bool { return x > 0 && x <= 0.5 })
+	if alphaOK {
+		r.alpha = s.Alpha
+	}
 	r.buildSides(s)
 
 	// power
@@ -97,7 +100,7 @@ func (r *reader) buildComparison(s *Spec) {
 		}
 	case pe == nil:
 		if !r.solveBad {
-			r.missing("power", "required when solving %s: the target power, a number above alpha and below 1 (e.g. 0.8)", s.Solve)
+			r.missing("power", "required when solving "+s.Solve, "the target power, a number above alpha and below 1 (e.g. 0.8)")
 		}
 	case !alphaOK:
 		// The bound is unknown; only what no alpha allows is refused.
@@ -124,14 +127,14 @@ func (r *reader) buildComparison(s *Spec) {
 		if s.Pairing == "paired" {
 			what = "the number of pairs"
 		}
-		sizeOK = r.size(s, ro.size, "required when solving "+s.Solve+": "+what)
+		sizeOK = r.size(s, ro.size, "required when solving "+s.Solve, what)
 	} else if r.get(ro.size) != nil {
 		s.Ignored = append(s.Ignored, ro.size+" is ignored when solving n")
 	}
 	if s.Design == "cross-sectional" {
 		var ok bool
 		s.Ratio = 1
-		if s.ExposurePrevalence, ok = r.probability("exposure_prevalence", "required: the fraction of the surveyed population that is exposed"); ok {
+		if s.ExposurePrevalence, ok = r.probability("exposure_prevalence", "the fraction of the surveyed population that is exposed"); ok {
 			s.Ratio = (1 - s.ExposurePrevalence) / s.ExposurePrevalence
 		}
 	} else {
@@ -179,6 +182,12 @@ func (r *reader) buildComparison(s *Spec) {
 func (r *reader) buildSides(s *Spec) {
 	sides, sde, err := r.whole("sides")
 	s.Sides = 2
+	if err != nil && sde != nil && sde.node.Kind == yaml.ScalarNode {
+		// sides: two is 2, when the hypothesis takes it.
+		if w, ok := valueWords["sides"][wordKey(sde.node.Value)]; ok && (s.Hypothesis == "superiority" || (s.Hypothesis == "non-inferiority" && w == "1")) {
+			err.Msg += "; did you mean sides: " + w + "?"
+		}
+	}
 	if !r.keep(err) {
 		return
 	}
@@ -257,16 +266,20 @@ func (r *reader) buildTrial(s *Spec) {
 			e := m[sub]
 			if e == nil {
 				if required && !r.refused["cluster."+sub] {
-					r.refuse(&SpecError{File: ce.file, Line: ce.line, Key: "cluster." + sub, Msg: "missing; required: " + clusterKeys[sub]})
+					r.refuse(&SpecError{File: ce.file, Line: ce.line, Key: "cluster." + sub, Msg: "missing; allowed: " + clusterKeys[sub]})
 					good = false
 				}
 				return
 			}
 			var x float64
-			if e.node.Kind != yaml.ScalarNode || (e.node.Tag != "!!int" && e.node.Tag != "!!float") {
+			if e.node.Kind == yaml.ScalarNode && percentLike.MatchString(e.node.Value) {
+				r.refuse(r.errAt(e, "%s", r.percentMsg("cluster."+sub, e.node)))
+			} else if e.node.Kind != yaml.ScalarNode || (e.node.Tag != "!!int" && e.node.Tag != "!!float") {
 				r.refuse(r.errAt(e, "%s is not a number; allowed: %s", show(e.node), clusterKeys[sub]))
-			} else if _, err := fmt.Sscan(strings.ReplaceAll(e.node.Value, "_", ""), &x); err != nil || !in(x) {
-				r.refuse(r.errAt(e, "%s is out of range; allowed: %s", show(e.node), clusterKeys[sub]))
+			} else if _, err := fmt.Sscan(strings.ReplaceAll(e.node.Value, "_", ""), &x); err != nil {
+				r.refuse(r.errAt(e, "%s is not a number; allowed: %s", show(e.node), clusterKeys[sub]))
+			} else if !in(x) {
+				r.refuse(r.rangeErr(e, x, clusterKeys[sub], in))
 			} else {
 				*dst = x
 				return
@@ -329,7 +342,7 @@ func (r *reader) buildMargin(s *Spec) {
 		if s.Outcome == "time-to-event" {
 			what = "false when the event is harmful, so that a lower hazard is better (the usual case), true when the event is desirable (e.g. recovery)"
 		}
-		r.missing("higher_is_better", "required for hypothesis non-inferiority: %s", what)
+		r.missing("higher_is_better", "required for hypothesis non-inferiority", what)
 		ok = false
 	}
 	s.HigherIsBetter = hb
@@ -359,7 +372,7 @@ func (r *reader) buildMargin(s *Spec) {
 	case !r.keep(err):
 		return
 	case me == nil:
-		r.missing("margin", "required for hypothesis %s: the %s margin %s", s.Hypothesis, s.Hypothesis, what)
+		r.missing("margin", "required for hypothesis "+s.Hypothesis, "the "+s.Hypothesis+" margin "+what)
 		return
 	case ratio && ok:
 		in := func(x float64) bool { return x > 1 && !math.IsInf(x, 1) }
@@ -461,7 +474,8 @@ func (r *reader) buildDirection(s *Spec) {
 		r.refuse(r.errAt(de, "%s disagrees with %s %s, which puts the first group %s; allowed: %s, or an effect on the other side", dv, s.EffectKey, effect, map[int]string{1: "higher", -1: "lower"}[implied], word[implied]))
 	case given == 0 && implied == 0:
 		if !r.solveBad {
-			r.missing("direction", "required with sides: 1 when %s states no difference: first-higher or first-lower (the side the one-sided test looks: the first group's %s higher, or lower, than the second's)", s.EffectKey, map[string]string{"continuous": "mean", "time-to-event": "hazard"}[s.Outcome]+map[bool]string{true: "risk", false: ""}[s.Outcome == "binary"])
+			r.missing("direction", "required with sides: 1 when "+s.EffectKey+" states no difference",
+				"first-higher or first-lower (the side the one-sided test looks: the first group's "+map[string]string{"continuous": "mean", "time-to-event": "hazard", "binary": "risk"}[s.Outcome]+" higher, or lower, than the second's)")
 		}
 	case given != 0:
 		s.Direction = given
@@ -475,7 +489,7 @@ func (r *reader) buildBinary(s *Spec) {
 	ro := roles[s.Design]
 	s.ReferenceKey = ro.reference
 	var p2OK bool
-	s.P2, p2OK = r.probability(ro.reference, "required: the risk in the "+orDefault(s.SecondGroup, ro.second))
+	s.P2, p2OK = r.probability(ro.reference, "the risk in the "+orDefault(s.SecondGroup, ro.second))
 	if s.Hypothesis == "superiority" {
 		// Which values of the outcome are good: wording only (a risk or
 		// a proportion, benefit or harm); not the side of a test.
@@ -658,7 +672,7 @@ func (r *reader) buildContinuous(s *Spec) {
 		if fe == nil {
 			missing = ro.means[0]
 		}
-		r.missing(missing, "the two group means go together (or give mean_difference)")
+		r.missing(missing, "the two group means go together", "both "+ro.means[0]+" and "+ro.means[1]+", or mean_difference alone")
 	case s.Hypothesis == "superiority":
 		if !r.outcomeDoubt && !r.standsFor["mean_difference"] && !r.standsFor[ro.means[0]] && !r.standsFor[ro.means[1]] {
 			r.refuse(r.errFile("", "no effect given; allowed: mean_difference, or both %s and %s", ro.means[0], ro.means[1]))
@@ -705,9 +719,9 @@ func (r *reader) buildContinuous(s *Spec) {
 				s.RawSD1, s.WithinCorrelation = sd, rho
 			}
 		case sde != nil:
-			r.missing("within_correlation", "with sd, a %s design needs the correlation between a participant's two measurements, in (-1, 1) (or give sd_difference)", s.Pairing)
+			r.missing("within_correlation", "with sd, a "+s.Pairing+" design needs the correlation between a participant's two measurements", "a number in (-1, 1) (or sd_difference in place of sd)")
 		default:
-			r.missing("sd_difference", "required: the standard deviation of the within-participant differences, above 0 (or sd with within_correlation)")
+			r.missing("sd_difference", "", "the standard deviation of the within-participant differences, above 0 (or sd with within_correlation)")
 		}
 		s.SD2 = s.SD1
 		return
@@ -736,9 +750,9 @@ func (r *reader) buildContinuous(s *Spec) {
 		if sd1e == nil {
 			missing = "sd_first"
 		}
-		r.missing(missing, "sd_first and sd_second go together (or give sd)")
+		r.missing(missing, "sd_first and sd_second go together", "both sd_first and sd_second, or sd alone")
 	default:
-		r.missing("sd", "required: the standard deviation of the outcome, above 0 (or sd_first and sd_second)")
+		r.missing("sd", "", "the standard deviation of the outcome, above 0 (or sd_first and sd_second)")
 	}
 	s.RawSD1, s.RawSD2 = s.SD1, s.SD2
 	rho, _, _ := r.optNum("baseline_correlation", 0, func(x float64) bool { return x >= 0 && x < 1 })
@@ -761,7 +775,7 @@ func (r *reader) buildSurvival(s *Spec) {
 		// Non-inferiority and equivalence: no true difference by default.
 		hr = 1
 	case he == nil:
-		r.missing("hazard_ratio", "required: the intervention arm's hazard over the control arm's, above 0")
+		r.missing("hazard_ratio", "", "the intervention arm's hazard over the control arm's, above 0")
 		ok = false
 	case !pos(hr):
 		r.refuse(r.errAt(he, "%s is out of range; allowed: a number above 0", show(he.node)))
@@ -801,11 +815,11 @@ func (r *reader) buildSurvival(s *Spec) {
 			s.ControlHazard, s.ControlSurvival, s.SurvivalTime = -math.Log(surv)/t, surv, t
 		}
 	case surve != nil:
-		r.missing("time", "control_survival is the survival at this time, above 0")
+		r.missing("time", "control_survival is the survival at this time", "a time above 0")
 	case te != nil:
-		r.missing("control_survival", "time goes with control_survival, the control arm's survival at that time")
+		r.missing("control_survival", "time goes with control_survival", "the control arm's survival at that time, a probability in (0, 1)")
 	default:
-		r.missing("control_median", "required: the control arm's median survival time (or control_survival with time)")
+		r.missing("control_median", "", "the control arm's median survival time, above 0 (or control_survival with time)")
 	}
 	atLeast0 := func(x float64) bool { return x >= 0 && !math.IsInf(x, 0) }
 	var accOK bool
@@ -813,7 +827,7 @@ func (r *reader) buildSurvival(s *Spec) {
 	fu, fue, fuOK := r.optNum("follow_up", 0, atLeast0)
 	switch {
 	case fue == nil:
-		r.missing("follow_up", "required: the follow-up after the last participant enters, a time of at least 0")
+		r.missing("follow_up", "", "the follow-up after the last participant enters, a time of at least 0")
 	case fuOK && accOK && fu == 0 && s.Accrual == 0:
 		r.refuse(r.errAt(fue, "0 with no accrual period follows nobody; allowed: a follow-up above 0 (or an accrual period)"))
 	default:

@@ -98,6 +98,11 @@ func errorObjects(err error, src *sourced) []any {
 		case *designs.PlanError:
 			msg, allowed := splitAllowed(x.Msg)
 			return []any{otherErrorObject{File: x.File, Message: msg, Allowed: allowed}}
+		case *inputError:
+			msg, allowed := splitAllowed(x.msg)
+			return []any{otherErrorObject{File: x.file, Message: msg, Allowed: allowed}}
+		case *outputError:
+			return []any{otherErrorObject{File: x.path, Message: "cannot be written: " + x.why, Allowed: x.allowed}}
 		}
 	}
 	msg, allowed := splitAllowed(strings.TrimSpace(err.Error()))
@@ -143,9 +148,18 @@ func specObject(se *designs.SpecError, src *sourced) specErrorObject {
 	return o
 }
 
-// splitAllowed splits a message "what is wrong; allowed: what is".
+// splitAllowed splits a message "what is wrong; allowed: what is". A
+// suggestion after what is allowed ("; did you mean 0.2?", or ` (did you
+// mean "trial"?)`) says what is wrong, not what is allowed: it goes with
+// the message, as "; did you mean …?".
 func splitAllowed(msg string) (string, string) {
 	m, allowed, _ := strings.Cut(msg, "; allowed: ")
+	if i := strings.Index(allowed, "; did you mean "); i >= 0 {
+		return m + allowed[i:], allowed[:i]
+	}
+	if i := strings.LastIndex(allowed, " (did you mean "); i >= 0 && strings.HasSuffix(allowed, ")") {
+		return m + "; " + allowed[i+2:len(allowed)-1], allowed[:i]
+	}
 	return m, allowed
 }
 

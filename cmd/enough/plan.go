@@ -151,6 +151,21 @@ func planRun(opts *PlanOptions) error {
 	return stopped
 }
 
+// outputError is an output file that cannot be written: a failure that is
+// not the input's (exit status 1). It reads "cannot write PATH: why;
+// allowed: what is"; its JSON form gives the path as its file.
+type outputError struct {
+	path, why, allowed string
+}
+
+func (e *outputError) Error() string {
+	msg := "cannot write " + e.path + ": " + e.why
+	if e.allowed != "" {
+		msg += "; allowed: " + e.allowed
+	}
+	return msg
+}
+
 // emit writes data to path atomically, or to out when path is empty.
 func emit(out io.Writer, path string, data []byte) error {
 	if path == "" {
@@ -160,19 +175,19 @@ func emit(out io.Writer, path string, data []byte) error {
 	st, err := os.Stat(path)
 	switch {
 	case err == nil && st.IsDir():
-		return fmt.Errorf("cannot write %s: it is a directory; allowed: a file name", path)
+		return &outputError{path: path, why: "it is a directory", allowed: "a file name"}
 	case err == nil && !st.Mode().IsRegular():
 		// A device or a pipe (such as /dev/stdout): write to it as it is.
 		f, err := os.OpenFile(path, os.O_WRONLY, 0)
 		if err != nil {
-			return fmt.Errorf("cannot write %s: %s", path, describe(err))
+			return &outputError{path: path, why: describe(err)}
 		}
 		_, werr := f.Write(data)
 		if cerr := f.Close(); werr == nil {
 			werr = cerr
 		}
 		if werr != nil {
-			return fmt.Errorf("cannot write %s: %s", path, describe(werr))
+			return &outputError{path: path, why: describe(werr)}
 		}
 		return nil
 	}
@@ -181,7 +196,11 @@ func emit(out io.Writer, path string, data []byte) error {
 		path = real
 	}
 	if err := writeAtomic(path, data); err != nil {
-		return fmt.Errorf("cannot write %s: %s", path, describe(err))
+		dir := filepath.Dir(path)
+		if _, derr := os.Stat(dir); errors.Is(derr, fs.ErrNotExist) {
+			return &outputError{path: path, why: "the directory " + dir + " does not exist", allowed: "a file in an existing directory"}
+		}
+		return &outputError{path: path, why: describe(err)}
 	}
 	return nil
 }

@@ -56,10 +56,17 @@ type IO struct {
 	ErrOut io.Writer
 }
 
-// inputError marks a usage problem (exit status 2).
-type inputError struct{ msg string }
+// inputError marks a usage problem (exit status 2). file, when set, is
+// the specification the problem is about: the text line starts with it,
+// and the JSON form gives it as its file.
+type inputError struct{ file, msg string }
 
-func (e *inputError) Error() string { return e.msg }
+func (e *inputError) Error() string {
+	if e.file != "" {
+		return e.file + ": " + e.msg
+	}
+	return e.msg
+}
 
 // commands names the documented commands, for the message on an unknown one.
 var commands = []string{"plan", "simulate", "new", "methods"}

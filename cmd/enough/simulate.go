@@ -7,6 +7,7 @@ import (
 	"io"
 	"os"
 	"os/signal"
+	"strings"
 	"time"
 
 	"github.com/schollz/progressbar/v3"
@@ -77,8 +78,14 @@ func simulate(spec *designs.Spec, res *designs.Result, opts *PlanOptions) error 
 	if f.MaxSeconds < 0 {
 		return &inputError{msg: fmt.Sprintf("--max-seconds: %g is out of range; allowed: 0 (no limit) or more", f.MaxSeconds)}
 	}
-	if f.Replicates < 0 {
+	switch {
+	case f.Replicates < 0:
 		return &inputError{msg: fmt.Sprintf("--replicates: %d is out of range; allowed: at least 100 (0 keeps the specification's)", f.Replicates)}
+	case f.Replicates > 0 && f.Replicates < 100:
+		// The flag's value is the problem, not the specification.
+		return &flagError{flag: "--replicates", msg: fmt.Sprintf("%d is too few", f.Replicates), allowed: "at least 100"}
+	case f.Replicates > 0 && f.MaxReplicates > 0 && f.Replicates > f.MaxReplicates:
+		return &flagError{flag: "--replicates", msg: fmt.Sprintf("%d is more than --max-replicates (%d)", f.Replicates, f.MaxReplicates), allowed: "at most --max-replicates, or raise --max-replicates"}
 	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
@@ -92,6 +99,11 @@ func simulate(spec *designs.Spec, res *designs.Result, opts *PlanOptions) error 
 	var ie *designs.InputError
 	switch {
 	case errors.As(err, &ie):
+		// The specification's name comes first: it goes in the file of
+		// the JSON form, not in its message.
+		if rest, ok := strings.CutPrefix(ie.Msg, spec.File+": "); ok && spec.File != "" {
+			return &inputError{file: spec.File, msg: rest}
+		}
 		return &inputError{msg: err.Error()}
 	case errors.Is(err, designs.ErrStopped):
 		return errInterrupted

@@ -5,6 +5,8 @@ import (
 	"math"
 	"strconv"
 	"strings"
+	"unicode"
+	"unicode/utf8"
 
 	"enough/designs"
 )
@@ -204,11 +206,13 @@ func sentences(lines []string) []string {
 	return out
 }
 
+// capitalise puts the first letter in upper case (any alphabet).
 func capitalise(s string) string {
 	if s == "" {
 		return s
 	}
-	return strings.ToUpper(s[:1]) + s[1:]
+	c, n := utf8.DecodeRuneInString(s)
+	return string(unicode.ToUpper(c)) + s[n:]
 }
 
 func assumptionSection(r *designs.Result) section {
@@ -349,7 +353,7 @@ func answerSection(r *designs.Result) section {
 			}
 			var line string
 			if firstRiskScale(det.Scale) && side.e != nil {
-				line = fmt.Sprintf("**%s: %s**", capitalise(side.name), detectablePhrase(r, det.Scale, *side.v, side.e))
+				line = fmt.Sprintf("**%s: %s**", capitalise(side.name), effectPhrase(r, det.Scale, []float64{*side.v}, []*designs.Effect{side.e}))
 			} else {
 				line = fmt.Sprintf("**%s: %s %s**", capitalise(side.name), name, valueOn(det.Scale, *side.v))
 				if side.e != nil && (side.e.FirstRisk != nil || side.e.CaseExposure != nil) {
@@ -360,7 +364,7 @@ func answerSection(r *designs.Result) section {
 				line += fmt.Sprintf(" (Cohen's d = %s)", num(*side.e.StandardizedDifference))
 			}
 			if side.dv != nil {
-				line += " for those who receive the intervention; an intention-to-treat analysis sees " + valuesOn(r, det.Scale, []float64{*side.dv})
+				line += " for those who receive the intervention; an intention-to-treat analysis sees " + effectPhrase(r, det.Scale, []float64{*side.dv}, nil)
 			}
 			s.bullets = append(s.bullets, line)
 		}
@@ -368,7 +372,8 @@ func answerSection(r *designs.Result) section {
 			fmt.Sprintf("Power: %s; enrolled %s; %s: %s", pct1(*r.Power), groups(a.Enrol), strings.ToLower(analysable[:1])+analysable[1:], sizeList(a.N, r)))
 	}
 	if a.Events > 0 {
-		s.bullets = append(s.bullets, fmt.Sprintf("Events required: %s", count(a.Events)))
+		need, rounded := eventsRequired(r)
+		s.bullets = append(s.bullets, fmt.Sprintf("Events required%s: %s%s", per, need, rounded))
 	}
 	if a.ExpectedEvents != nil {
 		s.bullets = append(s.bullets, fmt.Sprintf("Events expected at the analysable sizes: %.1f", *a.ExpectedEvents))
@@ -390,8 +395,7 @@ func answerSection(r *designs.Result) section {
 	}
 	s.afterTable = groupTable(r)
 	if r.Design == "cross-sectional" {
-		f, _ := groupsOf(r)
-		s.after = append(s.after, fmt.Sprintf("The split follows from the expected share of %s among those surveyed (%s).", f.the(), pct(r.Spec.ExposurePrevalence)))
+		s.after = append(s.after, fmt.Sprintf("The split follows from `exposure_prevalence`, the share of those surveyed expected in the first group (%s).", pct(r.Spec.ExposurePrevalence)))
 	}
 	return s
 }
@@ -412,7 +416,7 @@ func groupTable(r *designs.Result) [][]string {
 	alloc := []string{"1", strings.TrimPrefix(allocation(*r.Ratio), "1:")}
 	if r.Design == "cross-sectional" {
 		share = "Share surveyed"
-		alloc = []string{pct(r.Spec.ExposurePrevalence), pct(1 - r.Spec.ExposurePrevalence)}
+		alloc = []string{pct(r.Spec.ExposurePrevalence), "the rest"}
 	}
 	head := []string{"Group", share, enrol, "Analysable"}
 	if a.Clusters != nil {
@@ -446,26 +450,6 @@ func groupTable(r *designs.Result) [][]string {
 	return append(rows, totalRow)
 }
 
-// valuesOn states one or two values on the scale of an effect key: "a
-// difference in means of −5.16 or 5.16", or on the first group's own risk
-// "a risk of 9.55% in the exposed".
-func valuesOn(r *designs.Result, key string, vs []float64) string {
-	var texts []string
-	for _, v := range vs {
-		texts = append(texts, valueOn(key, v))
-	}
-	if firstRiskScale(key) {
-		f, _ := groupsOf(r)
-		noun := vocabOf(r).noun
-		if r.Design == "case-control" {
-			return fmt.Sprintf("%s of %s exposed", strings.Join(texts, " or "), f.the())
-		}
-		return fmt.Sprintf("%s %s of %s %s", article(noun), noun, strings.Join(texts, " or "), f.in())
-	}
-	name := scaleName(r, key)
-	return fmt.Sprintf("%s %s of %s", article(name), name, strings.Join(texts, " or "))
-}
-
 // valueOn formats a value on the scale of an effect key.
 func valueOn(key string, v float64) string {
 	switch {
@@ -479,11 +463,13 @@ func valueOn(key string, v float64) string {
 	return pct(v)
 }
 
-// restateShort gives the two groups' risks (or exposures) of an effect.
+// restateShort gives the two groups' risks (or exposures) of an effect:
+// "risk 1.65% among the exposed against 5% among the unexposed".
 func restateShort(r *designs.Result, e *designs.Effect) string {
 	f, g := groupsOf(r)
+	f, g = f.bracketed(), g.bracketed() // the restatement is in parentheses
 	if e.CaseExposure != nil {
-		return fmt.Sprintf("%s of %s exposed against %s of %s", pct(*e.CaseExposure), f.the(), pct(*e.ControlExposure), g.the())
+		return fmt.Sprintf("proportion exposed %s %s against %s %s", pct(*e.CaseExposure), f.in(), pct(*e.ControlExposure), g.in())
 	}
 	return fmt.Sprintf("%s %s %s against %s %s", vocabOf(r).noun, pct(*e.FirstRisk), f.in(), pct(*e.SecondRisk), g.in())
 }
@@ -494,6 +480,7 @@ func effectSection(r *designs.Result) *section {
 		return nil
 	}
 	f, g := groupsOf(r)
+	fb, gb := f.bracketed(), g.bracketed() // for labels in parentheses
 	s := &section{heading: "The planned effect on every scale"}
 	if e.MeanDifference != nil {
 		if r.Spec.Pairing != "" && r.Spec.Pairing != "crossover" {
@@ -508,7 +495,7 @@ func effectSection(r *designs.Result) *section {
 			}
 		} else {
 			s.bullets = []string{
-				fmt.Sprintf("Difference in means (%s minus %s): %s", f.label, g.label, num(*e.MeanDifference)),
+				fmt.Sprintf("Difference in means (%s minus %s): %s", fb.label, gb.label, num(*e.MeanDifference)),
 				fmt.Sprintf("In standard deviations of the outcome (Cohen's d): %s", num(*e.StandardizedDifference)),
 			}
 		}
@@ -520,7 +507,7 @@ func effectSection(r *designs.Result) *section {
 	if e.HazardRatio != nil {
 		sp := r.Spec
 		s.bullets = []string{
-			fmt.Sprintf("Hazard ratio (%s over %s): %s", f.label, g.label, num(*e.HazardRatio)),
+			fmt.Sprintf("Hazard ratio (%s over %s): %s", fb.label, gb.label, num(*e.HazardRatio)),
 			fmt.Sprintf("Median survival under exponential hazards: %s %s, %s %s",
 				duration(math.Ln2/sp.ControlHazard, sp.TimeUnit), g.in(), duration(math.Ln2/(sp.ControlHazard**e.HazardRatio), sp.TimeUnit), f.in()),
 		}
@@ -541,9 +528,9 @@ func effectSection(r *designs.Result) *section {
 	v := vocabOf(r)
 	s.bullets = []string{
 		fmt.Sprintf("%s %s: %s; %s: %s", capitalise(v.noun), f.in(), pct(*e.FirstRisk), g.in(), pct(*e.SecondRisk)),
-		fmt.Sprintf("%s (%s over %s): %s", capitalise(v.ratio), f.label, g.label, num(*e.RiskRatio)),
+		fmt.Sprintf("%s (%s over %s): %s", capitalise(v.ratio), fb.label, gb.label, num(*e.RiskRatio)),
 		fmt.Sprintf("Odds ratio: %s", num(*e.OddsRatio)),
-		fmt.Sprintf("%s (%s minus %s): %s", capitalise(v.diff), f.label, g.label, pp(*e.RiskDifference)),
+		fmt.Sprintf("%s (%s minus %s): %s", capitalise(v.diff), fb.label, gb.label, pp(*e.RiskDifference)),
 	}
 	if e.NNT != nil {
 		s.bullets = append(s.bullets, nntLine(r, *e.NNT, *e.RiskDifference))
@@ -558,7 +545,8 @@ func effectSection(r *designs.Result) *section {
 func nntLine(r *designs.Result, nnt int, rd float64) string {
 	desirable := r.Spec.HigherIsBetter
 	benefit := (rd > 0) == desirable
-	f, g := groupsOf(r)
+	fb, gb := groupsOf(r)
+	fb, gb = fb.bracketed(), gb.bracketed() // the labels are in parentheses
 	v := vocabOf(r)
 	trial := r.Design == "trial"
 	name := "Number needed to harm"
@@ -587,7 +575,7 @@ func nntLine(r *designs.Result, nnt int, rd float64) string {
 	default:
 		what = "one " + event + " fewer"
 	}
-	return fmt.Sprintf("%s (%s against %s): %s, that is %s for every %s %s (1/|%s|, rounded up)", name, f.label, g.label, count(nnt), what, count(nnt), who, v.diff)
+	return fmt.Sprintf("%s (%s against %s): %s, that is %s for every %s %s (1/|%s|, rounded up)", name, fb.label, gb.label, count(nnt), what, count(nnt), who, v.diff)
 }
 
 func alternativeSection(r *designs.Result) section {

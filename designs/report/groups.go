@@ -1,80 +1,130 @@
 package report
 
 import (
+	"regexp"
 	"strings"
 
 	"enough/designs"
 )
 
-// groupForm is the grammatical form of a group's label, which decides how
-// a sentence can put a number or a preposition in front of it.
+// A group label is the user's own words, and the summary cannot know what
+// they mean: "midwives", "honey-alginate dressing", "arm A", "the Ngöbe
+// villages", "office staff at the Łódź depot". The rule is therefore
+// neutral: a sentence puts a number or a preposition in front of a label
+// only in a form that reads for any noun phrase, and a plan's two groups
+// always share one form.
+//
+//   - A label that names where the members are, by its last word ("follow-up
+//     arm", "club schools", "the Ngöbe villages") or as a container and an
+//     identifier ("arm A", "group 2", "sequence AB"), takes "in": "734 in the
+//     follow-up arm", "a risk of 18% in arm A". A last word after a link
+//     word is not the head ("workers at the clinic" are people, not a
+//     clinic). A leading "the" is dropped where the sentence adds its own.
+//   - The role words of the designs' defaults ("cases", "controls",
+//     "exposed", "unexposed") take a number directly: "170 cases", "400
+//     exposed", "among cases", "in the exposed".
+//   - Any other label, or a plan whose two labels are not of one of those
+//     kinds together, is named rather than put in a sentence's grammar: a
+//     size is "244 (honey-alginate dressing)", a measure is "a risk of 10%
+//     for honey-alginate dressing", two groups are compared "between
+//     honey-alginate dressing and standard foam dressing".
+//
+// Labels are folded to one line (a newline would break a table row), and a
+// label's own parentheses become brackets inside the summary's.
+
+// groupForm is how a plan's sentences put a number or a preposition in
+// front of its groups' labels. Both groups of a plan share it.
 type groupForm int
 
 const (
-	// formPlace names an arm, a group or a set of clusters: "follow-up
-	// arm", "club schools", "first sequence". Sizes read "734 in the
-	// follow-up arm".
-	formPlace groupForm = iota
-	// formSequence names a crossover sequence by its order: "sequence
-	// splint-then-none". Sizes read "24 in sequence splint-then-none".
-	formSequence
-	// formTreatment names what a trial arm receives: "honey-alginate
-	// dressing". Sizes read "244 participants receiving honey-alginate
-	// dressing".
-	formTreatment
-	// formPeople names the members themselves, in the plural: "smokers",
-	// "cases", "workers on the bottling lines (above 85 dBA)". Sizes read
-	// "438 smokers".
-	formPeople
-	// formAdjective is an adjective used as a noun: "exposed",
-	// "unexposed". Sizes read "400 exposed"; "in the exposed".
-	formAdjective
-	// formNamed is any other label of an observational study, such as an
-	// exposure: "night-shift work". Sizes read "400 in the night-shift work
-	// group".
-	formNamed
+	// formNamed is the neutral form: "244 (honey-alginate dressing)", "for
+	// honey-alginate dressing".
+	formNamed groupForm = iota
+	// formPlace is for two labels that name where the members are: "734 in
+	// the follow-up arm", "24 in sequence AB".
+	formPlace
+	// formRole is for two role words of the defaults: "170 cases", "400
+	// exposed", "among cases", "in the exposed".
+	formRole
+)
+
+// labelKind is what a single label is, before the plan's form is chosen.
+type labelKind int
+
+const (
+	kindOther     labelKind = iota
+	kindPlaceHead           // the last word names a place: "follow-up arm"
+	kindPlaceID             // a container and an identifier: "arm A"
+	kindRole                // a role word of the defaults: "cases", "exposed"
 )
 
 // group is one study group as the summary names it.
 type group struct {
-	label  string
-	form   groupForm
-	plural bool // the label's head noun is plural ("club schools")
+	label string // as given, on one line
+	kind  labelKind
+	form  groupForm
+	ref   string // as a noun phrase: "the follow-up arm", "arm A", "cases", "the exposed", "midwives"
+	role  string // the role word of a kindRole label: "cases", "exposed"
 }
 
-// placeNouns are the head nouns of labels that name an arm, a group or the
-// clusters it is made of: "N in the ‹label›" fits them.
-var placeNouns = map[string]bool{
+// placeHeads are the last words of labels that name where the members are:
+// "N in the ‹label›" fits them.
+var placeHeads = map[string]bool{
 	"arm": true, "arms": true, "group": true, "groups": true, "sequence": true,
-	"cohort": true, "cohorts": true, "sample": true, "stratum": true, "strata": true,
-	"cluster": true, "clusters": true, "school": true, "schools": true, "class": true, "classes": true,
-	"ward": true, "wards": true, "clinic": true, "clinics": true, "practice": true, "practices": true,
-	"site": true, "sites": true, "village": true, "villages": true, "district": true, "districts": true,
-	"hospital": true, "hospitals": true, "centre": true, "centres": true, "center": true, "centers": true,
-	"community": true, "communities": true, "team": true, "teams": true, "unit": true, "units": true,
-	"household": true, "households": true, "home": true, "homes": true, "region": true, "regions": true,
-	"population": true, "condition": true, "series": true,
+	"cohort": true, "cohorts": true, "cluster": true, "clusters": true, "stratum": true, "strata": true,
+	"sample": true, "clinic": true, "clinics": true, "ward": true, "wards": true, "practices": true,
+	"school": true, "schools": true, "class": true, "classes": true, "village": true, "villages": true,
+	"site": true, "sites": true, "district": true, "districts": true, "hospital": true, "hospitals": true,
+	"centre": true, "centres": true, "center": true, "centers": true, "community": true, "communities": true,
+	"unit": true, "units": true, "team": true, "teams": true, "household": true, "households": true,
+	"homes": true, "condition": true, "region": true, "regions": true, "population": true,
 }
 
-// peopleNouns are nouns for people: a label that starts or ends with one
-// names the members themselves ("workers on the bottling lines", "night-
-// shift workers"), so "N ‹label›" fits it in any design.
-var peopleNouns = map[string]bool{
-	"people": true, "persons": true, "participants": true, "patients": true, "cases": true,
-	"controls": true, "workers": true, "smokers": true, "non-smokers": true, "ex-smokers": true,
-	"nonsmokers": true, "drinkers": true, "non-drinkers": true, "users": true, "non-users": true,
-	"women": true, "men": true, "girls": true, "boys": true, "children": true, "infants": true,
-	"babies": true, "adolescents": true, "adults": true, "mothers": true, "fathers": true,
-	"parents": true, "pupils": true, "students": true, "residents": true, "employees": true,
-	"nurses": true, "doctors": true, "physicians": true, "clinicians": true, "respondents": true,
-	"volunteers": true, "survivors": true, "carers": true, "caregivers": true, "members": true,
-	"athletes": true, "farmers": true, "miners": true, "drivers": true, "veterans": true,
-	"retirees": true, "pensioners": true, "migrants": true, "refugees": true, "twins": true,
-	"newborns": true, "neonates": true, "recipients": true, "donors": true, "individuals": true,
+// containers are the first words of labels such as "arm A", "group 2",
+// "sequence AB": "N in ‹label›" fits them when an identifier follows.
+var containers = map[string]bool{
+	"arm": true, "group": true, "sequence": true, "cohort": true, "cluster": true, "stratum": true,
+	"sample": true, "clinic": true, "ward": true, "school": true, "village": true, "site": true,
+	"district": true, "hospital": true, "centre": true, "center": true, "unit": true, "team": true,
+	"condition": true, "region": true, "period": true,
 }
 
-// words returns the label's words outside parentheses, lower-cased and
-// without surrounding punctuation.
+// linkWords are words after which a label's last word is no longer its
+// head: in "workers at the clinic" or "mothers visited at home" the members
+// are not a clinic or a home.
+var linkWords = map[string]bool{
+	"at": true, "with": true, "without": true, "in": true, "on": true, "of": true, "from": true,
+	"for": true, "near": true, "by": true, "under": true, "over": true, "after": true, "before": true,
+	"to": true, "into": true, "who": true, "whose": true, "that": true, "which": true, "receiving": true,
+	"given": true, "not": true, "than": true, "per": true, "via": true, "outside": true, "inside": true,
+	"within": true, "across": true, "versus": true, "vs": true, "plus": true, "minus": true, "like": true,
+}
+
+// roleRefs are the role words of the designs' defaults, as noun phrases.
+var roleRefs = map[string]string{
+	"cases": "cases", "controls": "controls",
+	"exposed": "the exposed", "unexposed": "the unexposed", "non-exposed": "the non-exposed",
+}
+
+// identifier matches what follows a container word: "A", "2", "3b", "II",
+// "AB".
+var identifier = regexp.MustCompile(`^([0-9]+[a-z]?|[A-Za-z]|[IVXivx]+|[A-Z0-9]{1,4})$`)
+
+// oneLine folds a label to one line with single spaces.
+func oneLine(s string) string {
+	return strings.Join(strings.Fields(s), " ")
+}
+
+// withoutThe drops a leading "the " (the sentence adds its own).
+func withoutThe(s string) string {
+	if len(s) > 4 && strings.EqualFold(s[:4], "the ") {
+		return s[4:]
+	}
+	return s
+}
+
+// words returns the label's words outside parentheses, without
+// surrounding punctuation, in their own case.
 func words(label string) []string {
 	var b strings.Builder
 	depth := 0
@@ -89,7 +139,7 @@ func words(label string) []string {
 		}
 	}
 	var out []string
-	for _, w := range strings.Fields(strings.ToLower(b.String())) {
+	for _, w := range strings.Fields(b.String()) {
 		if w = strings.Trim(w, ".,;:!?'\""); w != "" {
 			out = append(out, w)
 		}
@@ -97,134 +147,164 @@ func words(label string) []string {
 	return out
 }
 
-// newGroup classifies a label. The design matters only for labels that
-// name neither a place nor people: in a trial they name what the arm
-// receives, in an observational study the group's defining feature.
-func newGroup(label, design string) group {
-	g := group{label: label}
-	ws := words(label)
+// kindOf classifies one label; for a role word it also returns the word.
+func kindOf(label string) (labelKind, string) {
+	ws := words(withoutThe(label))
 	if len(ws) == 0 {
-		g.form = formNamed
-		return g
+		return kindOther, ""
 	}
-	first, last := ws[0], ws[len(ws)-1]
-	isPlural := func(w string) bool {
-		return strings.HasSuffix(w, "s") && !strings.HasSuffix(w, "ss") && w != "series"
+	lower := make([]string, len(ws))
+	for i, w := range ws {
+		lower[i] = strings.ToLower(w)
 	}
+	first, last := lower[0], lower[len(ws)-1]
 	switch {
-	case first == "sequence" && len(ws) > 1:
-		g.form = formSequence
-	case placeNouns[last]:
-		g.form, g.plural = formPlace, isPlural(last) || last == "strata"
-	case peopleNouns[first] || peopleNouns[last]:
-		g.form, g.plural = formPeople, true
-	case design == "trial":
-		g.form, g.plural = formTreatment, true
-	case strings.HasSuffix(last, "ed"):
-		g.form, g.plural = formAdjective, true
-	case isPlural(last):
-		g.form, g.plural = formPeople, true
-	default:
-		g.form = formNamed
+	case len(ws) == 1 && roleRefs[first] != "":
+		return kindRole, first
+	case len(ws) == 2 && containers[first] && (first == "sequence" || identifier.MatchString(ws[1])):
+		return kindPlaceID, ""
+	case placeHeads[last]:
+		for _, w := range lower[:len(lower)-1] {
+			if linkWords[w] {
+				return kindOther, ""
+			}
+		}
+		return kindPlaceHead, ""
 	}
-	return g
+	return kindOther, ""
+}
+
+// newGroups names a plan's two groups in one form.
+func newGroups(first, second string) (group, group) {
+	f := group{label: oneLine(first)}
+	g := group{label: oneLine(second)}
+	f.kind, f.role = kindOf(f.label)
+	g.kind, g.role = kindOf(g.label)
+	isPlace := func(k labelKind) bool { return k == kindPlaceHead || k == kindPlaceID }
+	form := formNamed
+	switch {
+	case isPlace(f.kind) && isPlace(g.kind):
+		form = formPlace
+	case f.kind == kindRole && g.kind == kindRole:
+		form = formRole
+	}
+	for _, x := range []*group{&f, &g} {
+		x.form = form
+		switch x.kind {
+		case kindPlaceHead:
+			x.ref = "the " + withoutThe(x.label)
+		case kindPlaceID:
+			x.ref = withoutThe(x.label)
+		case kindRole:
+			x.ref = roleRefs[x.role]
+		default:
+			x.ref = x.label
+		}
+	}
+	return f, g
 }
 
 // groupsOf returns the first and second groups of a result.
 func groupsOf(r *designs.Result) (group, group) {
-	return newGroup(r.FirstGroup, r.Design), newGroup(r.SecondGroup, r.Design)
+	return newGroups(r.FirstGroup, r.SecondGroup)
+}
+
+// bracketed returns the group as named inside the summary's parentheses:
+// its label's own parentheses become brackets.
+func (g group) bracketed() group {
+	r := strings.NewReplacer("(", "[", ")", "]")
+	g.label, g.ref = r.Replace(g.label), r.Replace(g.ref)
+	return g
+}
+
+// paren puts a label in the summary's parentheses; its own parentheses
+// become brackets: "(workers on the lines [above 85 dBA])".
+func paren(label string) string {
+	return "(" + group{label: label}.bracketed().label + ")"
 }
 
 // size puts a number of members in front of the group: "734 in the
-// follow-up arm", "244 participants receiving honey-alginate dressing",
-// "438 smokers", "400 exposed", "400 in the night-shift work group".
+// follow-up arm", "170 cases", "244 (honey-alginate dressing)".
 func (g group) size(n int) string {
-	return g.sizeText(count(n), n == 1)
+	return g.quantity(count(n))
 }
 
-func (g group) sizeText(n string, one bool) string {
+// quantity puts an amount in front of the group: "29 clusters in the club
+// schools", "30% (smokers)", "29 clusters of cases".
+func (g group) quantity(q string) string {
 	switch g.form {
 	case formPlace:
-		return n + " in the " + g.label
-	case formSequence:
-		return n + " in " + g.label
-	case formTreatment:
-		if one {
-			return n + " participant receiving " + g.label
+		return q + " in " + g.ref
+	case formRole:
+		if strings.ContainsAny(q, " ") {
+			return q + " of " + g.ref
 		}
-		return n + " participants receiving " + g.label
-	case formPeople, formAdjective:
-		return n + " " + g.label
+		return q + " " + g.role
 	}
-	return n + " in the " + g.label + " group"
+	return q + " " + paren(g.label)
 }
 
-// the names the group's members as a noun phrase: "the follow-up arm",
-// "participants receiving honey-alginate dressing", "smokers", "the
-// exposed".
+// the names the group as a noun phrase: "the follow-up arm", "arm A",
+// "cases", "the exposed", "honey-alginate dressing".
 func (g group) the() string {
-	switch g.form {
-	case formPlace, formAdjective:
-		return "the " + g.label
-	case formSequence, formPeople:
-		return g.label
-	case formTreatment:
-		return "participants receiving " + g.label
-	}
-	return "the " + g.label + " group"
+	return g.ref
 }
 
-// in places something in the group: "in the follow-up arm", "among
-// participants receiving honey-alginate dressing", "among smokers", "in
-// the exposed".
+// in places a measure in the group: "in the follow-up arm", "in the
+// exposed", "among cases", "for honey-alginate dressing".
 func (g group) in() string {
 	switch g.form {
-	case formPlace, formAdjective:
-		return "in the " + g.label
-	case formSequence:
-		return "in " + g.label
-	case formTreatment:
-		return "among participants receiving " + g.label
-	case formPeople:
-		return "among " + g.label
-	}
-	return "in the " + g.label + " group"
-}
-
-// allocatedTo names what participants are allocated to: "the follow-up
-// arm", "honey-alginate dressing", "sequence splint-then-none".
-func (g group) allocatedTo() string {
-	switch g.form {
-	case formTreatment, formSequence:
-		return g.label
 	case formPlace:
-		return "the " + g.label
+		return "in " + g.ref
+	case formRole:
+		if strings.HasPrefix(g.ref, "the ") {
+			return "in " + g.ref // "in the exposed"
+		}
+		return "among " + g.ref // "among cases"
 	}
-	return g.the()
+	return "for " + g.ref
 }
 
-// has conjugates "to have" for the group as a subject.
+// has conjugates "to have" for the group as a subject, in the place and
+// role forms, whose head noun is known: "the follow-up arm has", "the club
+// schools have", "cases have". (The neutral form never makes a label the
+// subject of a verb.)
 func (g group) has() string {
-	if g.plural {
+	head := g.role
+	if g.kind == kindPlaceHead {
+		ws := words(g.label)
+		head = strings.ToLower(ws[len(ws)-1])
+	}
+	if head == "strata" || head == "exposed" || head == "unexposed" || head == "non-exposed" ||
+		(strings.HasSuffix(head, "s") && !strings.HasSuffix(head, "ss")) {
 		return "have"
 	}
 	return "has"
 }
 
-// doesNot conjugates "not to have" for the group as a subject.
-func (g group) doesNot() string {
-	if g.plural {
-		return "do not"
+// subject names the group as the subject of a sentence about its share:
+// "the exposed", "the shift-work group", or for a label of no known kind
+// "the first group (night-shift work)".
+func (g group) subject(which string) string {
+	if g.kind == kindOther {
+		return "the " + which + " group " + paren(g.label)
 	}
-	return "does not"
+	return g.ref
+}
+
+// controlArm names the control arm of a trial with several arms, which a
+// sentence puts beside "each of the 2 intervention arms": in the place
+// form "the no-reminder arm" or "arm C", in any other "the control arm
+// (usual care)".
+func (g group) controlArm() string {
+	if g.form == formPlace {
+		return g.ref
+	}
+	return "the control arm " + paren(g.label)
 }
 
 // between names two groups as the objects of "between": "between the
-// follow-up arm and the usual-care arm", "between participants receiving
-// honey-alginate dressing and those receiving standard foam dressing".
+// follow-up arm and the usual-care arm", "between midwives and GPs".
 func between(f, g group) string {
-	if f.form == formTreatment && g.form == formTreatment {
-		return "between " + f.the() + " and those receiving " + g.label
-	}
 	return "between " + f.the() + " and " + g.the()
 }

@@ -75,7 +75,8 @@ func markdownTable(b *strings.Builder, table [][]string) {
 	for i, row := range table {
 		cells := make([]string, len(row))
 		for j, c := range row {
-			cells[j] = strings.ReplaceAll(c, "|", `\|`)
+			// A cell is one line: a newline would end the row.
+			cells[j] = strings.ReplaceAll(oneLine(c), "|", `\|`)
 		}
 		fmt.Fprintf(b, "| %s |\n", strings.Join(cells, " | "))
 		if i == 0 {
@@ -94,7 +95,7 @@ func textTable(b *strings.Builder, table [][]string) {
 	for _, row := range table {
 		cells := make([]string, len(row))
 		for j, c := range row {
-			cells[j] = plain(c)
+			cells[j] = plain(oneLine(c))
 		}
 		fmt.Fprintln(tw, strings.Join(cells, "\t"))
 	}

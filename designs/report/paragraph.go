@@ -2,6 +2,7 @@ package report
 
 import (
 	"fmt"
+	"strconv"
 	"strings"
 
 	"enough/designs"
@@ -80,15 +81,19 @@ func intro(b *strings.Builder, r *designs.Result) {
 	default:
 		test = fmt.Sprintf("%s at a %s alpha of %g", testPhrase(r), sidesWord(r.Sides), alpha)
 		if r.Sides == 1 {
-			test += fmt.Sprintf(" (rejecting only when %s %s %s)", f.the(), f.has(), directionWord(r))
+			if f.form == formNamed {
+				test += fmt.Sprintf(" (rejecting only when the %s is %s %s than %s)", directionNoun(r), directionWord(r), f.bracketed().in(), g.bracketed().in())
+			} else {
+				test += fmt.Sprintf(" (rejecting only when %s %s the %s %s)", f.bracketed().the(), f.has(), directionWord(r), directionNoun(r))
+			}
 		}
 	}
 	switch {
 	case r.Design == "case-control" && s.PrimaryOutcome != "":
-		fmt.Fprintf(b, "%s %s the primary outcome, %s, and %s %s; the primary analysis compares the proportion exposed between them using %s. ",
-			capitalise(f.the()), f.has(), outcome, g.the(), g.doesNot(), test)
+		fmt.Fprintf(b, "%s have the primary outcome, %s, and %s do not; the primary analysis compares the proportion exposed between them using %s. ",
+			capitalise(caseWord(f, "cases")), outcome, caseWord(g, "controls"), test)
 	case r.Design == "case-control":
-		fmt.Fprintf(b, "The primary analysis compares the proportion exposed %s using %s. ", between(f, g), test)
+		fmt.Fprintf(b, "The primary analysis compares the proportion exposed between %s and %s using %s. ", caseWord(f, "cases"), caseWord(g, "controls"), test)
 	case r.Design == "cross-sectional":
 		fmt.Fprintf(b, "The survey compares %s %s using %s. ", strings.ToLower(subject[:1])+subject[1:], between(f, g), test)
 	case s.Pairing == "paired":
@@ -112,11 +117,11 @@ func intro(b *strings.Builder, r *designs.Result) {
 		fmt.Fprintf(b, "The question is whether the difference between the arms lies within the equivalence margin of ±%s%s. ", marginText(s), source(r, "margin"))
 	}
 	if a := r.Result; a.Arms > 2 {
-		what := fmt.Sprintf("each of the %d intervention arms against %s", a.Arms-1, g.allocatedTo())
+		what := fmt.Sprintf("each of the %d intervention arms against %s", a.Arms-1, g.controlArm())
 		if s.Comparisons == "all-pairs" {
 			what = "every pair of arms"
 		}
-		fmt.Fprintf(b, "The trial has %d arms; the %d comparisons (%s) each use alpha %g/%d = %.4g (Bonferroni; Dunn 1961), and the analysis will use Holm's procedure (Holm 1979), which keeps the same family-wise error and is at least as powerful. ",
+		fmt.Fprintf(b, "The trial has %d arms and %d comparisons, %s; each comparison uses alpha %g/%d = %.4g (Bonferroni; Dunn 1961), and the analysis will use Holm's procedure (Holm 1979), which keeps the same family-wise error and is at least as powerful. ",
 			a.Arms, a.Comparisons, what, alpha, a.Comparisons, *a.AlphaPerComparison)
 	}
 }
@@ -132,18 +137,34 @@ func restricted(r *designs.Result) string {
 
 // directionWord says which way a one-sided superiority test looks.
 func directionWord(r *designs.Result) string {
-	lower := r.Spec.Direction < 0
-	what := vocabOf(r).noun
-	switch {
-	case r.Outcome == "continuous":
-		what = "mean"
-	case r.Outcome == "time-to-event":
-		what = "hazard"
+	if r.Spec.Direction < 0 {
+		return "lower"
 	}
-	if lower {
-		return "the lower " + what
+	return "higher"
+}
+
+// directionNoun names what a one-sided superiority test compares.
+func directionNoun(r *designs.Result) string {
+	switch r.Outcome {
+	case "continuous":
+		return "mean"
+	case "time-to-event":
+		return "hazard"
 	}
-	return "the higher " + what
+	if r.Design == "case-control" {
+		return "proportion exposed"
+	}
+	return vocabOf(r).noun
+}
+
+// caseWord names the cases or the controls of a case-control study: the
+// role word alone when it is the label ("cases"), else with the label
+// ("cases (women with pre-eclampsia)").
+func caseWord(g group, role string) string {
+	if g.role == role {
+		return role
+	}
+	return role + " " + paren(g.label)
 }
 
 // marginText states the margin on the outcome's scale.
@@ -191,7 +212,7 @@ func assume(b *strings.Builder, r *designs.Result) {
 	switch r.Outcome {
 	case "continuous":
 		if r.Design == "cross-sectional" {
-			fmt.Fprintf(b, "We expect %s to make up %s of those surveyed%s. ", f.the(), pct(s.ExposurePrevalence), source(r, "exposure_prevalence"))
+			share(b, r)
 		}
 		assumeMeans(b, r)
 		return
@@ -218,32 +239,33 @@ func assume(b *strings.Builder, r *designs.Result) {
 		dilution(b, r)
 		return
 	}
-	if r.Solve == "effect" {
-		switch r.Design {
-		case "case-control":
-			fmt.Fprintf(b, "We assume that %s of %s are exposed%s. ", pct(s.P2), g.the(), refSrc)
-		case "cross-sectional":
-			fmt.Fprintf(b, "We expect %s to make up %s of those surveyed%s and a %s of %s %s%s. ", f.the(), pct(s.ExposurePrevalence), source(r, "exposure_prevalence"), v.noun, pct(s.P2), g.in(), refSrc)
-		default:
-			fmt.Fprintf(b, "We assume a %s of %s %s%s. ", v.noun, pct(s.P2), g.in(), refSrc)
-		}
-		return
+	if r.Design == "cross-sectional" {
+		share(b, r)
 	}
 	switch {
+	case r.Design == "case-control" && r.Solve == "effect":
+		fmt.Fprintf(b, "We assume a proportion exposed of %s %s%s. ", pct(s.P2), g.in(), refSrc)
+	case r.Solve == "effect":
+		fmt.Fprintf(b, "We assume a %s of %s %s%s. ", v.noun, pct(s.P2), g.in(), refSrc)
 	case r.Design == "case-control":
-		fmt.Fprintf(b, "We assume that %s of %s are exposed%s and plan for an odds ratio of %s%s, which means that %s of %s are exposed. ",
-			pct(s.P2), g.the(), refSrc, num(*e.OddsRatio), eff, pct(*e.CaseExposure), f.the())
-	case r.Design == "cross-sectional":
-		fmt.Fprintf(b, "We expect %s to make up %s of those surveyed%s, a %s of %s %s%s and of %s %s%s: a %s of %s (%s %s; odds ratio %s). ",
-			f.the(), pct(s.ExposurePrevalence), source(r, "exposure_prevalence"), v.noun, pct(s.P2), g.in(), refSrc, pct(*e.FirstRisk), f.in(), eff,
-			v.ratio, num(*e.RiskRatio), diffWord(v), pp(*e.RiskDifference), num(*e.OddsRatio))
+		fmt.Fprintf(b, "We assume a proportion exposed of %s %s%s and plan for an odds ratio of %s%s, which means a proportion exposed of %s %s. ",
+			pct(s.P2), g.in(), refSrc, num(*e.OddsRatio), eff, pct(*e.CaseExposure), f.in())
 	case s.Hypothesis != "superiority" && s.P1 == s.P2:
 		fmt.Fprintf(b, "We assume the same %s of %s in both arms%s. ", v.noun, pct(s.P2), refSrc)
 	default:
 		fmt.Fprintf(b, "We assume a %s of %s %s%s and plan for a %s of %s %s%s: a %s of %s (%s %s; odds ratio %s). ",
 			v.noun, pct(s.P2), g.in(), refSrc, v.noun, pct(*e.FirstRisk), f.in(), eff, v.ratio, num(*e.RiskRatio), diffWord(v), pp(*e.RiskDifference), num(*e.OddsRatio))
 	}
-	dilution(b, r)
+	if r.Solve != "effect" {
+		dilution(b, r)
+	}
+}
+
+// share states the expected share of the first group among those surveyed
+// in a cross-sectional comparison.
+func share(b *strings.Builder, r *designs.Result) {
+	f, _ := groupsOf(r)
+	fmt.Fprintf(b, "We expect %s to make up %s of those surveyed%s. ", f.subject("first"), pct(r.Spec.ExposurePrevalence), source(r, "exposure_prevalence"))
 }
 
 // diffWord is the difference's name inside parentheses after its ratio:
@@ -381,10 +403,10 @@ func dilutionParts(r *designs.Result) []string {
 	f, g := groupsOf(r)
 	var parts []string
 	if s.NonAdherence > 0 {
-		parts = append(parts, fmt.Sprintf("%s of those allocated to %s not receiving the intervention%s", pct(s.NonAdherence), f.allocatedTo(), source(r, "non_adherence")))
+		parts = append(parts, fmt.Sprintf("non-adherence of %s %s (allocated the intervention but not receiving it%s)", pct(s.NonAdherence), f.in(), srcSemi(r, "non_adherence")))
 	}
 	if s.Contamination > 0 {
-		parts = append(parts, fmt.Sprintf("%s of those allocated to %s receiving the intervention nonetheless%s", pct(s.Contamination), g.allocatedTo(), source(r, "contamination")))
+		parts = append(parts, fmt.Sprintf("contamination of %s %s (receiving the intervention without being allocated it%s)", pct(s.Contamination), g.in(), srcSemi(r, "contamination")))
 	}
 	return parts
 }
@@ -429,19 +451,23 @@ func conclude(b *strings.Builder, r *designs.Result) {
 			if a.Arms > 2 {
 				per, all = " per comparison", "for each comparison"
 			}
-			fmt.Fprintf(b, "%s, %s requires %s events%s; with the expected probabilities of an observed event (Lachin & Foulkes 1986), that is %s and %s, %s, who are expected to yield %.1f events between them; the achieved power is %s. ",
-				target, method, count(a.Events), per, f.size(a.N[0]), g.size(a.N[1]), all, *a.ExpectedEvents, pct1(*a.AchievedPower))
+			need, rounded := eventsRequired(r)
+			fmt.Fprintf(b, "%s, %s requires %s events%s%s. With the expected probabilities of an observed event (Lachin & Foulkes 1986), the smallest sizes expected to yield %s events are %s and %s, %s (%.1f events expected); the achieved power is %s. ",
+				target, method, need, per, rounded, need, f.size(a.N[0]), g.size(a.N[1]), all, *a.ExpectedEvents, pct1(*a.AchievedPower))
 		case s.Pairing == "paired":
 			fmt.Fprintf(b, "%s, %s requires %s pairs; the achieved power is %s. ", target, method, count(a.N[0]), pct1(*a.AchievedPower))
 		case r.Design == "cross-sectional":
-			fmt.Fprintf(b, "%s, %s requires %s analysable respondents, of whom about %s and %s are expected; the achieved power at these numbers is %s. ",
+			fmt.Fprintf(b, "%s, %s requires %s analysable respondents, expected to divide into about %s and %s; the achieved power at these numbers is %s. ",
 				target, method, count(a.Total), f.size(a.N[0]), g.size(a.N[1]), pct1(*a.AchievedPower))
 		case a.Arms > 2:
 			fmt.Fprintf(b, "%s, %s requires, for each comparison, %s and %s; the achieved power at these numbers is %s. ",
 				target, method, f.size(a.N[0]), g.size(a.N[1]), pct1(*a.AchievedPower))
 		case s.Cluster != nil && a.Clusters != nil:
-			fmt.Fprintf(b, "%s, a t test on the cluster summaries (%d degrees of freedom), with the design effect below, requires %s and %s, %s analysable in all; the achieved power at these numbers is %s. ",
-				target, a.Clusters[0]+a.Clusters[1]-2, f.size(a.N[0]), g.size(a.N[1]), count(a.Total), pct1(*a.AchievedPower))
+			fmt.Fprintf(b, "%s, %s requires %s and %s, %s analysable in all; the achieved power at these numbers is %s. ",
+				target, clusterTest(r, ""), f.size(a.N[0]), g.size(a.N[1]), count(a.Total), pct1(*a.AchievedPower))
+			if clusterStartNamed(r) {
+				fmt.Fprintf(b, "The search for these sizes starts from the individual-level size given by %s, inflated by the design effect. ", method)
+			}
 		default:
 			fmt.Fprintf(b, "%s, %s requires %s and %s, %s analysable in all; the achieved power at these numbers is %s. ",
 				target, method, f.size(a.N[0]), g.size(a.N[1]), count(a.Total), pct1(*a.AchievedPower))
@@ -453,7 +479,11 @@ func conclude(b *strings.Builder, r *designs.Result) {
 		}
 		inflation(b, r)
 	case "power":
-		fmt.Fprintf(b, "The planned enrolment of %s (%s in all) ", enrolList(r), count(a.EnrolTotal))
+		if s.Pairing == "paired" {
+			fmt.Fprintf(b, "The planned enrolment of %s ", enrolList(r))
+		} else {
+			fmt.Fprintf(b, "The planned enrolment of %s, %s in all, ", enrolList(r), count(a.EnrolTotal))
+		}
 		if r.Attrition > 0 {
 			fmt.Fprintf(b, "leaves about %s analysable after %s attrition", sizeList(a.N, r), pct(r.Attrition))
 		} else {
@@ -466,7 +496,7 @@ func conclude(b *strings.Builder, r *designs.Result) {
 			fmt.Fprintf(b, ", and is expected to yield %.1f events", *a.ExpectedEvents)
 		}
 		if s.Cluster != nil && a.Clusters != nil {
-			fmt.Fprintf(b, ". Under these assumptions a t test on the cluster summaries (%d degrees of freedom) has a power of %s. ", a.Clusters[0]+a.Clusters[1]-2, pct1(*a.AchievedPower))
+			fmt.Fprintf(b, ". Under these assumptions %s has a power of %s. ", clusterTest(r, ""), pct1(*a.AchievedPower))
 		} else {
 			fmt.Fprintf(b, ". Under these assumptions %s gives a power of %s. ", method, pct1(*a.AchievedPower))
 		}
@@ -477,26 +507,26 @@ func conclude(b *strings.Builder, r *designs.Result) {
 			fmt.Fprintf(b, ", design effect %.4g", r.DesignEff)
 		}
 		if s.Cluster != nil && a.Clusters != nil {
-			method = fmt.Sprintf("a t test on the cluster summaries (%d and %d clusters, %d degrees of freedom)", a.Clusters[0], a.Clusters[1], a.Clusters[0]+a.Clusters[1]-2)
+			method = clusterTest(r, fmt.Sprintf("%d and %d clusters, ", a.Clusters[0], a.Clusters[1]))
 		}
 		fmt.Fprintf(b, "), %s sets the smallest effect detectable with %s power", method, pct1(*r.Power))
 		det := a.Detectable
-		var sides []string
+		var vs []float64
+		var es []*designs.Effect
 		for _, side := range []struct {
 			v *float64
 			e *designs.Effect
 		}{{det.Lower, det.LowerEffect}, {det.Upper, det.UpperEffect}} {
-			if side.v == nil {
-				continue
+			if side.v != nil {
+				vs, es = append(vs, *side.v), append(es, side.e)
 			}
-			sides = append(sides, detectablePhrase(r, det.Scale, *side.v, side.e))
 		}
-		if len(sides) == 0 {
+		if len(vs) == 0 {
 			b.WriteString(": no effect in either direction reaches that power. ")
 		} else {
-			fmt.Fprintf(b, " at %s. ", strings.Join(sides, " or "))
+			fmt.Fprintf(b, " at %s. ", effectPhrase(r, det.Scale, vs, es))
 		}
-		if dd := det.Diluted; dd != nil && len(sides) > 0 {
+		if dd := det.Diluted; dd != nil && len(vs) > 0 {
 			var seen []float64
 			for _, v := range []*float64{dd.Lower, dd.Upper} {
 				if v != nil {
@@ -504,31 +534,125 @@ func conclude(b *strings.Builder, r *designs.Result) {
 				}
 			}
 			fmt.Fprintf(b, "These are the effects of receiving the intervention; with %s, an intention-to-treat analysis sees %s (Lachin & Foulkes 1986). ",
-				strings.Join(dilutionParts(r), " and "), valuesOn(r, det.Scale, seen))
+				strings.Join(dilutionParts(r), " and "), effectPhrase(r, det.Scale, seen, nil))
 		}
 	}
 }
 
-// detectablePhrase states one detectable effect: "a risk ratio of 0.33
-// (risk 1.65% in the exposed against 5% in the unexposed)", or on the
-// first group's own risk "a risk of 9.55% in the exposed (against 5% in
-// the unexposed)".
-func detectablePhrase(r *designs.Result, scale string, v float64, e *designs.Effect) string {
-	f, g := groupsOf(r)
-	voc := vocabOf(r)
-	if firstRiskScale(scale) && e != nil {
-		first, second := e.FirstRisk, e.SecondRisk
-		if e.CaseExposure != nil {
-			return fmt.Sprintf("%s of %s exposed (against %s of %s)", pct(*e.CaseExposure), f.the(), pct(*e.ControlExposure), g.the())
+// eventsRequired states the events a time-to-event plan requires, from
+// the steps recorded: the unrounded events D* ("379.4") and, when they are
+// not whole, " (380 when rounded up)". The sizes are converted from D*
+// itself (README, "Keys of a time-to-event outcome").
+func eventsRequired(r *designs.Result) (string, string) {
+	star, ok1 := stepOutput(r, "events_star")
+	events, ok2 := stepOutput(r, "events")
+	if !ok1 || !ok2 {
+		return count(r.Result.Events), ""
+	}
+	if star == events {
+		return count(int(events)), ""
+	}
+	d := 1
+	for d < 4 && strconv.FormatFloat(star, 'f', d, 64) == strconv.FormatFloat(events, 'f', d, 64) {
+		d++
+	}
+	return strconv.FormatFloat(star, 'f', d, 64), fmt.Sprintf(" (%s when rounded up)", count(int(events)))
+}
+
+// stepOutput returns the output of the first step called name.
+func stepOutput(r *designs.Result, name string) (float64, bool) {
+	for _, st := range r.Steps {
+		if st.Name == name {
+			return st.Output, true
 		}
-		return fmt.Sprintf("a %s of %s %s (against %s %s)", voc.noun, pct(*first), f.in(), pct(*second), g.in())
+	}
+	return 0, false
+}
+
+// clusterStartNamed reports whether the summary of a cluster plan names
+// the formula whose individual-level size starts the search for the
+// clusters: it does when the steps record that size (solving n).
+func clusterStartNamed(r *designs.Result) bool {
+	if r.Spec.Cluster == nil || r.Result.Clusters == nil || r.Solve != "n" {
+		return false
+	}
+	_, ok := stepOutput(r, "n_star")
+	return ok
+}
+
+// clusterTest names the cluster-level analysis: "a t test on the cluster
+// summaries (56 degrees of freedom; Donner & Klar 2000)"; extra goes
+// before the degrees of freedom.
+func clusterTest(r *designs.Result, extra string) string {
+	c := r.Result.Clusters
+	return fmt.Sprintf("a t test on the cluster summaries (%s%d degrees of freedom; Donner & Klar 2000)", extra, c[0]+c[1]-2)
+}
+
+// effectPhrase states one or two effects on the scale of an effect key, in
+// one phrase that says each shared part once: "a difference in means of
+// ±1.94", "a risk ratio of 0.33 or 1.91 (risk 1.65% or 9.55% among the
+// exposed against 5% among the unexposed)", "a risk of 5.2% or 15.3% for
+// leaflet-and-call recipients, against 10% for leaflet recipients". es,
+// when given, holds the effect on every scale at each value.
+func effectPhrase(r *designs.Result, scale string, vs []float64, es []*designs.Effect) string {
+	f, g := groupsOf(r)
+	noun := vocabOf(r).noun
+	if r.Design == "case-control" {
+		noun = "proportion exposed"
+	}
+	// The risks (or exposures) at each value, when every value has them
+	// against one reference.
+	var firsts []string
+	reference := ""
+	for i, e := range es {
+		var first, second string
+		switch {
+		case e != nil && e.CaseExposure != nil:
+			first, second = pct(*e.CaseExposure), pct(*e.ControlExposure)
+		case e != nil && e.FirstRisk != nil:
+			first, second = pct(*e.FirstRisk), pct(*e.SecondRisk)
+		}
+		if first == "" || (i > 0 && second != reference) {
+			firsts = nil
+			break
+		}
+		firsts, reference = append(firsts, first), second
+	}
+	if firstRiskScale(scale) {
+		values := make([]string, len(vs))
+		for i, v := range vs {
+			values[i] = valueOn(scale, v)
+		}
+		text := fmt.Sprintf("%s %s of %s %s", article(noun), noun, strings.Join(values, " or "), f.in())
+		if len(firsts) == len(vs) {
+			text += fmt.Sprintf(", against %s %s", reference, g.in())
+		}
+		return text
 	}
 	name := scaleName(r, scale)
-	text := fmt.Sprintf("%s %s of %s", article(name), name, valueOn(scale, v))
-	if e != nil && (e.FirstRisk != nil || e.CaseExposure != nil) {
-		text += " (" + restateShort(r, e) + ")"
+	text := fmt.Sprintf("%s %s of %s", article(name), name, orValues(scale, vs))
+	if len(firsts) > 0 && len(firsts) == len(vs) {
+		fb, gb := f.bracketed(), g.bracketed()
+		text += fmt.Sprintf(" (%s %s %s against %s %s)", noun, strings.Join(firsts, " or "), fb.in(), reference, gb.in())
 	}
 	return text
+}
+
+// orValues joins one or two values on a scale: "0.33 or 1.91", or "±1.94"
+// and "±5 percentage points" for two values of opposite sign and equal
+// size.
+func orValues(scale string, vs []float64) string {
+	texts := make([]string, len(vs))
+	for i, v := range vs {
+		texts[i] = valueOn(scale, v)
+	}
+	if len(texts) == 2 && strings.HasPrefix(texts[0], "−") {
+		lo, hi := strings.TrimPrefix(texts[0], "−"), strings.TrimPrefix(texts[1], "+")
+		if lo == hi {
+			return "±" + lo
+		}
+	}
+	return strings.Join(texts, " or ")
 }
 
 // sizeList phrases analysable sizes: "12 pairs" or "20 and 20".
@@ -554,7 +678,7 @@ func groupSizes(r *designs.Result, n []int) string {
 	case a.Arms > 2 && r.Spec.Comparisons == "all-pairs":
 		return fmt.Sprintf("%s in each of the %d arms", count(n[0]), a.Arms)
 	case a.Arms > 2:
-		return fmt.Sprintf("%s in each of the %d intervention arms and %s", count(n[0]), a.Arms-1, g.size(n[1]))
+		return fmt.Sprintf("%s in each of the %d intervention arms and %s in %s", count(n[0]), a.Arms-1, count(n[1]), g.controlArm())
 	}
 	return f.size(n[0]) + " and " + g.size(n[1])
 }
@@ -583,12 +707,9 @@ func clusterSentence(b *strings.Builder, r *designs.Result) {
 }
 
 // clustersIn phrases a number of clusters for a group: "29 clusters in
-// the club schools", "12 clusters for participants receiving home visits".
+// the club schools", "12 clusters (home visits)".
 func clustersIn(g group, k int) string {
-	if g.form == formTreatment {
-		return fmt.Sprintf("%s clusters for %s", count(k), g.the())
-	}
-	return fmt.Sprintf("%s clusters %s", count(k), g.in())
+	return g.quantity(count(k) + " clusters")
 }
 
 // armsSentence gives the totals of a trial with several arms.
@@ -597,12 +718,7 @@ func armsSentence(b *strings.Builder, r *designs.Result) {
 	if a.Arms <= 2 {
 		return
 	}
-	if r.Spec.Comparisons == "all-pairs" {
-		fmt.Fprintf(b, "Each of the %d arms has %s analysable participants, %s in all. ", a.Arms, count(a.N[0]), count(a.Total))
-		return
-	}
-	_, g := groupsOf(r)
-	fmt.Fprintf(b, "Each of the %d intervention arms has %s analysable participants and %s %s, %s in all. ", a.Arms-1, count(a.N[0]), g.allocatedTo(), count(a.N[1]), count(a.Total))
+	fmt.Fprintf(b, "In all, %s participants are analysable: %s. ", count(a.Total), groupSizes(r, a.N))
 }
 
 // inflation describes the design effect and attrition steps.
@@ -630,7 +746,7 @@ func inflation(b *strings.Builder, r *designs.Result) {
 			fmt.Fprintf(b, "These numbers include a design effect of %g%s. ", r.DesignEff, source(r, "design_effect"))
 		}
 		if r.Attrition > 0 {
-			fmt.Fprintf(b, "Allowing for %s non-response%s, we will invite %s people (about %s and %s).",
+			fmt.Fprintf(b, "Allowing for %s non-response%s, we will invite %s people, about %s and %s.",
 				pct(r.Attrition), source(r, "attrition"), count(a.EnrolTotal), f.size(a.Enrol[0]), g.size(a.Enrol[1]))
 		} else {
 			fmt.Fprintf(b, "No non-response is expected, so we will survey %s people.", count(a.EnrolTotal))

@@ -43,13 +43,14 @@ func references(r *designs.Result) []string {
 			}
 		}
 	}
-	// A cluster plan's answer is the cluster-level t test's, whatever the
-	// method: the method is neither named in the summary nor relied on.
-	clustered := r.Spec != nil && r.Spec.Cluster != nil
-	if !clustered {
+	// A cluster plan's answer is the cluster-level t test's (Donner & Klar,
+	// below); the method is cited only where the summary names it, as the
+	// individual-level size that starts the search for the clusters.
+	named := r.Spec == nil || r.Spec.Cluster == nil || clusterStartNamed(r)
+	if named {
 		add(r.Citation)
 	}
-	if r.Method == "fleiss-cc" && !clustered {
+	if r.Method == "fleiss-cc" && named {
 		// "Fleiss's formula" is the uncorrected one, which the correction
 		// builds on.
 		if m := designs.MethodByID("fleiss"); m != nil {
