@@ -53,6 +53,11 @@ func detectable(s *Spec, m *MethodInfo, e effects, sz sizes, tr *trail) *Detecta
 			continue
 		}
 		v, planned, diluted, dv := restate(s, e, x)
+		if math.IsInf(v, 0) || math.IsNaN(v) || math.IsInf(dv, 0) || math.IsNaN(dv) {
+			// A ratio against a reference risk so small that it overflows:
+			// no finite effect on this scale reaches the target.
+			continue
+		}
 		side := map[int]string{-1: "lower", 1: "upper"}[dir]
 		rule := "the " + scaleName(s) + " nearest no difference, " + map[int]string{-1: "below", 1: "above"}[dir] + " it, at which " + newCalculator(s, m, e).powerName() + " reaches the target power"
 		if e.diluted {

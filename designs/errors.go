@@ -258,6 +258,10 @@ var yamlLine = regexp.MustCompile(`^yaml: line (\d+): (.*)$`)
 func syntaxError(file string, data []byte, err error) *SpecError {
 	first := strings.SplitN(err.Error(), "\n", 2)[0]
 	m := yamlLine.FindStringSubmatch(first)
+	if line := longKeyLine(data); line > 0 && (m == nil || atoi(m[1]) >= line-1) {
+		// The parser stops at such a key with words about colons.
+		return &SpecError{File: file, Line: line, Msg: fmt.Sprintf("YAML syntax error: a key of more than %d characters; allowed: a key of the specification (see the README), which is far shorter", maxYAMLKey)}
+	}
 	if m == nil {
 		problem := strings.TrimPrefix(first, "yaml: ")
 		if a := unknownAnchor.FindStringSubmatch(problem); a != nil {
@@ -281,6 +285,41 @@ func syntaxError(file string, data []byte, err error) *SpecError {
 		return &SpecError{File: file, Line: tl, Msg: "YAML syntax error: a tab character in the indentation; allowed: spaces only"}
 	}
 	return &SpecError{File: file, Line: line, Msg: "YAML syntax error: " + syntaxHint(m[2], lineText(data, line), lineText(data, line-1), false)}
+}
+
+// maxYAMLKey is the longest key YAML reads in the form `key: value` (YAML
+// 1.2, section 7.4.2: an implicit key is at most 1024 characters).
+const maxYAMLKey = 1024
+
+// longKeyLine returns the first line whose text before its first ": " (or
+// its final ":") is longer than maxYAMLKey, a key the parser refuses, or 0.
+func longKeyLine(data []byte) int {
+	line := 0
+	for text := range bytes.Lines(data) {
+		line++
+		if len(text) <= maxYAMLKey {
+			continue
+		}
+		text = bytes.TrimRight(text, "\r\n")
+		key := text
+		if i := bytes.Index(text, []byte(": ")); i >= 0 {
+			key = text[:i]
+		} else if bytes.HasSuffix(text, []byte(":")) {
+			key = text[:len(text)-1]
+		} else {
+			continue
+		}
+		if key = bytes.TrimLeft(key, " "); len(key) > maxYAMLKey && !bytes.HasPrefix(key, []byte("#")) {
+			return line
+		}
+	}
+	return 0
+}
+
+// atoi reads a line number the parser wrote.
+func atoi(s string) int {
+	n, _ := strconv.Atoi(s)
+	return n
 }
 
 // parserProblem reports whether a YAML problem comes from yaml.v3's

@@ -33,7 +33,7 @@ var specKeys = map[string]keyInfo{
 	"solve":           {kindText, "n, power or effect"},
 	"method":          {kindText, "a method of `enough methods` that serves the design"},
 	"test":            {kindText, "chi-square, chi-square-yates, fisher or z-unpooled"},
-	"alpha":           {kindNumber, "a number in (0, 0.5]"},
+	"alpha":           {kindNumber, "a number in [1e-20, 0.5]"},
 	"sides":           {kindWhole, "1 or 2"},
 	"power":           {kindNumber, "a number above alpha and below 1"},
 	"n":               {kindWhole, "a whole number of at least 2"},
@@ -275,7 +275,7 @@ func fractionRange(key string, alpha float64) func(float64) bool {
 	pm1 := func(x float64) bool { return x > -1 && x < 1 }
 	switch key {
 	case "alpha":
-		return func(x float64) bool { return x > 0 && x <= 0.5 }
+		return func(x float64) bool { return x >= 1e-20 && x <= 0.5 } // power.MinAlpha
 	case "power":
 		return func(x float64) bool { return x > alpha && x < 1 }
 	case "confidence":

@@ -3,6 +3,7 @@ package designs
 import (
 	"fmt"
 	"math"
+	"strings"
 
 	"enough/power"
 )
@@ -46,6 +47,9 @@ func simModel(s *Spec, res *Result, sizes [2]int, null bool) (simSetup, error) {
 			return unavailable("fewer than two clusters per arm")
 		}
 		mem = max(1, int(math.Round(s.Cluster.Size*(1-s.Attrition))))
+		if s.Outcome == "binary" && !clusterCountsFit(ec.clusterK[0], ec.clusterK[1], mem) {
+			return unavailable(clusterCountsTooLarge(ec.clusterK[0], ec.clusterK[1], mem))
+		}
 		sizes = [2]int{ec.clusterK[0] * mem, ec.clusterK[1] * mem}
 		n1, n2 = sizes[0], sizes[1]
 		st.sizes = sizes
@@ -215,6 +219,36 @@ func simModel(s *Spec, res *Result, sizes [2]int, null bool) (simSetup, error) {
 		return st, nil
 	}
 	return unavailable("this outcome is not simulated")
+}
+
+// maxClusterProduct bounds 2·K1·K2·max(K1, K2)·M² for a binary cluster
+// simulation: [power.NewClusterBinary] works on whole counts, and its sums
+// of squares stay exact in 64-bit integers only below 2⁶² (it panics at
+// or above it). The check here comes first, so that such a plan is refused
+// as input, naming the limit, before the model is built.
+const maxClusterProduct = 1 << 62
+
+// clusterCountsFit reports whether k1 and k2 clusters of m members stay
+// within the whole-number arithmetic of the binary cluster model, in the
+// very expression [power.NewClusterBinary] checks.
+func clusterCountsFit(k1, k2, m int) bool {
+	a, b := float64(k1), float64(k2)
+	return 2*a*b*math.Max(a, b)*float64(m)*float64(m) < maxClusterProduct
+}
+
+// clusterCountsTooLarge says why k1 and k2 clusters of m members are not
+// simulated, with the most clusters per arm that clusters of m allow.
+func clusterCountsTooLarge(k1, k2, m int) string {
+	most := int(math.Cbrt(maxClusterProduct / (2 * float64(m) * float64(m))))
+	for most > 2 && !clusterCountsFit(most, most, m) {
+		most--
+	}
+	for clusterCountsFit(most+1, most+1, m) {
+		most++
+	}
+	here := 2 * float64(k1) * float64(k2) * float64(max(k1, k2)) * float64(m) * float64(m)
+	return fmt.Sprintf("%d and %d clusters of %d analysable members are too many to simulate: the cluster t test is simulated on whole counts, which needs 2 × K1 × K2 × max(K1, K2) × M² below 2^62 (about 4.6e18), and here it is %s; allowed: at most %d clusters per arm of %d members (smaller clusters allow more), or the closed form alone, whose large-sample approximation is accurate with this many clusters",
+		k1, k2, m, strings.Replace(fmt.Sprintf("%.2g", here), "e+", "e", 1), most, m)
 }
 
 // clusterNotes records how the cluster model departs from the plan.

@@ -13,6 +13,7 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"unicode"
 
 	"gopkg.in/yaml.v3"
 )
@@ -343,9 +344,18 @@ func Parse(file string, data []byte, sets []string) (*Spec, error) {
 	if err != nil {
 		return nil, syntaxError(file, data, err)
 	}
+	// A stream of several documents is refused whatever the later ones
+	// hold: read or not, valid or not, they would be silently ignored.
 	var second yaml.Node
-	if dec.Decode(&second) == nil {
-		return nil, &SpecError{File: file, Line: second.Line, Msg: "a second YAML document (after ---); allowed: one specification per file"}
+	if err := dec.Decode(&second); !errors.Is(err, io.EOF) {
+		// Name the line that ends the first document.
+		line := second.Line
+		if len(doc.Content) > 0 {
+			if m := documentMarker(data, doc.Content[0].Line); m > 0 {
+				line = m
+			}
+		}
+		return nil, secondDocument(file, line)
 	}
 	if len(doc.Content) == 0 {
 		return nil, &SpecError{File: file, Msg: "file has no content; allowed: a YAML study specification (start from `enough new trial`)"}
@@ -369,6 +379,33 @@ func Parse(file string, data []byte, sets []string) (*Spec, error) {
 	spec.SHA256 = hex.EncodeToString(sum[:])
 	spec.Overrides = append([]string(nil), sets...)
 	return spec, nil
+}
+
+// secondDocument is the refusal of a file holding more than one YAML
+// document; line is that of the --- or ... that ends the first (0 when
+// unknown).
+func secondDocument(file string, line int) *SpecError {
+	return &SpecError{File: file, Line: line, Msg: "a second YAML document (after a line --- or ...); allowed: one specification per file (remove this line and what follows, or move it to a file of its own)"}
+}
+
+// documentMarker returns the 1-based number of the first line after line
+// after that starts with the document marker --- or ... (followed by a
+// space, a tab or the end of the line), or 0 when there is none. At the
+// start of a line such a marker always ends a document: YAML allows it in
+// no value.
+func documentMarker(data []byte, after int) int {
+	line := 0
+	for text := range bytes.Lines(data) {
+		line++
+		text = bytes.TrimRight(text, "\r\n")
+		if line <= after || len(text) < 3 {
+			continue
+		}
+		if m := string(text[:3]); (m == "---" || m == "...") && (len(text) == 3 || text[3] == ' ' || text[3] == '\t') {
+			return line
+		}
+	}
+	return 0
 }
 
 // resolveAlias follows a YAML alias (*name) to the anchored node.
@@ -496,8 +533,15 @@ func (r *reader) checkNested(head, sub string, e *entry) *SpecError {
 	return nil
 }
 
-// setOrigin names a --set override as the file of its problems.
-func setOrigin(s string) string { return "--set " + clip(s) }
+// setOrigin names a --set override as the file of its problems. An
+// override that holds a line break or another control character is quoted,
+// with escapes, so that the problem stays on one line.
+func setOrigin(s string) string {
+	if strings.IndexFunc(s, unicode.IsControl) >= 0 {
+		return "--set " + strconv.Quote(clip(s))
+	}
+	return "--set " + clip(s)
+}
 
 // applySet applies one --set key=value override.
 func (r *reader) applySet(s string) {
@@ -509,8 +553,14 @@ func (r *reader) applySet(s string) {
 		return
 	}
 	var doc yaml.Node
-	if err := yaml.Unmarshal([]byte(val), &doc); err != nil {
+	dec := yaml.NewDecoder(strings.NewReader(val))
+	if err := dec.Decode(&doc); err != nil && !errors.Is(err, io.EOF) {
 		r.fail(&SpecError{File: origin, Key: clip(key), Msg: setSyntaxError(key, val, err)})
+		return
+	}
+	if err := dec.Decode(new(yaml.Node)); !errors.Is(err, io.EOF) {
+		// A second document, readable or not, would be silently dropped.
+		r.fail(&SpecError{File: origin, Key: clip(key), Msg: "the value holds a second YAML document (after a line --- or ...); allowed: one value (put quotes around text that holds such a line)"})
 		return
 	}
 	node := &yaml.Node{Kind: yaml.ScalarNode, Tag: "!!null", Value: ""}

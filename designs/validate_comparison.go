@@ -5,6 +5,8 @@ import (
 	"math"
 	"strings"
 
+	"enough/power"
+
 	"gopkg.in/yaml.v3"
 )
 
@@ -83,7 +85,8 @@ func (r *reader) buildComparison(s *Spec) {
 		defAlpha = 0.025
 	}
 	var alphaOK bool
-	s.Alpha, alphaOK = r.rangeNum("alpha", defAlpha, func(x float64) bool { return x > 0 && x <= 0.5 })
+	// Below power.MinAlpha the engine's critical values are not checked.
+	s.Alpha, alphaOK = r.rangeNum("alpha", defAlpha, func(x float64) bool { return x >= power.MinAlpha && x <= 0.5 })
 	if alphaOK {
 		r.alpha = s.Alpha
 	}
@@ -135,7 +138,12 @@ func (r *reader) buildComparison(s *Spec) {
 		var ok bool
 		s.Ratio = 1
 		if s.ExposurePrevalence, ok = r.probability("exposure_prevalence", "the fraction of the surveyed population that is exposed"); ok {
-			s.Ratio = (1 - s.ExposurePrevalence) / s.ExposurePrevalence
+			if e := s.ExposurePrevalence; e < 1e-6 || e > 1-1e-6 {
+				// A split beyond a million to one leaves no group to compare.
+				r.refuse(r.errAt(r.get("exposure_prevalence"), "%g leaves one group more than a million times the other; allowed: a fraction from 0.000001 to 0.999999", e))
+			} else {
+				s.Ratio = (1 - s.ExposurePrevalence) / s.ExposurePrevalence
+			}
 		}
 	} else {
 		s.Ratio, _ = r.rangeNum("ratio", 1, func(x float64) bool { return x > 0 && !math.IsInf(x, 0) })

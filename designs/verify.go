@@ -5,28 +5,96 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"runtime"
+	"slices"
+	"strconv"
 	"time"
 
 	"enough/power"
+)
+
+// Limits of a simulation (README: "Flags of the simulation").
+const (
+	// MaxReplicates is the hard cap on replicates, 10¹² (that of
+	// power.MaxReplicates): no limit can be raised beyond it.
+	MaxReplicates = power.MaxReplicates
+	// DefaultMaxReplicates is the limit on replicates when
+	// SimOptions.MaxReplicates is 0; it can be raised up to MaxReplicates.
+	DefaultMaxReplicates = 1_000_000_000
+	// MaxWorkersPerCore caps the workers at this many per core
+	// (runtime.GOMAXPROCS): more add scratch memory and slow a stop,
+	// never speed.
+	MaxWorkersPerCore = 4
+	// DefaultMaxMemory is the scratch memory, in bytes, that the workers
+	// may hold together when SimOptions.MaxMemory is 0: 1 GiB.
+	DefaultMaxMemory = 1 << 30
+	// pilotSeconds is how long the time guard's pilot runs before it
+	// predicts the whole run.
+	pilotSeconds = 0.2
 )
 
 // SimOptions control the verification of a plan by simulation. Zero
 // values take the specification's simulate block, then the defaults
 // (10,000 replicates, seed 1).
 type SimOptions struct {
+	// Replicates, when above 0, replaces simulate.replicates: from 100
+	// to the limit o.MaxReplicates.
 	Replicates int64
-	Seed       uint64
-	SeedSet    bool
-	Workers    int
-	// MaxSeconds refuses a run predicted to take longer (0: no limit).
+	// Seed replaces simulate.seed when SeedSet.
+	Seed    uint64
+	SeedSet bool
+	// Workers is the number of goroutines (0: one per core), capped at
+	// MaxWorkersPerCore per core and by MaxMemory; the result does not
+	// depend on it.
+	Workers int
+	// MaxSeconds refuses a run predicted to take longer (0: no limit);
+	// the prediction comes from the first replicates of the run itself,
+	// timed for about 0.2 s, which count towards the run.
 	MaxSeconds float64
-	// MaxReplicates refuses more replicates (0: 1e9).
+	// MaxReplicates refuses more replicates (0: DefaultMaxReplicates; at
+	// most the hard cap MaxReplicates).
 	MaxReplicates int64
+	// MaxMemory bounds the scratch memory of all workers together, in
+	// bytes (0: DefaultMaxMemory): fewer workers are used when theirs
+	// would exceed it, and a simulation whose single worker would is
+	// refused.
+	MaxMemory int64
 	// Progress, when set, is told the replicates done in each run.
 	Progress func(label string, done, total int64)
-	// Now is the clock used to predict the run time (time.Now when nil).
+	// Notice, when set, is told each limit applied to the settings (fewer
+	// workers than asked); the same sentences go in the simulation's
+	// notes.
+	Notice func(msg string)
+	// Now is the clock used to time the pilot (time.Now when nil).
 	Now func() time.Time
 }
+
+// check refuses options out of range: the caller's input, checked where
+// it enters (the flags of enough are checked before, in their words).
+func (o SimOptions) check(file string) error {
+	bad := func(format string, a ...any) error {
+		return &InputError{Msg: fmt.Sprintf("%s: simulate: ", file) + fmt.Sprintf(format, a...)}
+	}
+	switch {
+	case o.Replicates < 0 || o.Replicates > MaxReplicates:
+		return bad("%d replicates are out of range; allowed: 0 (the specification's) or 100 to %d", o.Replicates, MaxReplicates)
+	case o.MaxReplicates < 0 || o.MaxReplicates > MaxReplicates:
+		return bad("a limit of %d replicates is out of range; allowed: 0 (the default, %d) to %d", o.MaxReplicates, DefaultMaxReplicates, MaxReplicates)
+	case o.Workers < 0:
+		return bad("%d workers are out of range; allowed: 0 (one per core) or more", o.Workers)
+	case !(o.MaxSeconds >= 0) || math.IsInf(o.MaxSeconds, 1):
+		return bad("a limit of %g seconds is out of range; allowed: 0 (no limit) or a finite number of seconds", o.MaxSeconds)
+	case o.MaxMemory < 0:
+		return bad("a memory limit of %d bytes is out of range; allowed: 0 (the default) or more", o.MaxMemory)
+	case o.SeedSet && o.Seed > MaxSeed:
+		return bad("seed %d is out of range; allowed: 0 to %d", o.Seed, uint64(MaxSeed))
+	}
+	return nil
+}
+
+// MaxSeed is the largest seed, 2⁵³: every seed up to it is exact in a
+// JSON number read as a double, as the output's seed is.
+const MaxSeed = 1 << 53
 
 // InputError is a simulation setting out of range (exit status 2).
 type InputError struct{ Msg string }
@@ -40,15 +108,18 @@ var ErrStopped = errors.New("simulation stopped early")
 // Simulation is the verification of a plan by simulation; its JSON form is
 // the `simulation` object.
 type Simulation struct {
-	Test       string  `json:"test"`
-	TestName   string  `json:"test_name"`
-	Replicates int64   `json:"replicates"`
-	Seed       uint64  `json:"seed"`
-	N          []int   `json:"n"`
-	Power      float64 `json:"power"`
-	SE         float64 `json:"se"`
+	Test       string `json:"test"`
+	TestName   string `json:"test_name"`
+	Replicates int64  `json:"replicates"`
+	Seed       uint64 `json:"seed"`
+	N          []int  `json:"n"`
+	// Power is the simulated power and SE its standard error; both are
+	// null when no replicate finished (a run stopped at once).
+	Power *float64 `json:"power"`
+	SE    *float64 `json:"se"`
 	// CI is the 95% score (Wilson 1927) interval of Power [low, high]: it
-	// stays a true interval when every replicate, or none, rejects.
+	// stays a true interval when every replicate, or none, rejects; null
+	// with Power.
 	CI []float64 `json:"ci"`
 	// Type1Error is the simulated type I error, Type1SE its standard error
 	// and Type1CI its 95% score interval; all three are null when the null
@@ -59,9 +130,12 @@ type Simulation struct {
 	// Type1At says where the null run sits (no difference, or the margin).
 	Type1At         string  `json:"type1_at"`
 	ClosedFormPower float64 `json:"closed_form_power"`
-	Difference      float64 `json:"difference"`
-	Agrees          bool    `json:"agrees"`
-	Partial         bool    `json:"partial"`
+	// Difference is Power minus ClosedFormPower, and Agrees says whether
+	// they lie within 3 standard errors or 1 point of each other; both
+	// are null with Power.
+	Difference *float64 `json:"difference"`
+	Agrees     *bool    `json:"agrees"`
+	Partial    bool     `json:"partial"`
 	// Notes explain what the simulation assumes.
 	Notes []string `json:"notes,omitempty"`
 	// Solved is the sample size found by simulation (solving n).
@@ -92,12 +166,20 @@ type simSetup struct {
 // with the planned test, under the planned effect and under the null, and
 // fills res.Simulation. With solve: n it also searches the size at which the
 // simulated power reaches the target.
+//
+// When ctx ends, the runs stop within a replicate or so, and Verify
+// returns ErrStopped with res.Simulation holding the replicates done
+// (marked partial): the first ones of the run, exactly those of a run
+// asked for that many.
 func Verify(ctx context.Context, s *Spec, res *Result, o SimOptions) error {
 	if s.Goal == "precision" {
 		return &InputError{Msg: s.File + ": simulate: a precision survey has no test to simulate; allowed: a two-group comparison"}
 	}
 	if s.Solve == "effect" {
 		return &InputError{Msg: s.File + ": simulate: solve effect gives two detectable effects, not one to simulate; allowed: solve n or power (set the effect key to the detectable effect and solve: power to verify it)"}
+	}
+	if err := o.check(s.File); err != nil {
+		return err
 	}
 	reps, seed := int64(10000), uint64(1)
 	n1 := 0
@@ -111,8 +193,8 @@ func Verify(ctx context.Context, s *Spec, res *Result, o SimOptions) error {
 		seed = o.Seed
 	}
 	maxReps := o.MaxReplicates
-	if maxReps <= 0 {
-		maxReps = 1_000_000_000
+	if maxReps == 0 {
+		maxReps = DefaultMaxReplicates
 	}
 	if reps > maxReps {
 		return &InputError{Msg: fmt.Sprintf("%s: simulate: %d replicates are more than the limit of %d; allowed: fewer, or raise --max-replicates", s.File, reps, maxReps)}
@@ -138,34 +220,20 @@ func Verify(ctx context.Context, s *Spec, res *Result, o SimOptions) error {
 		return err
 	}
 	build := now().Sub(t0).Seconds()
+	if o.MaxSeconds > 0 && build > o.MaxSeconds {
+		return &InputError{Msg: fmt.Sprintf("%s: simulate: building the model alone took %s, more than --max-seconds %g; allowed: a smaller study, or raise --max-seconds (0: no limit)", s.File, seconds(build), o.MaxSeconds)}
+	}
 	null, err := simModel(s, res, sizes, true)
 	if err != nil {
 		return err
 	}
-
-	// Predict the run time from the model's build and a pilot of two
-	// blocks: two runs, and for solve n a search of about 2 log₂ n + 4 more
-	// runs, each building its own model.
-	if o.MaxSeconds > 0 {
-		pilot := min(reps, 2*8192)
-		t1 := now()
-		if _, err := power.Simulate(ctx, alt.model, power.SimConfig{Replicates: pilot, Seed: seed ^ 0x5eed, Workers: o.Workers}); err != nil {
-			res.Simulation = &Simulation{Test: s.Test, TestName: TestName(s.Test), Seed: seed, N: sizes[:], Partial: true}
-			return ErrStopped
-		}
-		run := now().Sub(t1).Seconds() * float64(reps) / float64(pilot)
-		predicted := 2*run + 2*build
-		if s.Solve == "n" && s.Cluster == nil {
-			searches := 2*math.Log2(float64(max(2, sizes[0]))) + 4
-			predicted += searches * (run + 2*build)
-		}
-		if predicted > o.MaxSeconds {
-			return &InputError{Msg: fmt.Sprintf("%s: simulate: the run is predicted to take about %.0f s, more than --max-seconds %g; allowed: fewer replicates, or raise --max-seconds", s.File, predicted, o.MaxSeconds)}
-		}
+	workers, capNotes, err := o.workerCount(s.File, max(power.WorkerBytes(alt.model), power.WorkerBytes(null.model)), alt.sizes)
+	if err != nil {
+		return err
 	}
 
 	cfg := func(label string) power.SimConfig {
-		c := power.SimConfig{Replicates: reps, Seed: seed, Workers: o.Workers}
+		c := power.SimConfig{Replicates: reps, Seed: seed, Workers: workers}
 		if o.Progress != nil {
 			c.Progress = func(done int64) { o.Progress(label, done, reps) }
 		}
@@ -173,25 +241,37 @@ func Verify(ctx context.Context, s *Spec, res *Result, o SimOptions) error {
 	}
 	sizes = alt.sizes
 	sim := &Simulation{Test: s.Test, TestName: TestName(s.Test), Replicates: reps, Seed: seed,
-		N: sizes[:], ClosedFormPower: alt.closed, Notes: alt.notes}
+		N: sizes[:], ClosedFormPower: alt.closed, Notes: slices.Concat(alt.notes, capNotes)}
 	if s.Pairing == "paired" {
 		sim.N = sizes[:1]
 	}
 	res.Simulation = sim
-	r1, err1 := power.Simulate(ctx, alt.model, cfg("planned effect"))
+	run := power.NewRun(alt.model, cfg("planned effect"))
 	fill := func(r power.SimResult) {
 		sim.Replicates = r.Replicates
-		if r.Replicates > 0 {
-			sim.Power, sim.SE = r.Power(), r.SE()
-			lo, hi := r.CI()
-			sim.CI = []float64{lo, hi}
+		if r.Replicates == 0 {
+			return
+		}
+		sim.Power, sim.SE = ptr(r.Power()), ptr(r.SE())
+		lo, hi := r.CI()
+		sim.CI = []float64{lo, hi}
+		d := *sim.Power - sim.ClosedFormPower
+		sim.Difference = &d
+		sim.Agrees = ptr(!(math.Abs(d) > 3**sim.SE && math.Abs(d) > 0.01))
+	}
+	if o.MaxSeconds > 0 {
+		if err := o.guard(ctx, run, s, reps, build, now().Sub(t0).Seconds(), sizes, now); err != nil {
+			if errors.Is(err, ErrStopped) {
+				fill(run.Result())
+				sim.Partial = true
+			} else {
+				res.Simulation = nil
+			}
+			return err
 		}
 	}
+	r1, err1 := run.Finish(ctx)
 	fill(r1)
-	if r1.Replicates > 0 {
-		sim.Difference = sim.Power - sim.ClosedFormPower
-		sim.Agrees = !(math.Abs(sim.Difference) > 3*sim.SE && math.Abs(sim.Difference) > 0.01)
-	}
 	if err1 != nil {
 		sim.Partial = true
 		return ErrStopped
@@ -207,23 +287,25 @@ func Verify(ctx context.Context, s *Spec, res *Result, o SimOptions) error {
 	case s.Hypothesis == "equivalence":
 		sim.Type1At = "the upper equivalence margin (a true difference of +margin)"
 	}
-	r0, err0 := power.Simulate(ctx, null.model, power.SimConfig{Replicates: reps, Seed: seed + 1, Workers: o.Workers, Progress: cfg("null (type I error)").Progress})
+	c0 := cfg("null (type I error)")
+	c0.Seed = seed + 1
+	r0, err0 := power.Simulate(ctx, null.model, c0)
 	if r0.Replicates > 0 {
 		sim.Type1Error, sim.Type1SE = ptr(r0.Power()), ptr(r0.SE())
 		lo, hi := r0.CI()
 		sim.Type1CI = []float64{lo, hi}
 	}
-	if !sim.Agrees {
+	if !*sim.Agrees {
 		res.Warnings = append(res.Warnings, fmt.Sprintf(
 			"The simulated power of %s (%.1f%%, standard error %.1f points) and the closed form (%.1f%%) part ways here by more than 3 standard errors and 1 point: the formula is only an approximation to the planned test at these sizes; trust the simulation of the test you will run.",
-			TestName(s.Test), 100*sim.Power, 100*sim.SE, 100*sim.ClosedFormPower))
+			TestName(s.Test), 100**sim.Power, 100**sim.SE, 100*sim.ClosedFormPower))
 	}
 	if err0 != nil {
 		sim.Partial = true
 		return ErrStopped
 	}
 	if s.Solve == "n" && s.Power > 0 && s.Cluster == nil {
-		solved, err := solveBySimulation(ctx, s, res, sizes, reps, seed, o)
+		solved, err := solveBySimulation(ctx, s, res, sizes, reps, seed, workers, o)
 		if err != nil {
 			if errors.Is(err, ErrStopped) {
 				sim.Partial = true
@@ -235,17 +317,147 @@ func Verify(ctx context.Context, s *Spec, res *Result, o SimOptions) error {
 	return nil
 }
 
+// guard is the time guard. It runs the first replicates of run as a
+// pilot, growing from one replicate per worker until about pilotSeconds
+// (never past o.MaxSeconds), predicts the whole simulation from their
+// pace, and refuses it when the prediction exceeds o.MaxSeconds. The
+// pilot's replicates are the run's own: they are not done again. build is
+// the time one model took to build, spent the time already taken (building
+// both); it returns ErrStopped when ctx ended during the pilot.
+func (o SimOptions) guard(ctx context.Context, run *power.Run, s *Spec, reps int64, build, spent float64, sizes [2]int, now func() time.Time) error {
+	limit := o.MaxSeconds
+	// The pilot gives up at the limit: a replicate slower than the whole
+	// allowance is refused within about --max-seconds.
+	pctx, cancel := context.WithTimeout(ctx, time.Duration(math.Min(limit-spent, 1e6)*float64(time.Second)))
+	defer cancel()
+	start := now()
+	step := int64(run.Workers())
+	var took, lastTook float64 // the pilot's time, and its last step's
+	var lastDone int64         // the replicates of the last step
+	for {
+		before, doneBefore := took, run.Done()
+		err := run.Step(pctx, step)
+		took = now().Sub(start).Seconds()
+		lastTook, lastDone = took-before, run.Done()-doneBefore
+		if err != nil {
+			if ctx.Err() != nil {
+				return ErrStopped
+			}
+			return &InputError{Msg: fmt.Sprintf("%s: simulate: the run would take longer than --max-seconds %g: after %s, %d of its %d replicates were done; allowed: fewer replicates, a smaller study, or raise --max-seconds (0: no limit)",
+				s.File, limit, seconds(spent+took), run.Done(), reps)}
+		}
+		done := run.Done()
+		if done >= reps || took >= pilotSeconds {
+			break
+		}
+		// Aim at the end of the pilot, growing at most eightfold: few
+		// steps, since each waits for its slowest worker.
+		next := 8 * step
+		if took > 0 {
+			next = min(next, int64(float64(done)/took*(pilotSeconds-took))+1)
+		}
+		step = next
+	}
+	// The rest of the planned-effect run, the null run, and for solve n a
+	// search of about 2 log₂ n + 4 more runs, each building its own model.
+	// Seconds a replicate, all workers at work, from the last step, the
+	// longest, when it can be timed: the first steps also pay for the
+	// workers' scratch and cold caches.
+	per := took / float64(run.Done())
+	if lastTook > 0 && lastDone > 0 {
+		per = lastTook / float64(lastDone)
+	}
+	predicted := spent + took + per*float64(reps-run.Done()) + per*float64(reps)
+	if s.Solve == "n" && s.Power > 0 && s.Cluster == nil {
+		searches := 2*math.Log2(float64(max(2, sizes[0]))) + 4
+		predicted += searches * (per*float64(reps) + 2*build)
+	}
+	if predicted > limit {
+		return &InputError{Msg: fmt.Sprintf("%s: simulate: the run is predicted to take about %s, more than --max-seconds %g; allowed: fewer replicates, or raise --max-seconds (0: no limit)", s.File, seconds(predicted), limit)}
+	}
+	return nil
+}
+
+// seconds writes a duration in seconds to two significant digits below
+// 10 s ("0.0031 s", "2.4 s") and whole seconds above ("823 s").
+func seconds(x float64) string {
+	if x >= 10 {
+		return fmt.Sprintf("%.0f s", x)
+	}
+	return strconv.FormatFloat(x, 'g', 2, 64) + " s"
+}
+
+// workerCount returns the number of workers of a simulation whose workers
+// need bytes of scratch memory each: the workers asked for (one per core
+// by default), capped at MaxWorkersPerCore per core and at what the memory
+// limit holds, with a sentence for each cap applied (also told to
+// o.Notice). It refuses a simulation whose single worker needs more than
+// the memory limit.
+func (o SimOptions) workerCount(file string, bytes int64, sizes [2]int) (int, []string, error) {
+	cores := runtime.GOMAXPROCS(0)
+	w := o.Workers
+	if w == 0 {
+		w = cores
+	}
+	var notes []string
+	if most := MaxWorkersPerCore * cores; w > most {
+		notes = append(notes, fmt.Sprintf("%d workers were asked for, more than %d per core (%d cores here); %d were used, with the same result.",
+			w, MaxWorkersPerCore, cores, most))
+		w = most
+	}
+	limit := o.MaxMemory
+	if limit == 0 {
+		limit = DefaultMaxMemory
+	}
+	if bytes > 0 && int64(w)*bytes > limit {
+		fit := limit / bytes
+		if fit < 1 {
+			return 0, nil, &InputError{Msg: fmt.Sprintf("%s: simulate: each worker needs %s of scratch memory for %s participants, more than the memory limit of %s; allowed: a smaller study (simulate.n), or raise --max-memory",
+				file, mib(bytes), thousands(sizes[0]+sizes[1]), mib(limit))}
+		}
+		notes = append(notes, fmt.Sprintf("%d workers would need %s of scratch memory (%s each for %s participants), more than the limit of %s; %d were used, with the same result.",
+			w, mib(int64(w)*bytes), mib(bytes), thousands(sizes[0]+sizes[1]), mib(limit), fit))
+		w = int(fit)
+	}
+	if o.Notice != nil {
+		for _, n := range notes {
+			o.Notice(n)
+		}
+	}
+	return w, notes, nil
+}
+
+// mib writes a number of bytes in MiB: whole from 10 MiB ("1,024 MiB"),
+// with one decimal below ("3.1 MiB") and two below 1 MiB ("0.31 MiB"); a
+// whole number of MiB has no decimals ("8 MiB").
+func mib(b int64) string {
+	x := float64(b) / (1 << 20)
+	switch {
+	case x == math.Trunc(x) || x >= 10:
+		return thousands(int(math.Round(x))) + " MiB"
+	case x < 1:
+		return strconv.FormatFloat(x, 'f', 2, 64) + " MiB"
+	}
+	return strconv.FormatFloat(x, 'f', 1, 64) + " MiB"
+}
+
 // solveBySimulation finds the smallest first-group size whose simulated
 // power reaches the target, using the same seed (common random numbers) at
 // every candidate so that the comparison between sizes is sharp.
-func solveBySimulation(ctx context.Context, s *Spec, res *Result, start [2]int, reps int64, seed uint64, o SimOptions) (*SimSolved, error) {
+func solveBySimulation(ctx context.Context, s *Spec, res *Result, start [2]int, reps int64, seed uint64, workers int, o SimOptions) (*SimSolved, error) {
 	at := func(n1 int) ([2]int, power.SimResult, simSetup, error) {
 		sz := simSizes(s, n1)
 		st, err := simModel(s, res, sz, false)
 		if err != nil {
 			return sz, power.SimResult{}, st, err
 		}
-		r, err := power.Simulate(ctx, st.model, power.SimConfig{Replicates: reps, Seed: seed, Workers: o.Workers})
+		// Larger candidates need more scratch: fewer workers, silently
+		// (the result is the same), or a refusal.
+		w, _, err := SimOptions{Workers: workers, MaxMemory: o.MaxMemory}.workerCount(s.File, power.WorkerBytes(st.model), st.sizes)
+		if err != nil {
+			return sz, power.SimResult{}, st, err
+		}
+		r, err := power.Simulate(ctx, st.model, power.SimConfig{Replicates: reps, Seed: seed, Workers: w})
 		if err != nil {
 			return sz, r, st, ErrStopped
 		}

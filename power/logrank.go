@@ -6,6 +6,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"slices"
+	"sync/atomic"
 )
 
 // LogRankResult is the two-group log-rank comparison, seen from group 1.
@@ -175,13 +176,18 @@ func logRankSorted(keys []uint64, n1, n2 int) (o1, e1, v float64) {
 // bits 32+8p to 39+8p; it is overwritten. Passes whose byte is the same
 // for every key are skipped. It returns whichever of keys and tmp holds
 // the sorted keys.
-func radixSortHigh32(keys, tmp []uint64, count *[4][256]uint32) []uint64 {
+//
+// When stop is not nil and is set between two passes, it returns nil.
+func radixSortHigh32(keys, tmp []uint64, count *[4][256]uint32, stop *atomic.Bool) []uint64 {
 	n := uint32(len(keys))
 	if n < 2 {
 		return keys
 	}
 	src, dst := keys, tmp[:len(keys)]
 	for p := range 4 {
+		if stop != nil && stop.Load() {
+			return nil
+		}
 		shift := uint(32 + 8*p)
 		c := &count[p]
 		if c[uint8(src[0]>>shift)] == n {
@@ -397,21 +403,37 @@ func (m *logRankModel) NewWorker() Worker {
 	return &logRankWorker{m: m, keys: make([]uint64, n), tmp: make([]uint64, n)}
 }
 
+// workerBytes is the scratch of a worker: keys and tmp, 16 bytes a
+// participant, and the histograms.
+func (m *logRankModel) workerBytes() int64 {
+	return 16*(int64(m.n1)+int64(m.n2)) + int64(len(logRankWorker{}.count))*256*4
+}
+
 // logRankWorker holds one goroutine's scratch space.
 type logRankWorker struct {
 	m         *logRankModel
 	keys, tmp []uint64
 	count     [4][256]uint32
+	// stop, when set by the runner, cuts a replicate short: it is checked
+	// every 16,384 participants drawn and between the passes of the sort,
+	// so that a study of millions stops within a fraction of a second.
+	stop *atomic.Bool
 }
 
+func (w *logRankWorker) watchStop(stop *atomic.Bool) { w.stop = stop }
+
 // draw fills w.keys with one simulated data set (group 1 first) and
-// w.count with the histograms of its time bytes.
-func (w *logRankWorker) draw(rng *rand.Rand) {
+// w.count with the histograms of its time bytes; it returns false when
+// the stop flag cut it short.
+func (w *logRankWorker) draw(rng *rand.Rand) bool {
 	m := w.m
 	w.count = [4][256]uint32{}
 	c := &w.count
 	keys := w.keys
 	for i := range keys {
+		if i&(1<<14-1) == 0 && w.stop != nil && w.stop.Load() {
+			return false
+		}
 		mean, other, cross, flag := m.mean1, m.mean2, m.cross1, uint64(0)
 		if i >= m.n1 {
 			mean, other, cross, flag = m.mean2, m.mean1, m.cross2, lrGroup2
@@ -441,19 +463,27 @@ func (w *logRankWorker) draw(rng *rand.Rand) {
 		c[2][uint8(q>>16)]++
 		c[3][uint8(q>>24)]++
 	}
+	return true
 }
 
-// stat returns O1 − E1 and V for the data set in w.keys.
+// stat returns O1 − E1 and V for the data set in w.keys; V is 0 when the
+// stop flag cut the sort short.
 func (w *logRankWorker) stat() (u, v float64) {
-	sorted := radixSortHigh32(w.keys, w.tmp, &w.count)
+	sorted := radixSortHigh32(w.keys, w.tmp, &w.count, w.stop)
+	if sorted == nil {
+		return 0, 0
+	}
 	o, e, v := logRankSorted(sorted, w.m.n1, w.m.n2)
 	return o - e, v
 }
 
 // Replicate simulates one study and reports whether the planned test
-// rejects.
+// rejects. A replicate cut short by the stop flag reports false; the
+// runner does not count it.
 func (w *logRankWorker) Replicate(rng *rand.Rand) bool {
-	w.draw(rng)
+	if !w.draw(rng) {
+		return false
+	}
 	u, v := w.stat()
 	if !(v > 0) {
 		return false

@@ -198,7 +198,7 @@ func TestRadixSortHigh32(t *testing.T) {
 		}
 		want := slices.Clone(keys)
 		slices.Sort(want)
-		got := radixSortHigh32(slices.Clone(keys), make([]uint64, c.n), &count)
+		got := radixSortHigh32(slices.Clone(keys), make([]uint64, c.n), &count, nil)
 		// The sort is stable on the high bits; compare as multisets within
 		// each time.
 		gotHigh := make([]uint64, len(got))

@@ -3,9 +3,6 @@ package power
 import (
 	"fmt"
 	"math"
-
-	"gonum.org/v1/gonum/integrate/quad"
-	"gonum.org/v1/gonum/stat/distuv"
 )
 
 // Layout is how the observations of a mean comparison are arranged.
@@ -184,17 +181,21 @@ func (m MeansMethod) Power(mc MeanComparison, n1, n2 float64) float64 {
 // whose statistic has noncentrality ncp ≥ 0, at level alpha with sides
 // tails, counting both tails of a two-sided test:
 //
-//	power = P(T' > t_c) + P(T' < −t_c),  T' ~ t(df, ncp)
+//	power = P(T' > t_c) + P(T' < −t_c),  T' ~ t(df, ncp),  t_c = t_{1−α/sides}(df)
 //
-// References: Lenth RV (1989). Algorithm AS 243: cumulative distribution
-// function of the non-central t distribution. Appl Stat 38:185–189 (as
-// implemented by gonum's distuv.NoncentralT).
+// with the critical value from [TUpperQuantile] and both tails from
+// [TUpper] (the lower one as P(−T' > t_c), −T' ~ t(df, −ncp)), each from
+// the tail itself, so that it holds for alpha down to [MinAlpha] and below.
+//
+// References: Owen DB (1965). A special case of a bivariate non-central
+// t-distribution. Biometrika 52:437–446 (the noncentral t as a mixture of
+// normals over the sample standard deviation).
 func TTestPower(ncp, df, alpha float64, sides int) float64 {
 	if sides == 1 {
 		return T.oneSided(ncp, df, alpha)
 	}
-	c := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: df}.Quantile(1 - alpha/2)
-	return clamp01(nctUpper(ncp, df, c) + nctLower(ncp, df, -c))
+	c := TUpperQuantile(alpha/2, df)
+	return clamp01(TUpper(c, df, ncp) + TUpper(c, df, -ncp))
 }
 
 // oneSided returns the power of a one-sided test with noncentrality ncp.
@@ -202,84 +203,67 @@ func (m MeansMethod) oneSided(ncp, df, alpha float64) float64 {
 	if m == Z {
 		return normCDF(ncp - ZAlpha(alpha, 1))
 	}
-	c := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: df}.Quantile(1 - alpha)
-	return clamp01(nctUpper(ncp, df, c))
-}
-
-// largeNCP is where gonum's noncentral t switches to a normal
-// approximation that returns the wrong tail for negative arguments (seen
-// above about 38.6); beyond it the tails are integrated directly.
-const largeNCP = 30
-
-// nctUpper returns P(T' > c) for T' ~ t(df, ncp).
-func nctUpper(ncp, df, c float64) float64 {
-	if math.Abs(ncp) > largeNCP {
-		return nctIntegral(func(w float64) float64 { return normCDF(ncp - c*w) }, df)
-	}
-	return 1 - distuv.NoncentralT{Nu: df, Mu: ncp}.CDF(c)
-}
-
-// nctLower returns P(T' < c) for T' ~ t(df, ncp).
-func nctLower(ncp, df, c float64) float64 {
-	if math.Abs(ncp) > largeNCP {
-		return nctIntegral(func(w float64) float64 { return normCDF(c*w - ncp) }, df)
-	}
-	return distuv.NoncentralT{Nu: df, Mu: ncp}.CDF(c)
-}
-
-// nctIntegral returns E[g(√(U/df))] for U ~ χ²(df): with T' = (Z + ncp)/W,
-// W = √(U/df), P(T' > c) = E[Φ(ncp − cW)] and P(T' < c) = E[Φ(cW − ncp)].
-func nctIntegral(g func(w float64) float64, df float64) float64 {
-	return chiIntegral(df, math.Inf(1), func(u float64) float64 { return g(math.Sqrt(u / df)) })
-}
-
-// chiIntegral returns ∫ f(u) dχ²(df)(u) over 0 < u < upper. It integrates
-// in s = √u, where the density 2s f_χ²(s²) has no singularity at zero
-// (df = 1), by composite Gauss–Legendre over 64 panels of 16 nodes between
-// the 1e-16 and 1 − 1e-16 quantiles.
-func chiIntegral(df, upper float64, f func(u float64) float64) float64 {
-	chi := distuv.ChiSquared{K: df}
-	lo, hi := chi.Quantile(1e-16), chi.Quantile(1-1e-16)
-	if math.IsInf(hi, 0) || math.IsNaN(hi) {
-		hi = df + 40*math.Sqrt(2*df) + 100
-	}
-	hi = math.Min(hi, upper)
-	if !(hi > lo) {
-		return 0
-	}
-	g := func(s float64) float64 {
-		u := s * s
-		return f(u) * 2 * s * chi.Prob(u)
-	}
-	const panels = 64
-	a, b := math.Sqrt(lo), math.Sqrt(hi)
-	h := (b - a) / panels
-	sum := 0.0
-	for i := 0; i < panels; i++ {
-		x := a + float64(i)*h
-		sum += quad.Fixed(g, x, x+h, 16, quad.Legendre{}, 0)
-	}
-	return sum
+	return clamp01(TUpper(TUpperQuantile(alpha, df), df, ncp))
 }
 
 func clamp01(p float64) float64 { return math.Min(1, math.Max(0, p)) }
 
 // tostExact is the exact power of two one-sided t tests at level alpha for
 // the margin ±bound: both reject when |d̂| + t_c ŝe < bound. With
-// u = df ŝe²/se² ~ χ²(df),
+// W = ŝe/se, df W² ~ χ²(df), and z = ln W,
 //
-//	power = ∫ [Φ((bound − t_c se √(u/df) − Δ)/se) − Φ((−bound + t_c se √(u/df) − Δ)/se)] f_χ²(u) du
+//	power = ∫ [Φ(b₁ − t_c W) − Φ(t_c W − b₂)] dF(W),  b₁ = (bound − Δ)/se,  b₂ = (bound + Δ)/se,
 //
-// over 0 < u < df (bound/(t_c se))². This is Owen's Q written as one
-// integral (Owen 1965).
+// over W < bound/(t_c se), where the bracket is positive. This is Owen's Q
+// written as one integral (Owen 1965). The integrand is log-concave in z
+// (a normal probability of an interval whose ends move linearly with W),
+// and is summed as in [TUpper].
 func tostExact(diff, bound, se, df, alpha float64) float64 {
-	c := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: df}.Quantile(1 - alpha)
-	umax := df * sq(bound/(c*se))
-	p := chiIntegral(df, umax, func(u float64) float64 {
-		w := c * se * math.Sqrt(u/df)
-		return math.Max(0, normCDF((bound-w-diff)/se)-normCDF((-bound+w-diff)/se))
-	})
-	return clamp01(p)
+	c := TUpperQuantile(alpha, df)
+	f := tostIntegrand{b1: (bound - diff) / se, b2: (bound + diff) / se, c: c, nu: df, k: logChiMode(df)}
+	hi := math.Log(bound / (c * se))
+	if math.IsInf(hi, -1) || math.IsNaN(hi) {
+		return 0
+	}
+	top, sum := integrateLogConcave(&f, 0, math.Min(1, 1/math.Sqrt(2*df)), hi, false)
+	return clamp01(math.Exp(top) * sum)
+}
+
+// tostIntegrand is ln of D(e^z) h_ν(z), the integrand of tostExact, with
+// D(w) = Φ(x₁) − Φ(x₂), x₁ = b₁ − c w > x₂ = c w − b₂.
+type tostIntegrand struct{ b1, b2, c, nu, k float64 }
+
+// logD returns ln D(w) and ln of D's slope in x, φ(x₁) + φ(x₂), less
+// ln D, each difference of tails taken on the side where it is small.
+func (f *tostIntegrand) logD(w float64) (ld, lslope float64) {
+	x1, x2 := f.b1-f.c*w, f.c*w-f.b2
+	switch {
+	case !(x1 > x2):
+		return math.Inf(-1), math.Inf(1)
+	case x2 >= 0: // Q(x₂) − Q(x₁)
+		l2, _ := logNormUpper(x2)
+		l1, _ := logNormUpper(x1)
+		ld = l2 + math.Log(-math.Expm1(l1-l2))
+	case x1 <= 0: // Q(−x₁) − Q(−x₂)
+		l1, _ := logNormUpper(-x1)
+		l2, _ := logNormUpper(-x2)
+		ld = l1 + math.Log(-math.Expm1(l2-l1))
+	default:
+		ld = math.Log1p(-normUpper(x1) - normUpper(-x2))
+	}
+	phi := math.Exp(-x1*x1/2-logSqrt2Pi-ld) + math.Exp(-x2*x2/2-logSqrt2Pi-ld)
+	return ld, math.Log(phi)
+}
+
+func (f *tostIntegrand) logf(z float64) (lf, slope float64) {
+	w := math.Exp(z)
+	ld, ls := f.logD(w)
+	return f.k - f.nu*expm1mx2(z) + ld, -f.nu*math.Expm1(2*z) - f.c*w*math.Exp(ls)
+}
+
+func (f *tostIntegrand) scaled(z, top float64) float64 {
+	ld, _ := f.logD(math.Exp(z))
+	return math.Exp(f.k - f.nu*expm1mx2(z) + ld - top)
 }
 
 // N returns the unrounded size of the first group (Paired: the number of

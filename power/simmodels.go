@@ -4,8 +4,6 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
-
-	"gonum.org/v1/gonum/stat/distuv"
 )
 
 // This file holds the Monte-Carlo models of [Simulate]. Each constructor
@@ -28,9 +26,10 @@ func checkTest(alpha float64, sides, dir int) {
 }
 
 // tCrit returns the upper critical value of a t test with df degrees of
-// freedom at level alpha with sides tails: t_{1 − α/sides}(df).
+// freedom at level alpha with sides tails: t_{1 − α/sides}(df), taken from
+// the upper tail ([TUpperQuantile]).
 func tCrit(df, alpha float64, sides int) float64 {
-	return distuv.StudentsT{Mu: 0, Sigma: 1, Nu: df}.Quantile(1 - alpha/float64(sides))
+	return TUpperQuantile(alpha/float64(sides), df)
 }
 
 // signOf returns the direction a one-sided test rejects in: 0 for a

@@ -1,11 +1,13 @@
 package power
 
 import (
+	"cmp"
 	"context"
 	"errors"
 	"math"
 	"math/rand/v2"
 	"runtime"
+	"slices"
 	"sync"
 	"sync/atomic"
 )
@@ -27,22 +29,35 @@ type Worker interface {
 	Replicate(rng *rand.Rand) bool
 }
 
+// MaxReplicates is the most replicates a run may have, 10¹²: a standard
+// error of the power below 10⁻⁶, far beyond any use, and small enough that
+// no count of replicates or blocks can overflow. Callers check their input
+// against it; [NewRun] panics beyond it.
+const MaxReplicates int64 = 1_000_000_000_000
+
+// DefaultBlockSize is the number of replicates per block when
+// [SimConfig].BlockSize is 0.
+const DefaultBlockSize = 8192
+
 // SimConfig controls a simulation run.
 type SimConfig struct {
-	// Replicates is the number of simulated studies; at least 1.
+	// Replicates is the number of simulated studies, from 1 to
+	// [MaxReplicates].
 	Replicates int64
 	// Seed fixes every random number of the run.
 	Seed uint64
 	// Workers is the number of goroutines; 0 means runtime.GOMAXPROCS(0).
 	// The result does not depend on it.
 	Workers int
-	// BlockSize is the number of replicates per block; 0 means 8192. Block
-	// b draws from its own PCG stream seeded by (Seed, b), so the result for
-	// a seed is the same whatever the number of workers.
+	// BlockSize is the number of replicates per block; 0 means
+	// [DefaultBlockSize]. Block b draws from its own PCG stream seeded by
+	// (Seed, b), so the result for a seed is the same whatever the number
+	// of workers.
 	BlockSize int64
-	// Progress, when set, is called after each finished block with the
-	// number of replicates done so far. It is called from the workers'
-	// goroutines, one call at a time.
+	// Progress, when set, is called each time a worker finishes a block or
+	// puts one aside, with the number of replicates done so far in all
+	// blocks. The calls come from the workers' goroutines, one at a time,
+	// with increasing counts; the callback must not call the run's methods.
 	Progress func(done int64)
 }
 
@@ -53,12 +68,15 @@ type SimResult struct {
 	Replicates int64
 	// Rejections counts the replicates whose test rejected.
 	Rejections int64
-	// Partial is true when the run was stopped before the end; only whole
-	// blocks are counted.
+	// Partial is true when the run was stopped before the end. The
+	// replicates counted are then the first Replicates of the run, in the
+	// order of blocks and within each block: exactly those of a run of
+	// Replicates replicates with the same seed and block size.
 	Partial bool
 }
 
-// Power is the share of replicates that rejected.
+// Power is the share of replicates that rejected; NaN when no replicate
+// was done.
 func (r SimResult) Power() float64 {
 	if r.Replicates == 0 {
 		return math.NaN()
@@ -118,68 +136,276 @@ func blockSeed(seed uint64, b int64) (uint64, uint64) {
 	return x, mix(x ^ uint64(b))
 }
 
+// stopWatcher is a Worker whose single replicate can run long (the
+// log-rank model at millions of participants). Before each step the
+// runner hands it the step's stop flag; the worker may cut a replicate
+// short once the flag is set, and the runner then discards that replicate.
+type stopWatcher interface {
+	watchStop(stop *atomic.Bool)
+}
+
+// scratchSizer is a Model whose workers hold scratch space that grows with
+// the size of the study.
+type scratchSizer interface {
+	workerBytes() int64
+}
+
+// WorkerBytes returns the scratch memory, in bytes, that each worker of m
+// allocates: 16 bytes per participant for the log-rank model (the packed
+// keys and the radix sort's buffer), 0 for the models whose workers hold
+// only a few words (those drawn through sufficient statistics or alias
+// tables shared by all workers).
+func WorkerBytes(m Model) int64 {
+	if s, ok := m.(scratchSizer); ok {
+		return s.workerBytes()
+	}
+	return 0
+}
+
 // Simulate runs cfg.Replicates replicates of m in parallel, in fixed-size
 // blocks each with its own random stream (math/rand/v2 PCG seeded from the
 // seed and the block number), so the counts for a seed are identical
-// whatever the number of workers. When ctx ends, the workers stop after
-// their current block and Simulate returns the whole blocks done, marked
-// Partial, with ErrCanceled.
+// whatever the number of workers. It is NewRun(m, cfg).Finish(ctx): when
+// ctx ends, every worker stops within one replicate and Simulate returns
+// the first replicates done, marked Partial, with [ErrCanceled].
 func Simulate(ctx context.Context, m Model, cfg SimConfig) (SimResult, error) {
-	if cfg.Replicates < 1 {
-		panic("power: at least one replicate")
+	return NewRun(m, cfg).Finish(ctx)
+}
+
+// Run is a simulation that can be advanced in steps: a short pilot to time
+// the model, then the rest. However the run is cut into steps, and
+// whatever the number of workers, each block's replicates draw the same
+// numbers from the block's stream in the same order, so a finished run
+// gives the same counts as [Simulate].
+//
+// The methods of a Run, but [Run.Done], must be called from one goroutine
+// at a time; its workers (and their scratch space) are kept from one step
+// to the next.
+type Run struct {
+	m      Model
+	cfg    SimConfig
+	bs     int64
+	blocks int64
+	ws     []Worker
+
+	mu       sync.Mutex
+	next     int64       // the first block not yet started
+	paused   []*blockRun // started, not finished and not in a worker's hands, by block number
+	frontier int64       // blocks [0, frontier) are finished
+	prefix   SimResult   // the replicates and rejections of those blocks
+	ahead    map[int64]int64
+	done     int64 // replicates done in all blocks
+	broken   bool  // a step was stopped: the run cannot go on
+}
+
+// blockRun is the state of a block that has started.
+type blockRun struct {
+	b, n      int64 // the block's number and its number of replicates
+	done, rej int64
+	rng       *rand.Rand
+}
+
+// NewRun prepares a run of m; nothing is simulated until [Run.Step] or
+// [Run.Finish]. It panics unless cfg.Replicates is from 1 to
+// [MaxReplicates] and cfg.Workers and cfg.BlockSize are not negative.
+func NewRun(m Model, cfg SimConfig) *Run {
+	if cfg.Replicates < 1 || cfg.Replicates > MaxReplicates {
+		panic("power: the replicates of a run must be from 1 to MaxReplicates")
+	}
+	if cfg.Workers < 0 || cfg.BlockSize < 0 {
+		panic("power: negative workers or block size")
 	}
 	bs := cfg.BlockSize
-	if bs <= 0 {
-		bs = 8192
+	if bs == 0 {
+		bs = DefaultBlockSize
 	}
 	workers := cfg.Workers
-	if workers <= 0 {
+	if workers == 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
 	blocks := (cfg.Replicates + bs - 1) / bs
-	if int64(workers) > blocks {
-		workers = int(blocks)
+	return &Run{m: m, cfg: cfg, bs: bs, blocks: blocks, ws: make([]Worker, min(int64(workers), blocks)),
+		ahead: map[int64]int64{}}
+}
+
+// Workers returns the number of goroutines the run uses: cfg.Workers (or
+// GOMAXPROCS), at most one per block.
+func (r *Run) Workers() int { return len(r.ws) }
+
+// Done returns the number of replicates done so far, in all blocks, as of
+// the last block finished or put aside. It may be called from any
+// goroutine, also during a step.
+func (r *Run) Done() int64 {
+	r.mu.Lock()
+	defer r.mu.Unlock()
+	return r.done
+}
+
+// Finish runs every replicate left and returns the result: whole, or, when
+// ctx ended the run (now or in an earlier step), partial with
+// [ErrCanceled].
+func (r *Run) Finish(ctx context.Context) (SimResult, error) {
+	err := r.Step(ctx, math.MaxInt64)
+	res := r.Result()
+	if err == nil && res.Partial {
+		err = ErrCanceled // cannot happen: a step without a stop ends the blocks
 	}
-	var next, done, rejections atomic.Int64
-	var progressMu sync.Mutex
+	return res, err
+}
+
+// Step advances the run by about n more replicates (n ≥ 1), spread over
+// the workers (each takes n/workers, rounded up, or what is left), and
+// returns when they are done. When ctx ends, every worker stops within one
+// replicate (a replicate cut short is not counted), Step returns
+// [ErrCanceled], and the run cannot be advanced any further: [Run.Result]
+// then gives the replicates done before the first one missing.
+func (r *Run) Step(ctx context.Context, n int64) error {
+	if n < 1 {
+		panic("power: a step of no replicate")
+	}
+	if r.broken || ctx.Err() != nil {
+		r.broken = true
+		return ErrCanceled
+	}
+	// The flag is set as soon as ctx ends, for the workers that check it
+	// inside long replicates; the workers also read ctx.Done() themselves
+	// every 64 replicates, so a stop is seen within 64 replicates of the
+	// cancellation whenever the goroutine setting the flag runs.
+	stop, done := new(atomic.Bool), ctx.Done()
+	defer context.AfterFunc(ctx, func() { stop.Store(true) })()
+	quota := (n-1)/int64(len(r.ws)) + 1 // n/workers rounded up, without overflow
+	var stopped atomic.Bool
 	var wg sync.WaitGroup
-	for w := 0; w < workers; w++ {
+	for i := range r.ws {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			worker := m.NewWorker()
-			for {
-				if ctx.Err() != nil {
+			if r.ws[i] == nil {
+				r.ws[i] = r.m.NewWorker()
+			}
+			w := r.ws[i]
+			if sw, ok := w.(stopWatcher); ok {
+				sw.watchStop(stop)
+			}
+			for left := quota; left > 0; {
+				if stopNow(stop, done) {
+					stopped.Store(true)
 					return
 				}
-				b := next.Add(1) - 1
-				if b >= blocks {
+				b := r.take()
+				if b == nil {
 					return
 				}
-				n := min(bs, cfg.Replicates-b*bs)
-				s1, s2 := blockSeed(cfg.Seed, b)
-				r := rand.New(rand.NewPCG(s1, s2))
-				var k int64
-				for i := int64(0); i < n; i++ {
-					if worker.Replicate(r) {
-						k++
-					}
-				}
-				rejections.Add(k)
-				d := done.Add(n)
-				if cfg.Progress != nil {
-					progressMu.Lock()
-					cfg.Progress(d)
-					progressMu.Unlock()
+				did, k, cut := replicate(w, b.rng, min(left, b.n-b.done), stop, done)
+				left -= did
+				r.put(b, did, k)
+				if cut {
+					stopped.Store(true)
+					return
 				}
 			}
 		}()
 	}
 	wg.Wait()
-	res := SimResult{Replicates: done.Load(), Rejections: rejections.Load()}
-	if res.Replicates < cfg.Replicates {
-		res.Partial = true
-		return res, ErrCanceled
+	if stopped.Load() {
+		r.broken = true
+		return ErrCanceled
 	}
-	return res, nil
+	return nil
+}
+
+// replicate runs up to todo replicates of w from rng and returns how many
+// were done and how many rejected; cut is true when the stop flag ended the
+// loop. The flag is read after each replicate, which is then not counted
+// (a [stopWatcher] may have cut it short), and set from done every 64
+// replicates.
+func replicate(w Worker, rng *rand.Rand, todo int64, stop *atomic.Bool, done <-chan struct{}) (did, k int64, cut bool) {
+	for ; did < todo; did++ {
+		rej := w.Replicate(rng)
+		if did&63 == 63 {
+			stopNow(stop, done)
+		}
+		if stop.Load() {
+			return did, k, true
+		}
+		if rej {
+			k++
+		}
+	}
+	return did, k, false
+}
+
+// stopNow sets stop when done is closed, and reports whether stop is set.
+func stopNow(stop *atomic.Bool, done <-chan struct{}) bool {
+	select {
+	case <-done:
+		stop.Store(true)
+	default:
+	}
+	return stop.Load()
+}
+
+// take hands out the first block put aside, else the next new block, or
+// nil when every block has been handed out.
+func (r *Run) take() *blockRun {
+	r.mu.Lock()
+	defer r.mu.Unlock()
+	if len(r.paused) > 0 {
+		b := r.paused[0]
+		r.paused = r.paused[1:]
+		return b
+	}
+	if r.next == r.blocks {
+		return nil
+	}
+	b := &blockRun{b: r.next, n: min(r.bs, r.cfg.Replicates-r.next*r.bs)}
+	s1, s2 := blockSeed(r.cfg.Seed, b.b)
+	b.rng = rand.New(rand.NewPCG(s1, s2))
+	r.next++
+	return b
+}
+
+// put takes back a block after did more replicates with k rejections:
+// finished, or put aside for a later step.
+func (r *Run) put(b *blockRun, did, k int64) {
+	r.mu.Lock()
+	defer r.mu.Unlock()
+	b.done += did
+	b.rej += k
+	r.done += did
+	if b.done < b.n {
+		i, _ := slices.BinarySearchFunc(r.paused, b.b, func(x *blockRun, t int64) int { return cmp.Compare(x.b, t) })
+		r.paused = slices.Insert(r.paused, i, b)
+	} else {
+		r.ahead[b.b] = b.rej
+		for {
+			rej, ok := r.ahead[r.frontier]
+			if !ok {
+				break
+			}
+			delete(r.ahead, r.frontier)
+			r.prefix.Replicates += min(r.bs, r.cfg.Replicates-r.frontier*r.bs)
+			r.prefix.Rejections += rej
+			r.frontier++
+		}
+	}
+	if r.cfg.Progress != nil && did > 0 {
+		r.cfg.Progress(r.done)
+	}
+}
+
+// Result returns the replicates done so far that come before the first
+// one missing (all of them when the run is finished), so that a partial
+// result is exactly that of a shorter run with the same seed. It must not
+// be called during a step.
+func (r *Run) Result() SimResult {
+	r.mu.Lock()
+	defer r.mu.Unlock()
+	res := r.prefix
+	if len(r.paused) > 0 && r.paused[0].b == r.frontier {
+		res.Replicates += r.paused[0].done
+		res.Rejections += r.paused[0].rej
+	}
+	res.Partial = res.Replicates < r.cfg.Replicates
+	return res
 }

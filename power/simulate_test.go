@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"math"
+	"math/rand/v2"
 	"sync/atomic"
 	"testing"
 	"time"
@@ -65,14 +66,16 @@ func TestSimulateDefaults(t *testing.T) {
 	}
 }
 
-// TestSimulateCancel: a context cancelled after the first block has been
-// reported stops the run; the result counts whole blocks only (a multiple
-// of the block size), is marked Partial and comes with ErrCanceled. A
-// context cancelled before the start gives no replicates.
+// TestSimulateCancel: a context cancelled at the first progress report
+// stops the run. With one worker that is after block 0 exactly; with more,
+// some replicates of other blocks are done as well, but the result counts
+// only the replicates before the first one missing, so it is exactly the
+// result of a shorter run with the same seed. A context cancelled before
+// the start gives no replicates and a power of NaN.
 func TestSimulateCancel(t *testing.T) {
 	const bs = 1024
 	for name, m := range simTestModels() {
-		for _, w := range []int{1, 2} {
+		for _, w := range []int{1, 2, 3} {
 			ctx, cancel := context.WithCancel(context.Background())
 			var calls atomic.Int64
 			cfg := SimConfig{Replicates: 1000 * bs, Seed: 1, Workers: w, BlockSize: bs, Progress: func(done int64) {
@@ -82,14 +85,19 @@ func TestSimulateCancel(t *testing.T) {
 			}}
 			res, err := Simulate(ctx, m, cfg)
 			cancel()
-			if !errors.Is(err, ErrCanceled) || !res.Partial {
+			if !errors.Is(err, ErrCanceled) || !res.Partial || res.Replicates >= cfg.Replicates {
 				t.Errorf("%s, %d workers: %+v, %v; want partial, ErrCanceled", name, w, res, err)
+				continue
 			}
-			if res.Replicates%bs != 0 || res.Replicates < bs || res.Replicates >= cfg.Replicates {
-				t.Errorf("%s, %d workers: %d replicates, want a multiple of %d between 1 block and the total", name, w, res.Replicates, bs)
+			if w == 1 && res.Replicates != bs {
+				t.Errorf("%s, 1 worker: %d replicates, want the first block, %d", name, res.Replicates, bs)
 			}
-			if res.Rejections < 0 || res.Rejections > res.Replicates {
-				t.Errorf("%s: %d rejections of %d", name, res.Rejections, res.Replicates)
+			if res.Replicates == 0 {
+				continue
+			}
+			again, err := Simulate(context.Background(), m, SimConfig{Replicates: res.Replicates, Seed: 1, Workers: 2, BlockSize: bs})
+			if err != nil || again.Rejections != res.Rejections {
+				t.Errorf("%s, %d workers: partial %+v, a run of %d replicates %+v, %v", name, w, res, res.Replicates, again, err)
 			}
 		}
 	}
@@ -98,6 +106,145 @@ func TestSimulateCancel(t *testing.T) {
 	res, err := Simulate(ctx, simTestModels()["paired"], SimConfig{Replicates: 10_000, Seed: 1})
 	if !errors.Is(err, ErrCanceled) || !res.Partial || res.Replicates != 0 || !math.IsNaN(res.Power()) {
 		t.Errorf("cancelled before the start: %+v, %v", res, err)
+	}
+}
+
+// slowModel wraps a model with replicates that take at least a fixed
+// time, and cancels a context when the replicate numbered cancelAt starts.
+type slowModel struct {
+	Model
+	pause    time.Duration
+	cancelAt int64
+	cancel   context.CancelFunc
+	calls    *atomic.Int64
+}
+
+type slowWorker struct {
+	Worker
+	m *slowModel
+}
+
+func (m *slowModel) NewWorker() Worker { return &slowWorker{Worker: m.Model.NewWorker(), m: m} }
+
+func (w *slowWorker) Replicate(r *rand.Rand) bool {
+	if w.m.calls.Add(1) == w.m.cancelAt {
+		w.m.cancel()
+	}
+	time.Sleep(w.m.pause)
+	return w.Worker.Replicate(r)
+}
+
+// TestSimulateStopsInsideBlock: a stop is seen between two replicates, not
+// only between blocks. Replicates of at least 200 µs make a block of 1,024
+// last at least 0.2 s; the context is cancelled at the 50th replicate, so
+// the run stops inside the first blocks, and what it counts is exactly a
+// shorter run with the same seed.
+func TestSimulateStopsInsideBlock(t *testing.T) {
+	const bs = 1024
+	for _, w := range []int{1, 2, 4} {
+		ctx, cancel := context.WithCancel(context.Background())
+		m := &slowModel{Model: simTestModels()["welch"], pause: 200 * time.Microsecond, cancelAt: 50, cancel: cancel, calls: new(atomic.Int64)}
+		res, err := Simulate(ctx, m, SimConfig{Replicates: 100 * bs, Seed: 9, Workers: w, BlockSize: bs})
+		cancel()
+		if !errors.Is(err, ErrCanceled) || !res.Partial {
+			t.Fatalf("%d workers: %+v, %v", w, res, err)
+		}
+		if calls := m.calls.Load(); calls >= int64(w)*bs {
+			t.Errorf("%d workers: %d replicates started; the run did not stop inside its first blocks", w, calls)
+		}
+		if w == 1 && res.Replicates < 49 {
+			t.Errorf("1 worker: %d replicates counted, want the 49 before the cancel at least", res.Replicates)
+		}
+		if res.Replicates > 0 {
+			again, _ := Simulate(context.Background(), simTestModels()["welch"], SimConfig{Replicates: res.Replicates, Seed: 9, Workers: 3, BlockSize: bs})
+			if again.Rejections != res.Rejections {
+				t.Errorf("%d workers: partial %+v, a run of %d replicates %+v", w, res, res.Replicates, again)
+			}
+		}
+	}
+}
+
+// TestRunSteps: a run advanced in uneven steps (a pilot) and then finished
+// gives exactly the counts of one call to Simulate, whatever the number of
+// workers; the replicates done only grow, and a finished run is whole.
+func TestRunSteps(t *testing.T) {
+	for name, m := range simTestModels() {
+		cfg := SimConfig{Replicates: 20_011, Seed: 77, BlockSize: 1000}
+		want, err := Simulate(context.Background(), m, cfg)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, w := range []int{1, 2, 3, 7} {
+			cfg.Workers = w
+			r := NewRun(m, cfg)
+			prev := int64(0)
+			for _, n := range []int64{1, 3, 2, 7, 640, 1500} {
+				if err := r.Step(context.Background(), n); err != nil {
+					t.Fatal(err)
+				}
+				if d := r.Done(); d <= prev {
+					t.Errorf("%s, %d workers: %d done after a step of %d, %d before", name, w, d, n, prev)
+				}
+				prev = r.Done()
+				if p := r.Result(); !p.Partial || p.Replicates > prev {
+					t.Errorf("%s, %d workers: result %+v after %d done", name, w, p, prev)
+				}
+			}
+			got, err := r.Finish(context.Background())
+			if err != nil || got != want || r.Done() != cfg.Replicates {
+				t.Errorf("%s, %d workers: stepped %+v (%v), whole %+v", name, w, got, err, want)
+			}
+		}
+	}
+}
+
+// TestRunLimits: a run takes from 1 to MaxReplicates replicates; at the cap
+// the counts of blocks do not overflow, and a stopped run stays stopped.
+func TestRunLimits(t *testing.T) {
+	m := simTestModels()["paired"]
+	for _, n := range []int64{0, -1, MaxReplicates + 1} {
+		func() {
+			defer func() {
+				if recover() == nil {
+					t.Errorf("NewRun with %d replicates did not panic", n)
+				}
+			}()
+			NewRun(m, SimConfig{Replicates: n})
+		}()
+	}
+	r := NewRun(m, SimConfig{Replicates: MaxReplicates, Seed: 3, Workers: 2})
+	if err := r.Step(context.Background(), 10_000); err != nil {
+		t.Fatal(err)
+	}
+	res := r.Result()
+	if !res.Partial || res.Replicates < 5000 || res.Replicates > r.Done() {
+		t.Errorf("a step of a run of MaxReplicates: %+v, %d done", res, r.Done())
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	if err := r.Step(ctx, 10); !errors.Is(err, ErrCanceled) {
+		t.Errorf("a step with a cancelled context: %v", err)
+	}
+	if err := r.Step(context.Background(), 10); !errors.Is(err, ErrCanceled) {
+		t.Errorf("a step after a stop: %v, want ErrCanceled", err)
+	}
+	if got := r.Result(); got != res {
+		t.Errorf("a stopped run changed: %+v, was %+v", got, res)
+	}
+}
+
+// TestWorkerBytes: a log-rank worker holds 16 bytes a participant and the
+// 4 KiB of its histograms (4 × 256 counters of 4 bytes); the models drawn
+// through sufficient statistics or shared tables hold none.
+func TestWorkerBytes(t *testing.T) {
+	m := NewSurvivalModel(1000, 500, 0.1, 0.2, Entry{Accrual: 1, FollowUp: 1}, 0.05, 2, 0)
+	if got := WorkerBytes(m); got != 16*1500+4096 {
+		t.Errorf("log-rank worker: %d bytes, want %d", got, 16*1500+4096)
+	}
+	for name, m := range simTestModels() {
+		if got := WorkerBytes(m); got != 0 {
+			t.Errorf("%s: %d bytes, want 0", name, got)
+		}
 	}
 }
 
@@ -165,3 +312,39 @@ func benchSimWorkers(b *testing.B, workers int) {
 
 func BenchmarkSimulateWorkers1(b *testing.B) { benchSimWorkers(b, 1) }
 func BenchmarkSimulateWorkers2(b *testing.B) { benchSimWorkers(b, 2) }
+
+// TestLogRankStopInsideReplicate: a log-rank worker handed a stop flag
+// that is set draws nothing (the random stream is untouched), its sort
+// gives up before a pass, and its replicate reports no rejection; with the
+// flag clear it draws and sorts as without one.
+func TestLogRankStopInsideReplicate(t *testing.T) {
+	m := NewSurvivalModel(3000, 3000, 0.05, 0.1, Entry{Accrual: 2, FollowUp: 3}, 0.05, 2, 0)
+	w := m.NewWorker().(*logRankWorker)
+	stop := new(atomic.Bool)
+	w.watchStop(stop)
+	src := rand.NewPCG(1, 2)
+	rng, fresh := rand.New(src), rand.New(rand.NewPCG(1, 2))
+	if !w.draw(rng) {
+		t.Fatal("draw cut short with the flag clear")
+	}
+	plain := m.NewWorker().(*logRankWorker)
+	plain.draw(fresh)
+	u, v := w.stat()
+	if pu, pv := plain.stat(); u != pu || v != pv || !(v > 0) {
+		t.Errorf("with a clear flag: U %v V %v; without a flag: %v %v", u, v, pu, pv)
+	}
+	stop.Store(true)
+	before := *src
+	if w.draw(rng) || w.Replicate(rng) {
+		t.Error("a worker whose stop flag is set drew a data set or rejected")
+	}
+	if *src != before {
+		t.Error("a worker whose stop flag is set used the random stream")
+	}
+	if got := radixSortHigh32(w.keys, w.tmp, &w.count, stop); got != nil {
+		t.Error("the sort ran with the stop flag set")
+	}
+	if u, v := w.stat(); u != 0 || v != 0 {
+		t.Errorf("stat with the flag set: %v, %v; want 0, 0", u, v)
+	}
+}

@@ -30,13 +30,18 @@ func (e *flagError) Error() string {
 // allowedValue is a flag value that can say what it accepts.
 type allowedValue interface{ Allowed() string }
 
-// wholeValue is a flag holding a whole number. Besides the usual digits it
-// accepts a whole number in decimal or exponent notation (1e6 is 1,000,000);
-// anything else is refused in plain words.
+// wholeValue is a flag holding a whole number from lo to hi. Besides the
+// usual digits it accepts a whole number in decimal or exponent notation
+// (1e6 is 1,000,000); anything else, or a number out of range, is refused
+// in plain words where it enters, with the value given. given, when set,
+// records that the flag was given (a default of 0 can then stand for "not
+// given" without a sentinel value).
 type wholeValue[T int | int64] struct {
 	p       *T
 	name    string
+	lo, hi  int64
 	allowed string
+	given   *bool
 }
 
 func (v *wholeValue[T]) String() string  { return strconv.FormatInt(int64(*v.p), 10) }
@@ -45,13 +50,20 @@ func (v *wholeValue[T]) Allowed() string { return v.allowed }
 
 func (v *wholeValue[T]) Set(s string) error {
 	n, why := parseWhole(strings.TrimSpace(s))
-	if why == "" && int64(T(n)) != n {
+	switch {
+	case why != "":
+	case n < v.lo || n > v.hi:
+		why = "is out of range"
+	case int64(T(n)) != n:
 		why = tooFar(s) // an int of 32 bits
 	}
 	if why != "" {
 		return &flagError{flag: "--" + v.name, msg: strconv.Quote(s) + " " + why, allowed: v.allowed}
 	}
 	*v.p = T(n)
+	if v.given != nil {
+		*v.given = true
+	}
 	return nil
 }
 
@@ -90,10 +102,11 @@ func tooFar(s string) string {
 	return "is too large"
 }
 
-// decimalValue is a flag holding a finite number.
+// decimalValue is a flag holding a finite number of at least lo.
 type decimalValue struct {
 	p       *float64
 	name    string
+	lo      float64
 	allowed string
 }
 
@@ -112,6 +125,8 @@ func (v *decimalValue) Set(s string) error {
 		why = "is not a number (write the decimal point as a point: " + strings.Replace(t, ",", ".", 1) + ")"
 	case err != nil || math.IsNaN(f) || math.IsInf(f, 0) || strings.ContainsAny(t, "xXpP_"):
 		why = "is not a number"
+	case f < v.lo:
+		why = "is out of range"
 	}
 	if why != "" {
 		return &flagError{flag: "--" + v.name, msg: strconv.Quote(s) + " " + why, allowed: v.allowed}
@@ -191,14 +206,18 @@ func (v *pathValue) Set(s string) error {
 
 // The registration helpers give each flag its value type and its name.
 
-func wholeFlag[T int | int64](cmd *cobra.Command, p *T, name string, def T, usage, allowed string) {
+// wholeFlag registers a whole-number flag from lo to hi; given, when not
+// nil, records whether it was given. A default of 0 is not shown in the
+// help (the usage says what it means).
+func wholeFlag[T int | int64](cmd *cobra.Command, p *T, given *bool, name string, def T, lo, hi int64, usage, allowed string) {
 	*p = def
-	cmd.Flags().Var(&wholeValue[T]{p: p, name: name, allowed: allowed}, name, usage)
+	cmd.Flags().Var(&wholeValue[T]{p: p, name: name, lo: lo, hi: hi, allowed: allowed, given: given}, name, usage)
 }
 
-func decimalFlag(cmd *cobra.Command, p *float64, name string, def float64, usage, allowed string) {
+// decimalFlag registers a flag holding a finite number of at least lo.
+func decimalFlag(cmd *cobra.Command, p *float64, name string, def, lo float64, usage, allowed string) {
 	*p = def
-	cmd.Flags().Var(&decimalValue{p: p, name: name, allowed: allowed}, name, usage)
+	cmd.Flags().Var(&decimalValue{p: p, name: name, lo: lo, allowed: allowed}, name, usage)
 }
 
 func switchFlag(cmd *cobra.Command, p *bool, name, short, usage string) {

@@ -53,13 +53,19 @@ func TestParseWhole(t *testing.T) {
 // with the flag's name, the value given and what is allowed.
 func TestFlagValues(t *testing.T) {
 	type want struct {
-		workers                         int
-		replicates, seed, maxReplicates int64
-		maxSeconds                      float64
-		quiet, verify, exact            bool
-		format, output                  string
+		workers                                    int
+		replicates, seed, maxReplicates, maxMemory int64
+		replicatesGiven, seedGiven                 bool
+		maxSeconds                                 float64
+		quiet, verify, exact                       bool
+		format, output                             string
 	}
-	defaults := want{seed: -1, maxReplicates: 1_000_000_000, maxSeconds: 600, format: "markdown"}
+	defaults := want{maxReplicates: 1_000_000_000, maxMemory: 1024, maxSeconds: 600, format: "markdown"}
+	const replicatesAllowed = "a whole number from 100 to 1e12, and at most --max-replicates (1e6 is read as 1000000)"
+	const workersAllowed = "a whole number from 0 (one per core) to 10000"
+	const seedAllowed = "a whole number from 0 to 9007199254740992 (2^53)"
+	const maxReplicatesAllowed = "a whole number from 100 to 1e12 (1e9 is read as 1000000000)"
+	const flagList = "--exact, -f/--format, -h/--help, --max-memory, --max-replicates, --max-seconds, -o/--output, -q/--quiet, --replicates, --seed, --set, --verify, --workers"
 	for _, c := range []struct {
 		args []string
 		edit func(*want)
@@ -67,21 +73,60 @@ func TestFlagValues(t *testing.T) {
 	}{
 		{args: nil, edit: func(*want) {}},
 		{args: []string{"--replicates", "1e6", "--seed", "7", "--workers", "3"},
-			edit: func(w *want) { w.replicates, w.seed, w.workers = 1_000_000, 7, 3 }},
-		{args: []string{"--max-seconds", "2.5", "--max-replicates", "2e9"},
-			edit: func(w *want) { w.maxSeconds, w.maxReplicates = 2.5, 2_000_000_000 }},
+			edit: func(w *want) {
+				w.replicates, w.seed, w.workers, w.replicatesGiven, w.seedGiven = 1_000_000, 7, 3, true, true
+			}},
+		// 0 is a seed like any other, told from "not given" by the flag
+		// being given; the limits of each range are taken.
+		{args: []string{"--seed", "0", "--replicates", "100"},
+			edit: func(w *want) { w.seed, w.seedGiven, w.replicates, w.replicatesGiven = 0, true, 100, true }},
+		{args: []string{"--seed", "9007199254740992", "--replicates", "1e12", "--max-replicates", "1e12", "--workers", "10000", "--max-memory", "1048576"},
+			edit: func(w *want) {
+				w.seed, w.seedGiven, w.replicates, w.replicatesGiven = 9007199254740992, true, 1e12, true
+				w.maxReplicates, w.workers, w.maxMemory = 1e12, 10000, 1048576
+			}},
+		{args: []string{"--max-seconds", "2.5", "--max-replicates", "2e9", "--max-memory", "64"},
+			edit: func(w *want) { w.maxSeconds, w.maxReplicates, w.maxMemory = 2.5, 2_000_000_000, 64 }},
+		{args: []string{"--max-seconds", "0"}, edit: func(w *want) { w.maxSeconds = 0 }},
 		{args: []string{"-q", "--exact", "--verify", "-f", "json", "-o", "out.json"},
 			edit: func(w *want) { w.quiet, w.exact, w.verify, w.format, w.output = true, true, true, "json", "out.json" }},
 		{args: []string{"--exact=false", "--quiet=true", "--verify=0"},
 			edit: func(w *want) { w.quiet = true }},
 		{args: []string{"--replicates", "1e6x"},
-			err: `--replicates: "1e6x" is not a whole number; allowed: a whole number of at least 100 and at most --max-replicates (1e6 is read as 1000000)`},
+			err: `--replicates: "1e6x" is not a whole number; allowed: ` + replicatesAllowed},
 		{args: []string{"--replicates", "99999999999999999999"},
-			err: `--replicates: "99999999999999999999" is too large; allowed: a whole number of at least 100 and at most --max-replicates (1e6 is read as 1000000)`},
+			err: `--replicates: "99999999999999999999" is too large; allowed: ` + replicatesAllowed},
+		// Each count is checked as it enters, with the value given.
+		{args: []string{"--replicates", "9223372036854775807", "--max-replicates", "9223372036854775807"},
+			err: `--replicates: "9223372036854775807" is out of range; allowed: ` + replicatesAllowed},
+		{args: []string{"--replicates", "1000000000001"},
+			err: `--replicates: "1000000000001" is out of range; allowed: ` + replicatesAllowed},
+		{args: []string{"--replicates", "0"},
+			err: `--replicates: "0" is out of range; allowed: ` + replicatesAllowed},
+		{args: []string{"--replicates", "99"},
+			err: `--replicates: "99" is out of range; allowed: ` + replicatesAllowed},
+		{args: []string{"--max-replicates", "0"},
+			err: `--max-replicates: "0" is out of range; allowed: ` + maxReplicatesAllowed},
+		{args: []string{"--max-replicates", "-1"},
+			err: `--max-replicates: "-1" is out of range; allowed: ` + maxReplicatesAllowed},
+		{args: []string{"--max-replicates", "9223372036854775807"},
+			err: `--max-replicates: "9223372036854775807" is out of range; allowed: ` + maxReplicatesAllowed},
 		{args: []string{"--workers", "x"},
-			err: `--workers: "x" is not a whole number; allowed: a whole number: 0 (one per core) or more`},
+			err: `--workers: "x" is not a whole number; allowed: ` + workersAllowed},
+		{args: []string{"--workers", "-1"},
+			err: `--workers: "-1" is out of range; allowed: ` + workersAllowed},
+		{args: []string{"--workers", "10001"},
+			err: `--workers: "10001" is out of range; allowed: ` + workersAllowed},
 		{args: []string{"--seed", "1.5"},
-			err: `--seed: "1.5" is not a whole number; allowed: a whole number of at least 0`},
+			err: `--seed: "1.5" is not a whole number; allowed: ` + seedAllowed},
+		{args: []string{"--seed", "-1"},
+			err: `--seed: "-1" is out of range; allowed: ` + seedAllowed},
+		{args: []string{"--seed", "9007199254740993"},
+			err: `--seed: "9007199254740993" is out of range; allowed: ` + seedAllowed},
+		{args: []string{"--max-memory", "0"},
+			err: `--max-memory: "0" is out of range; allowed: a whole number of MiB from 1 to 1048576`},
+		{args: []string{"--max-seconds", "-1"},
+			err: `--max-seconds: "-1" is out of range; allowed: a number of seconds: 0 (no limit) or more`},
 		{args: []string{"--max-seconds", "abc"},
 			err: `--max-seconds: "abc" is not a number; allowed: a number of seconds: 0 (no limit) or more`},
 		{args: []string{"--max-seconds", "NaN"},
@@ -101,11 +146,11 @@ func TestFlagValues(t *testing.T) {
 		{args: []string{"-o"},
 			err: `--output: needs a value; allowed: a file name (leave -o out to write to standard output)`},
 		{args: []string{"--replicates"},
-			err: `--replicates: needs a value; allowed: a whole number of at least 100 and at most --max-replicates (1e6 is read as 1000000)`},
+			err: `--replicates: needs a value; allowed: ` + replicatesAllowed},
 		{args: []string{"--bogus"},
-			err: `--bogus: unknown flag; allowed: the flags of plan: --exact, -f/--format, -h/--help, --max-replicates, --max-seconds, -o/--output, -q/--quiet, --replicates, --seed, --set, --verify, --workers`},
+			err: `--bogus: unknown flag; allowed: the flags of plan: ` + flagList},
 		{args: []string{"-qx"},
-			err: `-x: unknown flag; allowed: the flags of plan: --exact, -f/--format, -h/--help, --max-replicates, --max-seconds, -o/--output, -q/--quiet, --replicates, --seed, --set, --verify, --workers`},
+			err: `-x: unknown flag; allowed: the flags of plan: ` + flagList},
 		{args: []string{"--help=maybe"},
 			err: `--help: "maybe" is not true or false; allowed: the flag alone, or --help=true or --help=false`},
 	} {
@@ -131,7 +176,7 @@ func TestFlagValues(t *testing.T) {
 			w := defaults
 			c.edit(&w)
 			s := got.Sim
-			have := want{s.Workers, s.Replicates, s.Seed, s.MaxReplicates, s.MaxSeconds, s.Quiet, got.Verify, got.Exact, got.Format, got.Output}
+			have := want{s.Workers, s.Replicates, s.Seed, s.MaxReplicates, s.MaxMemory, s.ReplicatesGiven, s.SeedGiven, s.MaxSeconds, s.Quiet, got.Verify, got.Exact, got.Format, got.Output}
 			if have != w {
 				t.Errorf("flags hold %+v\nwant %+v", have, w)
 			}

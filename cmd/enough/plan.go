@@ -42,24 +42,45 @@ type SimFlags struct {
 	Workers       int
 	Quiet         bool
 	MaxSeconds    float64
+	MaxMemory     int64 // MiB
 	Replicates    int64
 	Seed          int64
 	MaxReplicates int64
+	// ReplicatesGiven and SeedGiven say whether --replicates and --seed
+	// were given: otherwise the specification's (or the default) holds.
+	ReplicatesGiven, SeedGiven bool
 }
+
+// The ranges of the simulation's counts, checked as each flag is read
+// (README: "Flags of the simulation").
+const (
+	maxWorkersFlag = 10_000  // more than MaxWorkersPerCore per core are cut anyway
+	maxMemoryFlag  = 1 << 20 // MiB: 1 TiB
+	minReplicates  = 100     // fewer give a standard error of 5 points
+	defMemoryMiB   = designs.DefaultMaxMemory >> 20
+)
 
 // addSimFlags registers the simulation flags on cmd.
 func addSimFlags(cmd *cobra.Command, f *SimFlags) {
-	wholeFlag(cmd, &f.Workers, "workers", 0, "goroutines for the simulation (0: one per core); the result does not depend on it",
-		"a whole number: 0 (one per core) or more")
+	wholeFlag(cmd, &f.Workers, nil, "workers", 0, 0, maxWorkersFlag,
+		fmt.Sprintf("goroutines for the simulation (0: one per core; more than %d per core are cut to %d per core); the result does not depend on it",
+			designs.MaxWorkersPerCore, designs.MaxWorkersPerCore),
+		fmt.Sprintf("a whole number from 0 (one per core) to %d", maxWorkersFlag))
 	switchFlag(cmd, &f.Quiet, "quiet", "q", "no progress bar on standard error")
-	decimalFlag(cmd, &f.MaxSeconds, "max-seconds", 600, "refuse a simulation predicted to take longer than this many seconds (0: no limit)",
+	decimalFlag(cmd, &f.MaxSeconds, "max-seconds", 600, 0, "refuse a simulation predicted to take longer than this many seconds (0: no limit)",
 		"a number of seconds: 0 (no limit) or more")
-	wholeFlag(cmd, &f.Replicates, "replicates", 0, "override simulate.replicates",
-		"a whole number of at least 100 and at most --max-replicates (1e6 is read as 1000000)")
-	wholeFlag(cmd, &f.Seed, "seed", -1, "override simulate.seed (a whole number of at least 0)",
-		"a whole number of at least 0")
-	wholeFlag(cmd, &f.MaxReplicates, "max-replicates", 1_000_000_000, "refuse more replicates than this unless raised",
-		"a whole number of at least 1 (1e9 is read as 1000000000)")
+	wholeFlag(cmd, &f.MaxMemory, nil, "max-memory", defMemoryMiB, 1, maxMemoryFlag,
+		"scratch memory the simulation's workers may hold together, in MiB (1 to 1048576): fewer workers are used to stay within it, and a study whose single worker needs more is refused",
+		fmt.Sprintf("a whole number of MiB from 1 to %d", maxMemoryFlag))
+	wholeFlag(cmd, &f.Replicates, &f.ReplicatesGiven, "replicates", 0, minReplicates, designs.MaxReplicates,
+		"override simulate.replicates: from 100 to --max-replicates (default: the specification's, else 10000)",
+		fmt.Sprintf("a whole number from %d to %s, and at most --max-replicates (1e6 is read as 1000000)", minReplicates, "1e12"))
+	wholeFlag(cmd, &f.Seed, &f.SeedGiven, "seed", 0, 0, designs.MaxSeed,
+		"override simulate.seed: from 0 to 2^53 (default: the specification's, else 1)",
+		fmt.Sprintf("a whole number from 0 to %d (2^53)", int64(designs.MaxSeed)))
+	wholeFlag(cmd, &f.MaxReplicates, nil, "max-replicates", designs.DefaultMaxReplicates, minReplicates, designs.MaxReplicates,
+		"refuse more replicates than this; at most 1e12",
+		fmt.Sprintf("a whole number from %d to %s (1e9 is read as 1000000000)", minReplicates, "1e12"))
 }
 
 // specArgs checks the arguments of a command that reads one specification:
@@ -116,6 +137,9 @@ func planRun(opts *PlanOptions) error {
 	if err := setsNeedFile(opts.Command, opts.Spec, opts.Sets); err != nil {
 		return err
 	}
+	if err := outputIsInput(opts.Output, opts.Spec, opts.IO.In); err != nil {
+		return err
+	}
 	name, data, err := loadSpec(opts.Spec, opts.IO.In)
 	if err != nil {
 		return err
@@ -136,8 +160,12 @@ func planRun(opts *PlanOptions) error {
 	}
 	var stopped error
 	if opts.Verify || spec.Simulate != nil {
-		stopped = simulate(spec, res, opts)
-		if stopped != nil && !errors.Is(stopped, errInterrupted) {
+		// Listen for SIGINT and SIGTERM until the output is written, so
+		// that neither cuts it short.
+		ctx, caught, stop := stopOnSignal()
+		defer stop()
+		stopped = simulate(ctx, caught, spec, res, opts)
+		if stopped != nil && !errors.Is(stopped, errInterrupted) && !errors.Is(stopped, errTerminated) {
 			return stopped
 		}
 	}

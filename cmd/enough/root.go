@@ -30,7 +30,7 @@ const (
 	ExitNoVerdict       = 5   // a review cannot reach a verdict: the protocol leaves out what it needs
 	ExitSweepIncomplete = 6   // a sweep finished with some points that could not be planned
 	ExitInterrupted     = 130 // interrupted (SIGINT, 128 + 2); a simulation's output holds what was done, marked partial
-	ExitTerminated      = 143 // terminated (SIGTERM, 128 + 15)
+	ExitTerminated      = 143 // terminated (SIGTERM, 128 + 15); a simulation's output holds what was done, marked partial
 )
 
 // exitTable is the root command's help for the exit statuses; it says what
@@ -46,7 +46,8 @@ const exitTable = `Exit status:
   6    a sweep finished with some points that could not be planned
   130  interrupted (Ctrl-C, SIGINT); a simulation's output holds the
        replicates done, marked partial
-  143  terminated (SIGTERM)
+  143  terminated (SIGTERM); a simulation's output holds the replicates
+       done, marked partial
 Statuses 3 to 6 are reserved for the review and sweep commands to come.`
 
 // IO holds the streams of a command.
@@ -220,6 +221,8 @@ func exitCode(err error) int {
 	switch {
 	case errors.Is(err, errInterrupted):
 		return ExitInterrupted
+	case errors.Is(err, errTerminated):
+		return ExitTerminated
 	case errors.As(err, &se), errors.As(err, &ie), errors.As(err, &fe), errors.As(err, &de):
 		return ExitInput
 	case isCobraUsage(err):

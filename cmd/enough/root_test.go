@@ -27,6 +27,7 @@ func TestExitCodes(t *testing.T) {
 		{&designs.InputError{Msg: "x"}, ExitInput},
 		{errors.New("bad flag syntax: ---x"), ExitInput},
 		{fmt.Errorf("wrapped: %w", errInterrupted), ExitInterrupted},
+		{fmt.Errorf("wrapped: %w", errTerminated), ExitTerminated},
 		{&designs.PlanError{File: "a.yaml", Msg: "x"}, ExitFailure},
 		{errors.New("disk full"), ExitFailure},
 	} {

@@ -8,6 +8,8 @@ import (
 	"os"
 	"os/signal"
 	"strings"
+	"sync/atomic"
+	"syscall"
 	"time"
 
 	"github.com/schollz/progressbar/v3"
@@ -18,8 +20,12 @@ import (
 	"enough/designs/report"
 )
 
-// errInterrupted marks a simulation stopped by an interrupt.
-var errInterrupted = errors.New("interrupted: the simulation stopped early; the output holds the replicates done, marked partial")
+// errInterrupted and errTerminated mark a simulation stopped by SIGINT
+// (Ctrl-C) or SIGTERM: the output is still written, marked partial.
+var (
+	errInterrupted = errors.New("interrupted: the simulation stopped early; the output holds the replicates done, marked partial")
+	errTerminated  = errors.New("terminated (SIGTERM): the simulation stopped early; the output holds the replicates done, marked partial")
+)
 
 // NewCmdSimulate builds `enough simulate`.
 func NewCmdSimulate(streams *IO) *cobra.Command {
@@ -40,8 +46,15 @@ The specification file is required ("-" reads it from standard input);
 study.
 
 A progress bar is shown on standard error when it is a terminal (not with
---quiet). Ctrl-C stops cleanly: the output holds the replicates done, marked
-partial, and the exit status is 130.`,
+--quiet). Ctrl-C (SIGINT) or SIGTERM stops the run within about a second:
+the output holds the replicates done, marked partial (exactly those of a run
+asked for that many), and the exit status is 130 (SIGINT) or 143 (SIGTERM).
+
+Guards, each refused with exit status 2: --max-replicates (at most 1e12);
+--max-seconds, checked against the pace of the first replicates, timed for
+about 0.2 s and counted in the run; --max-memory, the scratch memory of the
+workers together (fewer workers are used to stay within it). --workers is
+cut to 4 per core, as said on standard error and in the notes.`,
 		Example: `  enough simulate study.yaml
   enough simulate study.yaml --replicates 100000 --seed 7 --format json`,
 		Args: specArgs("simulate", true),
@@ -58,37 +71,23 @@ partial, and the exit status is 130.`,
 	return cmd
 }
 
-// simulate runs the verification with a progress bar and Ctrl-C handling.
-func simulate(spec *designs.Spec, res *designs.Result, opts *PlanOptions) error {
+// simulate runs the verification with a progress bar; ctx ends at the
+// first SIGINT or SIGTERM, and caught says which came.
+func simulate(ctx context.Context, caught func() os.Signal, spec *designs.Spec, res *designs.Result, opts *PlanOptions) error {
 	f := opts.Sim
-	o := designs.SimOptions{Workers: f.Workers, MaxSeconds: f.MaxSeconds, MaxReplicates: f.MaxReplicates}
-	if f.Replicates > 0 {
-		o.Replicates = f.Replicates
-	}
-	switch {
-	case f.Seed >= 0:
-		o.Seed = uint64(f.Seed)
-		o.SeedSet = true
-	case f.Seed != -1:
-		return &inputError{msg: fmt.Sprintf("--seed: %d is out of range; allowed: a whole number of at least 0", f.Seed)}
-	}
-	if f.Workers < 0 {
-		return &inputError{msg: "--workers: allowed: 0 (one per core) or more"}
-	}
-	if f.MaxSeconds < 0 {
-		return &inputError{msg: fmt.Sprintf("--max-seconds: %g is out of range; allowed: 0 (no limit) or more", f.MaxSeconds)}
-	}
-	switch {
-	case f.Replicates < 0:
-		return &inputError{msg: fmt.Sprintf("--replicates: %d is out of range; allowed: at least 100 (0 keeps the specification's)", f.Replicates)}
-	case f.Replicates > 0 && f.Replicates < 100:
-		// The flag's value is the problem, not the specification.
-		return &flagError{flag: "--replicates", msg: fmt.Sprintf("%d is too few", f.Replicates), allowed: "at least 100"}
-	case f.Replicates > 0 && f.MaxReplicates > 0 && f.Replicates > f.MaxReplicates:
+	// Each flag's range was checked as it was read; what is left is
+	// between flags.
+	if f.ReplicatesGiven && f.Replicates > f.MaxReplicates {
 		return &flagError{flag: "--replicates", msg: fmt.Sprintf("%d is more than --max-replicates (%d)", f.Replicates, f.MaxReplicates), allowed: "at most --max-replicates, or raise --max-replicates"}
 	}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
-	defer stop()
+	o := designs.SimOptions{Workers: f.Workers, MaxSeconds: f.MaxSeconds, MaxReplicates: f.MaxReplicates, MaxMemory: f.MaxMemory << 20,
+		Notice: func(msg string) { fmt.Fprintf(opts.IO.ErrOut, "enough: note: %s\n", msg) }}
+	if f.ReplicatesGiven {
+		o.Replicates = f.Replicates
+	}
+	if f.SeedGiven {
+		o.Seed, o.SeedSet = uint64(f.Seed), true
+	}
 	if !f.Quiet && isTerminal(opts.IO.ErrOut) {
 		o.Progress = progress(opts.IO.ErrOut)
 	}
@@ -105,10 +104,36 @@ func simulate(spec *designs.Spec, res *designs.Result, opts *PlanOptions) error 
 			return &inputError{file: spec.File, msg: rest}
 		}
 		return &inputError{msg: err.Error()}
+	case errors.Is(err, designs.ErrStopped) && caught() == syscall.SIGTERM:
+		return errTerminated
 	case errors.Is(err, designs.ErrStopped):
 		return errInterrupted
 	}
 	return err
+}
+
+// stopOnSignal returns a context that ends at the first SIGINT or SIGTERM,
+// a function telling which came (nil for none), and one that stops
+// listening. While it listens, neither signal ends the process: the
+// simulation stops and its partial output is still written.
+func stopOnSignal() (context.Context, func() os.Signal, func()) {
+	ch := make(chan os.Signal, 1)
+	signal.Notify(ch, os.Interrupt, syscall.SIGTERM)
+	ctx, cancel := context.WithCancel(context.Background())
+	var got atomic.Value
+	go func() {
+		select {
+		case s := <-ch:
+			got.Store(s)
+			cancel()
+		case <-ctx.Done():
+		}
+	}()
+	which := func() os.Signal {
+		s, _ := got.Load().(os.Signal)
+		return s
+	}
+	return ctx, which, func() { signal.Stop(ch); cancel() }
 }
 
 // isTerminal reports whether w is a terminal.

@@ -114,15 +114,18 @@ func simulationSection(r *designs.Result) *section {
 	if len(v.N) == 2 {
 		sizes = fmt.Sprintf("%s and %s", count(v.N[0]), count(v.N[1]))
 	}
-	if v.Partial {
+	switch {
+	case v.Partial && v.Power == nil:
+		s.paras = append(s.paras, fmt.Sprintf("**Partial:** the simulation was stopped before its first replicate: no replicate finished, so there is no simulated power (seed %d; %s analysable).", v.Seed, sizes))
+	case v.Partial:
 		s.paras = append(s.paras, fmt.Sprintf("**Partial:** the simulation was stopped after %s replicates; the figures below rest on those alone.", count(int(v.Replicates))))
 	}
-	if len(v.CI) == 2 {
-		d := simDecimals(v.SE, v.CI)
+	if v.Power != nil && len(v.CI) == 2 {
+		d := simDecimals(*v.SE, v.CI)
 		s.bullets = append(s.bullets, fmt.Sprintf("Simulated power of %s with %s analysable (%s replicates, seed %d): %s",
-			v.TestName, sizes, count(int(v.Replicates)), v.Seed, estimateText(v.Power, v.SE, v.CI, v.Replicates, d, true, true)))
+			v.TestName, sizes, count(int(v.Replicates)), v.Seed, estimateText(*v.Power, *v.SE, v.CI, v.Replicates, d, true, true)))
 		agree := "so the two agree (within 3 standard errors or 1 point)"
-		if !v.Agrees {
+		if v.Agrees != nil && !*v.Agrees {
 			agree = "so the two part ways (more than 3 standard errors and 1 point apart)"
 		}
 		what := "Closed form"
@@ -130,7 +133,7 @@ func simulationSection(r *designs.Result) *section {
 			what = "Exact power"
 		}
 		s.bullets = append(s.bullets, fmt.Sprintf("%s at the same sizes: %s; the simulated power is %s, %s",
-			what, pctD(v.ClosedFormPower, d), printedDifference(v.Power, v.ClosedFormPower, d), agree))
+			what, pctD(v.ClosedFormPower, d), printedDifference(*v.Power, v.ClosedFormPower, d), agree))
 	}
 	if v.Type1Error != nil {
 		d := simDecimals(*v.Type1SE, v.Type1CI)
