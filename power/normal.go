@@ -8,6 +8,10 @@ import "gonum.org/v1/gonum/stat/distuv"
 //	z = Φ⁻¹(1 − alpha/sides)
 //
 // For alpha = 0.05 and two sides it is 1.959964 (common practice: 1.96).
+// It is taken from the tail alpha/sides itself, never from 1 − alpha/sides,
+// and agrees with R's qnorm(p, lower.tail = FALSE) for p from 0.5 to 1e-20;
+// its square is the critical value of the 1-df chi-square tests,
+// qchisq(alpha, 1, lower.tail = FALSE) (tails_test.go).
 // ZAlpha panics if alpha is not in (0, 1) or sides is not 1 or 2.
 func ZAlpha(alpha float64, sides int) float64 {
 	if !(alpha > 0 && alpha < 1) {

@@ -1,10 +1,6 @@
 package power
 
-import (
-	"math"
-
-	"gonum.org/v1/gonum/stat/distuv"
-)
+import "math"
 
 // Precision describes a survey that estimates one proportion with a Wald
 // (normal-approximation) confidence interval.
@@ -24,7 +20,8 @@ func (pr Precision) z() float64 {
 	if !(pr.P > 0 && pr.P < 1) || !(pr.Confidence > 0 && pr.Confidence < 1) {
 		panic("power: precision parameters out of range")
 	}
-	return distuv.UnitNormal.Quantile(1 - (1-pr.Confidence)/2)
+	// From the upper tail (1 − confidence)/2 itself, as [ZAlpha] takes it.
+	return ZAlpha(1-pr.Confidence, 2)
 }
 
 func (pr Precision) finite() bool {

@@ -234,22 +234,21 @@ func TestTOSTAtTinyAlpha(t *testing.T) {
 }
 
 // TestTUpperEdges checks the cases TUpper and TUpperQuantile answer
-// without integrating, and that the integral gives them back in the limit.
+// without integrating, against tails_normal.tsv: with z = qnorm(p,
+// lower.tail = FALSE), P(T > 0) = Φ(ncp) = 1 − p at ncp = z (T > 0 exactly
+// when Z + ncp > 0; common practice), and the normal limit df = +Inf gives
+// P(T > z) = p. Out-of-range arguments give NaN, and the ends of the
+// quantile ±Inf.
 func TestTUpperEdges(t *testing.T) {
-	// P(T > 0) = Φ(ncp) (common practice: T > 0 exactly when Z + ncp > 0);
-	// Φ(1) = 0.8413447460685429 from R pnorm(1).
-	if got := TUpper(0, 7, 1); math.Abs(got-0.8413447460685429) > 1e-16 {
-		t.Errorf("TUpper(0, 7, 1) = %.17g, want pnorm(1) = 0.8413447460685429", got)
-	}
-	// The normal limit: R pnorm(2, lower.tail = FALSE) = 0.022750131948179209.
-	if got := TUpper(2, math.Inf(1), 0); math.Abs(got-0.022750131948179209) > 1e-15*0.0228 {
-		t.Errorf("TUpper(2, Inf, 0) = %.17g, want 0.022750131948179209", got)
-	}
-	// The Cauchy (df = 1): P(T > q) = 1/2 − atan(q)/π = atan(1/q)/π for
-	// q > 0 (common practice); at q = 1e10, 3.1830988618379067e-11 (R
-	// pt(1e10, 1, lower.tail = FALSE)).
-	if got := TUpper(1e10, 1, 0); math.Abs(got-3.1830988618379067e-11) > 1e-13*3.2e-11 {
-		t.Errorf("TUpper(1e10, 1, 0) = %.17g, want 3.1830988618379067e-11", got)
+	for _, row := range reftable.Load(t, "tails_normal.tsv") {
+		p, z := row.F(t, "p"), row.F(t, "z")
+		if got := TUpper(0, 7, z); math.Abs(got-(1-p)) > 1e-15 {
+			t.Errorf("%s: TUpper(0, 7, %.17g) = %.17g, want 1 - %g (%s)", row["id"], z, got, p, row["source_z"])
+		}
+		// z carries half an ulp, which moves Q(z) by z² of it relatively.
+		if got := TUpper(z, math.Inf(1), 0); math.Abs(got-p) > 5e-16*(1+z*z)*p {
+			t.Errorf("%s: TUpper(%.17g, Inf, 0) = %.17g, want %g (%s)", row["id"], z, got, p, row["source_z"])
+		}
 	}
 	for _, c := range []struct {
 		name string
