@@ -305,6 +305,17 @@ func (m MeansMethod) N(mc MeanComparison, r, power float64) (float64, error) {
 		return lo, nil
 	}
 	hi := 2 * lo
+	if m == T {
+		// Bracket the root next to the normal-approximation answer, which
+		// costs no t power, instead of doubling up from lo.
+		if nz, err := Z.N(mc, r, power); err == nil && nz > hi && nz < 1e12 {
+			if f(nz) >= 0 {
+				hi = nz
+			} else {
+				lo, hi = nz, 1.1*nz+2
+			}
+		}
+	}
 	for f(hi) < 0 {
 		lo = hi
 		hi *= 2

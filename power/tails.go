@@ -3,6 +3,7 @@ package power
 import (
 	"math"
 	"sort"
+	"sync/atomic"
 
 	"gonum.org/v1/gonum/integrate/quad"
 	"gonum.org/v1/gonum/mathext"
@@ -222,6 +223,24 @@ func (f *tIntegrand) scaled(z, top float64) float64 {
 // Functions, 26.7.1 and 26.5 (the t distribution through the incomplete
 // beta function).
 func TUpperQuantile(p, df float64) float64 {
+	if m := lastQuantile.Load(); m != nil && m.p == p && m.df == df {
+		return m.q
+	}
+	q := tUpperQuantile(p, df)
+	lastQuantile.Store(&quantileMemo{p: p, df: df, q: q})
+	return q
+}
+
+// quantileMemo is the last answer of TUpperQuantile: a search over the
+// effect at a fixed size asks for the same critical value at every step.
+// Plans running at the same time may replace each other's entry; a miss
+// only solves again, and a hit is the value the solve would give, so no
+// result depends on the memo.
+type quantileMemo struct{ p, df, q float64 }
+
+var lastQuantile atomic.Pointer[quantileMemo]
+
+func tUpperQuantile(p, df float64) float64 {
 	switch {
 	case math.IsNaN(p) || p < 0 || p > 1 || !(df > 0):
 		return math.NaN()
@@ -232,7 +251,7 @@ func TUpperQuantile(p, df float64) float64 {
 	case p == 0.5:
 		return 0
 	case p > 0.5:
-		return -TUpperQuantile(1-p, df)
+		return -tUpperQuantile(1-p, df)
 	}
 	z := -mathext.NormalQuantile(p) // the normal quantile is a lower bound
 	if math.IsInf(df, 1) {
