@@ -439,10 +439,15 @@ func clustersFor(s *Spec, enrol []int) [2]int {
 // recordClusters records the clusters per arm and the effective sizes of a
 // cluster design.
 func recordClusters(s *Spec, tr *trail, sz sizes, e effects) {
+	recordClusterCounts(s, tr, sz, e)
+	recordEffective(s, tr, sz)
+}
+
+// recordClusterCounts records the clusters each arm's enrolment fills.
+func recordClusterCounts(s *Spec, tr *trail, sz sizes, e effects) {
 	for i, g := range []string{"first", "second"} {
 		tr.addInt("clusters_"+g, "ceil(enrol_"+g+" / cluster_size)", e.clusterK[i], inInt("enrol_"+g, sz.enrol[i]), in("cluster_size", s.Cluster.Size))
 	}
-	recordEffective(s, tr, sz)
 }
 
 // clusterSizes returns the sizes of a cluster design with n1 analysable
@@ -468,9 +473,7 @@ func atEnrolment(s *Spec, m *MethodInfo, e effects, tr *trail) (sizes, calculato
 		if e.clusterK[0] < 2 || e.clusterK[1] < 2 {
 			return sz, nil, e, &SpecError{File: s.File, Key: "n", Msg: fmt.Sprintf("%s analysable participants make fewer than two clusters of %g in an arm; allowed: at least two clusters per arm", fmtSizes(sz.n), s.Cluster.Size)}
 		}
-		for i, g := range []string{"first", "second"} {
-			tr.addInt("clusters_"+g, "ceil(enrol_"+g+" / cluster_size)", e.clusterK[i], inInt("enrol_"+g, sz.enrol[i]), in("cluster_size", s.Cluster.Size))
-		}
+		recordClusterCounts(s, tr, sz, e)
 	}
 	return sz, newCalculator(s, m, e), e, nil
 }
