@@ -33,8 +33,15 @@ func BoundaryKeys() []BoundaryKey {
 // HiddenLimits are limits the code enforces that the allowed texts do not
 // state, by key ("" for every whole-number key).
 var HiddenLimits = map[string][]float64{
-	"":                {MaxSize},
-	"cluster.size":    {1e6},
-	"cluster.size_cv": {10},
-	"simulate.seed":   {1 << 53},
+	"":      {MaxSize},
+	"power": {MaxPower},
+}
+
+func init() {
+	// "1 − 1e-9" in an allowed text reads as the limits 1 and 1e-9.
+	for k, info := range specKeys {
+		if info.allowed == allowedRisk {
+			HiddenLimits[k] = append(HiddenLimits[k], 1-MinRisk)
+		}
+	}
 }

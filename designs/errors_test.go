@@ -175,7 +175,7 @@ func TestParseSeveralErrors(t *testing.T) {
 	}{
 		{"three independent problems in line order",
 			"version: 1\ndesign: trial\nattrition: 15\ncontrol_risk: 0.2\nrisk_ratio: -0.5\npower: 0.8\nalhpa: 0.05\n", nil,
-			[]want{{3, "attrition", "did you mean 0.15?"}, {5, "risk_ratio", "allowed: a number above 0"}, {7, "alhpa", `did you mean "alpha"?`}}},
+			[]want{{3, "attrition", "did you mean 0.15?"}, {5, "risk_ratio", "allowed: a number from 0.001 to 1000"}, {7, "alhpa", `did you mean "alpha"?`}}},
 		{"a bad reference and a bad effect, and nothing combined from them",
 			"version: 1\ndesign: cohort\nunexposed_risk: 20\nrisk_ratio: -1\npower: 0.8\n", nil,
 			[]want{{3, "unexposed_risk", "did you mean 0.2?"}, {4, "risk_ratio", "out of range"}}},
@@ -321,7 +321,7 @@ func TestValueHints(t *testing.T) {
 		rest  = "control_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8\n"
 	)
 	checkKeyCases(t, []keyCase{
-		{"ratio as the summary prints it", trial + "ratio: 1:2\n", "ratio", `"1:2" is not a number; allowed: a number above 0; did you mean ratio: 2? (the second group's size per member of the first)`, "", nil},
+		{"ratio as the summary prints it", trial + "ratio: 1:2\n", "ratio", `"1:2" is not a number; allowed: a number from 0.001 to 1000; did you mean ratio: 2? (the second group's size per member of the first)`, "", nil},
 		{"controls per case as 1:4", cc + "ratio: 1:4\n", "ratio", "did you mean ratio: 4?", "", nil},
 		{"ratio 2:1 is a half", trial + "ratio: 2:1\n", "ratio", "did you mean ratio: 0.5?", "", nil},
 		{"ratio 0:1 means nothing", trial + "ratio: 0:1\n", "ratio", "is not a number", "did you mean", nil},
@@ -488,8 +488,8 @@ func TestPercentLike(t *testing.T) {
 		prec = "version: 1\ndesign: cross-sectional\ngoal: precision\nexpected_prevalence: 0.3\n"
 	)
 	checkKeyCases(t, []keyCase{
-		{"control risk 20", head + "control_risk: 20\nrisk_ratio: 0.75\npower: 0.8\n", "control_risk", "20 is out of range; allowed: a probability strictly between 0 and 1; did you mean 0.2?", "", nil},
-		{"power 80", head + "control_risk: 0.2\nrisk_ratio: 0.75\npower: 80\n", "power", "allowed: a number above alpha (0.05) and below 1; did you mean 0.8?", "", nil},
+		{"control risk 20", head + "control_risk: 20\nrisk_ratio: 0.75\npower: 0.8\n", "control_risk", "20 is out of range; allowed: a probability from 1e-9 to 1 − 1e-9; did you mean 0.2?", "", nil},
+		{"power 80", head + "control_risk: 0.2\nrisk_ratio: 0.75\npower: 80\n", "power", "allowed: a number above alpha (0.05) and at most 1 − 1e-9; did you mean 0.8?", "", nil},
 		{"alpha 5", head + "control_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8\nalpha: 5\n", "alpha", "did you mean 0.05?", "", nil},
 		{"attrition 15", head + "control_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8\nattrition: 15\n", "attrition", "did you mean 0.15?", "", nil},
 		{"risk difference -10", head + "control_risk: 0.2\nrisk_difference: -10\npower: 0.8\n", "risk_difference", "did you mean -0.1?", "", nil},
@@ -500,9 +500,9 @@ func TestPercentLike(t *testing.T) {
 		{"control risk 100: 1 is no risk either", head + "control_risk: 100\nrisk_ratio: 0.75\npower: 0.8\n", "control_risk", "out of range", "did you mean", nil},
 		{"attrition 150", head + "control_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8\nattrition: 150\n", "attrition", "out of range", "did you mean", nil},
 		{"design effect is no fraction", head + "control_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8\ndesign_effect: 0.5\n", "design_effect", "out of range", "did you mean", nil},
-		{"power written 80%", head + "control_risk: 0.2\nrisk_ratio: 0.75\npower: 80%\n", "power", `"80%" is a percentage; allowed: a number above alpha and below 1, written as a fraction; did you mean 0.8?`, "", nil},
+		{"power written 80%", head + "control_risk: 0.2\nrisk_ratio: 0.75\npower: 80%\n", "power", `"80%" is a percentage; allowed: a number above alpha and at most 1 − 1e-9, written as a fraction; did you mean 0.8?`, "", nil},
 		{"control risk written 12.5%", head + "control_risk: '12.5%'\nrisk_ratio: 0.75\npower: 0.8\n", "control_risk", "did you mean 0.125?", "", nil},
-		{"power written 0.8%: 0.008 is below alpha, so no guess", head + "control_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8%\n", "power", `"0.8%" is a percentage, and the fraction it stands for, 0.008, is out of range too; allowed: a number above alpha (0.05) and below 1`, "did you mean", nil},
+		{"power written 0.8%: 0.008 is below alpha, so no guess", head + "control_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8%\n", "power", `"0.8%" is a percentage, and the fraction it stands for, 0.008, is out of range too; allowed: a number above alpha (0.05) and at most 1 − 1e-9`, "did you mean", nil},
 		{"power written 3% against alpha 0.01: 0.03 is above it", head + "control_risk: 0.2\nrisk_ratio: 0.75\nalpha: 0.01\npower: 3%\n", "power", "did you mean 0.03?", "", nil},
 		{"attrition written 10%: the fraction is not said twice", head + "control_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8\nattrition: 10%\n", "attrition", `"10%" is a percentage; allowed: a fraction in [0, 1); did you mean 0.1?`, "written as a fraction", nil},
 		{"alpha written 60%: 0.6 is above 0.5", head + "control_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8\nalpha: 60%\n", "alpha", "out of range too", "did you mean", nil},
@@ -514,7 +514,7 @@ func TestPercentLike(t *testing.T) {
 		{"baseline correlation 50", head + "outcome: continuous\nmean_difference: 2\nsd: 5\npower: 0.8\nbaseline_correlation: 50\n", "baseline_correlation", "50 is out of range; allowed: a number in [0, 1); did you mean 0.5?", "", nil},
 		{"within correlation 60", head + "outcome: continuous\npairing: paired\nmean_difference: 2\nsd: 5\npower: 0.8\nwithin_correlation: 60\n", "within_correlation", "did you mean 0.6?", "", nil},
 		{"within correlation -60", head + "outcome: continuous\npairing: paired\nmean_difference: 2\nsd: 5\npower: 0.8\nwithin_correlation: -60\n", "within_correlation", "did you mean -0.6?", "", nil},
-		{"a risk ratio written 75%", head + "control_risk: 0.2\nrisk_ratio: 75%\npower: 0.8\n", "risk_ratio", "risk_ratio is a ratio, not a percentage; allowed: a number above 0", "fraction", nil},
+		{"a risk ratio written 75%", head + "control_risk: 0.2\nrisk_ratio: 75%\npower: 0.8\n", "risk_ratio", "risk_ratio is a ratio, not a percentage; allowed: a number from 0.001 to 1000", "fraction", nil},
 		{"a ratio margin written 110%", ni + "margin_scale: ratio\nmargin: 110%\n", "margin", "margin is a ratio, not a percentage", "fraction", nil},
 		{"a mean difference written 5%", head + "outcome: continuous\nmean_difference: 5%\nsd: 2\npower: 0.8\n", "mean_difference", `"5%" is a percentage; allowed: a number (first group minus second)`, "fraction", nil},
 	})

@@ -17,6 +17,52 @@ const (
 	kindBool
 )
 
+// The named limits of a specification: each is stated in the key's
+// allowed text, in the README's tables and in the error that refuses a
+// value beyond it. They keep every number the engine derives (a hazard,
+// a ratio of two risks, a standardised difference) finite and far from
+// the edges of float64, and none of them excludes a study that could be
+// run: with at most MaxSize participants in a group, a risk below MinRisk
+// means less than one expected event.
+const (
+	// MinRisk bounds every risk, exposure, prevalence and survival
+	// probability, given or derived: from MinRisk to 1 − MinRisk.
+	MinRisk = 1e-9
+	// MaxRatio bounds the allocation ratio and every effect stated as a
+	// ratio (risk, prevalence, odds and hazard ratios): from 1/MaxRatio
+	// to MaxRatio.
+	MaxRatio = 1000.0
+	// MinTime and MaxTime bound every time of a time-to-event plan, in
+	// its own time unit (accrual and follow-up may also be 0).
+	MinTime, MaxTime = 1e-6, 1e6
+	// MaxStandardized bounds a difference of means, and a margin, in
+	// standard deviations of the outcome.
+	MaxStandardized = 100
+	// MaxPower bounds the target power: 1 − 1e-9, so that (1 + power)/2,
+	// which equivalence tests use, stays below 1.
+	MaxPower = 1 - 1e-9
+)
+
+// inRisk says whether x is a risk within the named limits.
+func inRisk(x float64) bool { return x >= MinRisk && x <= 1-MinRisk }
+
+// inRatio says whether x is a ratio within the named limits.
+func inRatio(x float64) bool { return x >= 1/MaxRatio && x <= MaxRatio }
+
+// inTime says whether x is a time within the named limits.
+func inTime(x float64) bool { return x >= MinTime && x <= MaxTime }
+
+// inTime0 says whether x is 0 or a time within the named limits.
+func inTime0(x float64) bool { return x == 0 || inTime(x) }
+
+// Allowed texts of the named limits.
+const (
+	allowedRisk  = "a probability from 1e-9 to 1 − 1e-9"
+	allowedRatio = "a number from 0.001 to 1000"
+	allowedTime  = "a time from 1e-6 to 1e6"
+	allowedTime0 = "0, or a time from 1e-6 to 1e6"
+)
+
 // keyInfo describes one specification key.
 type keyInfo struct {
 	kind    kind
@@ -35,11 +81,11 @@ var specKeys = map[string]keyInfo{
 	"test":            {kindText, "chi-square, chi-square-yates, fisher or z-unpooled"},
 	"alpha":           {kindNumber, "a number in [1e-20, 0.5]"},
 	"sides":           {kindWhole, "1 or 2"},
-	"power":           {kindNumber, "a number above alpha and below 1"},
+	"power":           {kindNumber, "a number above alpha and at most 1 − 1e-9"},
 	"n":               {kindWhole, "a whole number of at least 2"},
 	"total":           {kindWhole, "a whole number of at least 2"},
 	"n_second":        {kindWhole, "a whole number of at least 1"},
-	"ratio":           {kindNumber, "a number above 0"},
+	"ratio":           {kindNumber, allowedRatio},
 	"attrition":       {kindNumber, "a fraction in [0, 1)"},
 	"design_effect":   {kindNumber, "a number from 1 to 1000"},
 	"sources":         {kindMap, "a map from an assumption's key to where its value came from"},
@@ -47,19 +93,19 @@ var specKeys = map[string]keyInfo{
 	"first_group":     {kindText, "a line of text"},
 	"second_group":    {kindText, "a line of text"},
 
-	"unexposed_risk":        {kindNumber, "a probability in (0, 1)"},
-	"exposed_risk":          {kindNumber, "a probability in (0, 1)"},
-	"control_risk":          {kindNumber, "a probability in (0, 1)"},
-	"intervention_risk":     {kindNumber, "a probability in (0, 1)"},
-	"control_exposure":      {kindNumber, "a probability in (0, 1)"},
-	"case_exposure":         {kindNumber, "a probability in (0, 1)"},
-	"exposure_prevalence":   {kindNumber, "a probability in (0, 1)"},
-	"unexposed_prevalence":  {kindNumber, "a probability in (0, 1)"},
-	"exposed_prevalence":    {kindNumber, "a probability in (0, 1)"},
-	"expected_prevalence":   {kindNumber, "a probability in (0, 1)"},
-	"risk_ratio":            {kindNumber, "a number above 0"},
-	"prevalence_ratio":      {kindNumber, "a number above 0"},
-	"odds_ratio":            {kindNumber, "a number above 0"},
+	"unexposed_risk":        {kindNumber, allowedRisk},
+	"exposed_risk":          {kindNumber, allowedRisk},
+	"control_risk":          {kindNumber, allowedRisk},
+	"intervention_risk":     {kindNumber, allowedRisk},
+	"control_exposure":      {kindNumber, allowedRisk},
+	"case_exposure":         {kindNumber, allowedRisk},
+	"exposure_prevalence":   {kindNumber, allowedRisk},
+	"unexposed_prevalence":  {kindNumber, allowedRisk},
+	"exposed_prevalence":    {kindNumber, allowedRisk},
+	"expected_prevalence":   {kindNumber, allowedRisk},
+	"risk_ratio":            {kindNumber, allowedRatio},
+	"prevalence_ratio":      {kindNumber, allowedRatio},
+	"odds_ratio":            {kindNumber, allowedRatio},
 	"risk_difference":       {kindNumber, "a number in (-1, 1)"},
 	"prevalence_difference": {kindNumber, "a number in (-1, 1)"},
 	"margin":                {kindNumber, "a positive number (a precision survey: in (0, 0.5); a trial: see margin in the README for each outcome and margin_scale)"},
@@ -69,7 +115,7 @@ var specKeys = map[string]keyInfo{
 	// Trials and continuous and time-to-event outcomes.
 	"hypothesis":           {kindText, "superiority, non-inferiority or equivalence"},
 	"higher_is_better":     {kindBool, "true or false"},
-	"mean_difference":      {kindNumber, "a number (first group minus second)"},
+	"mean_difference":      {kindNumber, "a number (first group minus second), at most 100 standard deviations either way"},
 	"intervention_mean":    {kindNumber, "a number"},
 	"control_mean":         {kindNumber, "a number"},
 	"exposed_mean":         {kindNumber, "a number"},
@@ -81,36 +127,36 @@ var specKeys = map[string]keyInfo{
 	"within_correlation":   {kindNumber, "a number in (-1, 1)"},
 	"baseline_correlation": {kindNumber, "a number in [0, 1)"},
 	"pairing":              {kindText, "paired or crossover"},
-	"hazard_ratio":         {kindNumber, "a number above 0"},
-	"control_median":       {kindNumber, "a time above 0"},
-	"control_survival":     {kindNumber, "a probability in (0, 1)"},
-	"time":                 {kindNumber, "a time above 0"},
-	"accrual":              {kindNumber, "a time of at least 0"},
-	"follow_up":            {kindNumber, "a time of at least 0 (above 0 when there is no accrual)"},
+	"hazard_ratio":         {kindNumber, allowedRatio},
+	"control_median":       {kindNumber, allowedTime},
+	"control_survival":     {kindNumber, allowedRisk},
+	"time":                 {kindNumber, allowedTime},
+	"accrual":              {kindNumber, allowedTime0},
+	"follow_up":            {kindNumber, "0, or a time from 1e-6 to 1e6 (not 0 when there is no accrual)"},
 	"dropout":              {kindNumber, "a fraction in [0, 1) lost per time unit"},
 	"time_unit":            {kindText, "a word such as months or years"},
-	"cluster":              {kindMap, "a map with size (mean cluster size, at least 2), icc (in [0, 1)) and optionally size_cv (at least 0)"},
+	"cluster":              {kindMap, "a map with size (mean cluster size, from 2 to 1,000,000), icc (in [0, 1)) and optionally size_cv (from 0 to 10)"},
 	"non_adherence":        {kindNumber, "a fraction in [0, 1)"},
 	"contamination":        {kindNumber, "a fraction in [0, 1)"},
 	"arms":                 {kindWhole, "a whole number from 2 to 20"},
 	"comparisons":          {kindText, "each-vs-control or all-pairs"},
 	"direction":            {kindText, "first-higher or first-lower"},
 	"margin_scale":         {kindText, "difference or ratio"},
-	"simulate":             {kindMap, "a map with replicates (100 to 1e9), seed (a whole number of at least 0) and optionally n (the first group's size to simulate at)"},
+	"simulate":             {kindMap, "a map with replicates (100 to 1e9), seed (a whole number from 0 to 2^53) and optionally n (the first group's size to simulate at)"},
 }
 
 // simulateKeys are the keys of the simulate map.
 var simulateKeys = map[string]string{
 	"replicates": "the number of simulated studies, a whole number from 100 to 1,000,000,000",
-	"seed":       "the seed of the random numbers, a whole number of at least 0",
+	"seed":       "the seed of the random numbers, a whole number from 0 to 2^53 (9,007,199,254,740,992)",
 	"n":          "the first group's analysable size to simulate at, a whole number of at least 2 (default: the plan's)",
 }
 
 // clusterKeys are the keys of the cluster map.
 var clusterKeys = map[string]string{
-	"size":    "the mean number of participants per cluster, at least 2",
+	"size":    "the mean number of participants per cluster, from 2 to 1,000,000",
 	"icc":     "the intracluster correlation coefficient, in [0, 1)",
-	"size_cv": "the coefficient of variation of cluster sizes, at least 0",
+	"size_cv": "the coefficient of variation of cluster sizes, from 0 to 10",
 }
 
 // allKeys returns the specification keys in sorted order.
@@ -270,14 +316,13 @@ var fractionKeys = map[string]bool{
 // as a percentage is suggested only when it would be accepted. alpha is
 // the level in force, which power must exceed (0 when not known).
 func fractionRange(key string, alpha float64) func(float64) bool {
-	in01 := func(x float64) bool { return x > 0 && x < 1 }
 	from0 := func(x float64) bool { return x >= 0 && x < 1 }
 	pm1 := func(x float64) bool { return x > -1 && x < 1 }
 	switch key {
 	case "alpha":
 		return func(x float64) bool { return x >= 1e-20 && x <= 0.5 } // power.MinAlpha
 	case "power":
-		return func(x float64) bool { return x > alpha && x < 1 }
+		return func(x float64) bool { return x > alpha && x <= MaxPower }
 	case "confidence":
 		return func(x float64) bool { return x >= 0.5 && x < 1 }
 	case "attrition", "dropout", "non_adherence", "contamination", "baseline_correlation", "cluster.icc":
@@ -285,7 +330,7 @@ func fractionRange(key string, alpha float64) func(float64) bool {
 	case "risk_difference", "prevalence_difference", "within_correlation":
 		return pm1
 	}
-	return in01
+	return inRisk
 }
 
 // ratioKeys take a ratio, which is a plain number and not a percentage.

@@ -723,7 +723,7 @@ func allowedOf(key string) string {
 // allowedNow says what key allows, with the level in force for power.
 func (r *reader) allowedNow(key string) string {
 	if key == "power" && r.alpha > 0 {
-		return fmt.Sprintf("a number above alpha (%g) and below 1", r.alpha)
+		return fmt.Sprintf("a number above alpha (%g) and at most 1 − 1e-9", r.alpha)
 	}
 	return allowedOf(key)
 }

@@ -461,18 +461,18 @@ func (r *reader) optNum(key string, def float64, in func(float64) bool) (float64
 
 func in01(x float64) bool { return x > 0 && x < 1 }
 
-// probability reads a required probability in (0, 1), what says what it
-// is; on a problem, recorded, it returns false.
+// probability reads a required probability from MinRisk to 1 − MinRisk,
+// what says what it is; on a problem, recorded, it returns false.
 func (r *reader) probability(key, what string) (float64, bool) {
 	x, e, err := r.number(key)
 	switch {
 	case !r.keep(err):
 		return 0, false
 	case e == nil:
-		r.missing(key, "", what+", a probability in (0, 1)")
+		r.missing(key, "", what+", "+allowedRisk)
 		return 0, false
-	case !in01(x):
-		r.refuse(r.rangeErr(e, x, "a probability strictly between 0 and 1", in01))
+	case !inRisk(x):
+		r.refuse(r.rangeErr(e, x, allowedRisk, inRisk))
 		return 0, false
 	}
 	return x, true
@@ -596,8 +596,8 @@ func (r *reader) effectToP1(s *Spec, e *entry, p2OK bool) bool {
 	var p1 float64
 	switch scaleOf(s.EffectKey) {
 	case ScaleRatio, ScaleOdds:
-		if !(x > 0) {
-			r.refuse(r.errAt(e, "%s is out of range; allowed: a number above 0", show(e.node)))
+		if !inRatio(x) {
+			r.refuse(r.rangeErr(e, x, allowedRatio, inRatio))
 			return false
 		}
 		if scaleOf(s.EffectKey) == ScaleRatio {
@@ -613,8 +613,8 @@ func (r *reader) effectToP1(s *Spec, e *entry, p2OK bool) bool {
 		}
 		p1 = p2 + x
 	case ScaleRisk:
-		if !in01(x) {
-			r.refuse(r.rangeErr(e, x, "a probability strictly between 0 and 1", in01))
+		if !inRisk(x) {
+			r.refuse(r.rangeErr(e, x, allowedRisk, inRisk))
 			return false
 		}
 		p1 = x
@@ -631,8 +631,8 @@ func (r *reader) effectToP1(s *Spec, e *entry, p2OK bool) bool {
 		return true
 	}
 	ro := roles[s.Design]
-	if !in01(p1) {
-		r.refuse(r.errAt(e, "%s with %s %g gives a risk of %.4g in the %s; allowed: an effect that keeps the risk strictly between 0 and 1", show(e.node), s.ReferenceKey, p2, p1, ro.first))
+	if !inRisk(p1) {
+		r.refuse(r.errAt(e, "%s with %s %g gives a risk of %.4g in the %s; allowed: an effect that keeps the risk from 1e-9 to 1 − 1e-9", show(e.node), s.ReferenceKey, p2, p1, ro.first))
 		return false
 	}
 	if math.Abs(p1-p2) < 1e-12 {

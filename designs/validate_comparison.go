@@ -94,7 +94,7 @@ func (r *reader) buildComparison(s *Spec) {
 
 	// power
 	pw, pe, err := r.number("power")
-	inPower := func(x float64) bool { return x > s.Alpha && x < 1 }
+	inPower := func(x float64) bool { return x > s.Alpha && x <= MaxPower }
 	switch {
 	case !r.keep(err):
 	case s.Solve == "power":
@@ -103,18 +103,18 @@ func (r *reader) buildComparison(s *Spec) {
 		}
 	case pe == nil:
 		if !r.solveBad {
-			r.missing("power", "required when solving "+s.Solve, "the target power, a number above alpha and below 1 (e.g. 0.8)")
+			r.missing("power", "required when solving "+s.Solve, "the target power, a number above alpha and at most 1 − 1e-9 (e.g. 0.8)")
 		}
 	case !alphaOK:
 		// The bound is unknown; only what no alpha allows is refused.
-		if !in01(pw) {
-			r.refuse(r.rangeErr(pe, pw, "a number above alpha and below 1", in01))
+		if in := func(x float64) bool { return x > 0 && x <= MaxPower }; !in(pw) {
+			r.refuse(r.rangeErr(pe, pw, "a number above alpha and at most 1 − 1e-9", in))
 		}
 	case !inPower(pw):
 		if pw > 0 && pw <= s.Alpha {
-			r.refuse(r.errAt(pe, "%s is not above alpha (%g); allowed: a number above alpha and below 1", show(pe.node), s.Alpha))
+			r.refuse(r.errAt(pe, "%s is not above alpha (%g); allowed: a number above alpha and at most 1 − 1e-9", show(pe.node), s.Alpha))
 		} else {
-			r.refuse(r.rangeErr(pe, pw, fmt.Sprintf("a number above alpha (%g) and below 1", s.Alpha), inPower))
+			r.refuse(r.rangeErr(pe, pw, fmt.Sprintf("a number above alpha (%g) and at most 1 − 1e-9", s.Alpha), inPower))
 		}
 	default:
 		s.Power = pw
@@ -146,7 +146,7 @@ func (r *reader) buildComparison(s *Spec) {
 			}
 		}
 	} else {
-		s.Ratio, _ = r.rangeNum("ratio", 1, func(x float64) bool { return x > 0 && !math.IsInf(x, 0) })
+		s.Ratio, _ = r.rangeNum("ratio", 1, inRatio)
 		n2, n2e, err := r.whole("n_second")
 		if r.keep(err) && n2e != nil {
 			switch {
@@ -383,9 +383,9 @@ func (r *reader) buildMargin(s *Spec) {
 		r.missing("margin", "required for hypothesis "+s.Hypothesis, "the "+s.Hypothesis+" margin "+what)
 		return
 	case ratio && ok:
-		in := func(x float64) bool { return x > 1 && !math.IsInf(x, 1) }
+		in := func(x float64) bool { return x > 1 && x <= MaxRatio }
 		if s.Hypothesis == "non-inferiority" && s.HigherIsBetter {
-			in = func(x float64) bool { return x > 0 && x < 1 }
+			in = func(x float64) bool { return x >= 1/MaxRatio && x < 1 }
 		}
 		if !in(m) {
 			r.refuse(r.errAt(me, "%s is out of range; allowed: %s", show(me.node), marginRatioRange(s)))
@@ -393,8 +393,8 @@ func (r *reader) buildMargin(s *Spec) {
 		}
 	case ratio:
 		// Which ratios are allowed follows from higher_is_better.
-		if !(m > 0) || math.IsInf(m, 1) {
-			r.refuse(r.errAt(me, "%s is out of range; allowed: a ratio above 0", show(me.node)))
+		if !inRatio(m) {
+			r.refuse(r.rangeErr(me, m, "a ratio from 0.001 to 1000", inRatio))
 		}
 		return
 	case !(m > 0):
@@ -417,11 +417,11 @@ func marginRatioRange(s *Spec) string {
 	what := map[bool]string{false: "risk ratio", true: "hazard ratio"}[s.Outcome == "time-to-event"]
 	switch {
 	case s.Hypothesis == "equivalence":
-		return "a " + what + " above 1; the equivalence interval is (1/margin, margin)"
+		return "a " + what + " above 1 and at most 1000; the equivalence interval is (1/margin, margin)"
 	case s.HigherIsBetter:
-		return "a " + what + " in (0, 1), since higher is better: the null hypothesis is that the ratio (first over second) is at most the margin"
+		return "a " + what + " from 0.001 to below 1, since higher is better: the null hypothesis is that the ratio (first over second) is at most the margin"
 	}
-	return "a " + what + " above 1, since lower is better: the null hypothesis is that the ratio (first over second) is at least the margin"
+	return "a " + what + " above 1 and at most 1000, since lower is better: the null hypothesis is that the ratio (first over second) is at least the margin"
 }
 
 // buildDirection reads the side a one-sided superiority test looks, which
@@ -732,6 +732,7 @@ func (r *reader) buildContinuous(s *Spec) {
 			r.missing("sd_difference", "", "the standard deviation of the within-participant differences, above 0 (or sd with within_correlation)")
 		}
 		s.SD2 = s.SD1
+		r.checkStandardized(s, effectEntry, known)
 		return
 	}
 
@@ -769,12 +770,42 @@ func (r *reader) buildContinuous(s *Spec) {
 		f := math.Sqrt(1 - rho*rho)
 		s.SD1, s.SD2 = s.SD1*f, s.SD2*f
 	}
+	r.checkStandardized(s, effectEntry, known)
+}
+
+// checkStandardized refuses a difference of means, or a margin, of more
+// than MaxStandardized standard deviations (the smaller of the two groups'
+// after any adjustment for the baseline), which no study needs and which
+// would carry the engine's noncentral distributions past their range.
+func (r *reader) checkStandardized(s *Spec, effectEntry *entry, known bool) {
+	sd := math.Min(s.SD1, s.SD2)
+	if !(sd > 0) {
+		return
+	}
+	sdWhat := "the standard deviation"
+	if s.BaselineCorrelation > 0 {
+		sdWhat = "the standard deviation after adjustment for the baseline"
+	}
+	check := func(e *entry, what, noun string, x float64) {
+		if d := math.Abs(x) / sd; !(d <= MaxStandardized) {
+			r.refuse(r.errAt(e, "%s, %.3g times %s (%.4g); allowed: a %s of at most %d standard deviations", what, d, sdWhat, sd, noun, MaxStandardized))
+		}
+	}
+	if known && effectEntry != nil {
+		what := show(effectEntry.node) + " is a difference of means"
+		if effectEntry.key != "mean_difference" {
+			what = fmt.Sprintf("%s gives a difference of means of %.4g", show(effectEntry.node), s.MeanDiff)
+		}
+		check(effectEntry, what, "difference", s.MeanDiff)
+	}
+	if me := r.get("margin"); s.Hypothesis != "superiority" && s.Margin > 0 && me != nil {
+		check(me, show(me.node)+" is a margin of means", "margin", s.Margin)
+	}
 }
 
 // buildSurvival reads the hazard ratio, the control arm's survival and the
 // timing of recruitment and follow-up.
 func (r *reader) buildSurvival(s *Spec) {
-	pos := func(x float64) bool { return x > 0 && !math.IsInf(x, 0) }
 	hr, he, err := r.number("hazard_ratio")
 	ok := r.keep(err)
 	switch {
@@ -783,10 +814,10 @@ func (r *reader) buildSurvival(s *Spec) {
 		// Non-inferiority and equivalence: no true difference by default.
 		hr = 1
 	case he == nil:
-		r.missing("hazard_ratio", "", "the intervention arm's hazard over the control arm's, above 0")
+		r.missing("hazard_ratio", "", "the intervention arm's hazard over the control arm's, "+allowedRatio)
 		ok = false
-	case !pos(hr):
-		r.refuse(r.errAt(he, "%s is out of range; allowed: a number above 0", show(he.node)))
+	case !inRatio(hr):
+		r.refuse(r.rangeErr(he, hr, allowedRatio, inRatio))
 		ok = false
 	case hr == 1 && s.Solve != "effect" && s.Hypothesis == "superiority":
 		if !r.solveBad {
@@ -804,9 +835,9 @@ func (r *reader) buildSurvival(s *Spec) {
 		}
 	}
 
-	med, mede, medOK := r.optNum("control_median", 0, pos)
-	surv, surve, survOK := r.optNum("control_survival", 0, in01)
-	t, te, tOK := r.optNum("time", 0, pos)
+	med, mede, medOK := r.optNum("control_median", 0, inTime)
+	surv, surve, survOK := r.optNum("control_survival", 0, inRisk)
+	t, te, tOK := r.optNum("time", 0, inTime)
 	switch {
 	case mede != nil && (surve != nil || te != nil):
 		other := surve
@@ -823,19 +854,18 @@ func (r *reader) buildSurvival(s *Spec) {
 			s.ControlHazard, s.ControlSurvival, s.SurvivalTime = -math.Log(surv)/t, surv, t
 		}
 	case surve != nil:
-		r.missing("time", "control_survival is the survival at this time", "a time above 0")
+		r.missing("time", "control_survival is the survival at this time", allowedTime)
 	case te != nil:
-		r.missing("control_survival", "time goes with control_survival", "the control arm's survival at that time, a probability in (0, 1)")
+		r.missing("control_survival", "time goes with control_survival", "the control arm's survival at that time, "+allowedRisk)
 	default:
-		r.missing("control_median", "", "the control arm's median survival time, above 0 (or control_survival with time)")
+		r.missing("control_median", "", "the control arm's median survival time, "+allowedTime+" (or control_survival with time)")
 	}
-	atLeast0 := func(x float64) bool { return x >= 0 && !math.IsInf(x, 0) }
 	var accOK bool
-	s.Accrual, _, accOK = r.optNum("accrual", 0, atLeast0)
-	fu, fue, fuOK := r.optNum("follow_up", 0, atLeast0)
+	s.Accrual, _, accOK = r.optNum("accrual", 0, inTime0)
+	fu, fue, fuOK := r.optNum("follow_up", 0, inTime0)
 	switch {
 	case fue == nil:
-		r.missing("follow_up", "", "the follow-up after the last participant enters, a time of at least 0")
+		r.missing("follow_up", "", "the follow-up after the last participant enters, "+allowedTime0)
 	case fuOK && accOK && fu == 0 && s.Accrual == 0:
 		r.refuse(r.errAt(fue, "0 with no accrual period follows nobody; allowed: a follow-up above 0 (or an accrual period)"))
 	default:
