@@ -142,6 +142,7 @@ var specKeys = map[string]keyInfo{
 	"comparisons":          {kindText, "each-vs-control or all-pairs"},
 	"direction":            {kindText, "first-higher or first-lower"},
 	"margin_scale":         {kindText, "difference or ratio"},
+	"claimed":              {kindMap, "a map of what a protocol states, read by enough review: n, n_second or total, enrol_total, power, alpha, sides, method, events, clusters, tolerance_n, tolerance_power"},
 	"simulate":             {kindMap, "a map with replicates (100 to 1e9), seed (a whole number from 0 to 2^53) and optionally n (the first group's size to simulate at)"},
 }
 
@@ -170,7 +171,7 @@ func allKeys() []string {
 }
 
 // Shared keys of every design and goal.
-var commonKeys = []string{"version", "title", "design", "outcome", "solve", "method",
+var commonKeys = []string{"version", "title", "design", "outcome", "solve", "method", "claimed",
 	"attrition", "design_effect", "sources", "primary_outcome"}
 
 // comparisonKeys are shared by every two-group comparison.

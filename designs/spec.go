@@ -96,6 +96,9 @@ type Spec struct {
 	Cluster       *Cluster
 	// Simulate is the simulate block, or nil.
 	Simulate *SimulateSpec
+	// Claimed is what a protocol states (the claimed block), read by
+	// enough review; nil when absent.
+	Claimed *Claimed
 
 	// Continuous outcomes.
 	Pairing string // "", paired or crossover
@@ -325,13 +328,38 @@ func (r *reader) keep(err *SpecError) bool {
 // keys belong then is unknowable, so only keys no specification knows are
 // reported besides).
 func Parse(file string, data []byte, sets []string) (*Spec, error) {
+	root, err := readDoc(file, data)
+	if err != nil {
+		return nil, err
+	}
+	sum := sha256.Sum256(data)
+	r := newReader(file)
+	r.collect(root, file)
+	for _, s := range sets {
+		r.applySet(s)
+	}
+	spec := r.build()
+	r.dropSupplied()
+	if err := r.errs.result(sets); err != nil {
+		return nil, err
+	}
+	spec.File = file
+	spec.Overridden = r.overridden(spec.Sources)
+	spec.SHA256 = hex.EncodeToString(sum[:])
+	spec.Overrides = append([]string(nil), sets...)
+	return spec, nil
+}
+
+// readDoc checks the text of a specification and returns its top-level
+// map: problems of the text itself (too large, not UTF-8, empty, not YAML,
+// a second document, not a map) are reported here.
+func readDoc(file string, data []byte) (*yaml.Node, error) {
 	if len(data) > MaxSpecBytes {
 		return nil, &SpecError{File: file, Msg: fmt.Sprintf("file is larger than 1 MiB; allowed: at most 1 MiB (%d bytes)", MaxSpecBytes)}
 	}
 	if err := checkText(file, data); err != nil {
 		return nil, err
 	}
-	sum := sha256.Sum256(data)
 	if len(bytes.TrimSpace(data)) == 0 {
 		return nil, &SpecError{File: file, Msg: "file is empty; allowed: a YAML study specification (start from `enough new trial`)"}
 	}
@@ -364,21 +392,7 @@ func Parse(file string, data []byte, sets []string) (*Spec, error) {
 	if root.Kind != yaml.MappingNode {
 		return nil, &SpecError{File: file, Line: root.Line, Msg: "the top level must be a map of keys to values, such as `design: cohort`"}
 	}
-	r := newReader(file)
-	r.collect(root, file)
-	for _, s := range sets {
-		r.applySet(s)
-	}
-	spec := r.build()
-	r.dropSupplied()
-	if err := r.errs.result(sets); err != nil {
-		return nil, err
-	}
-	spec.File = file
-	spec.Overridden = r.overridden(spec.Sources)
-	spec.SHA256 = hex.EncodeToString(sum[:])
-	spec.Overrides = append([]string(nil), sets...)
-	return spec, nil
+	return root, nil
 }
 
 // secondDocument is the refusal of a file holding more than one YAML
@@ -512,10 +526,13 @@ func (r *reader) checkNested(head, sub string, e *entry) *SpecError {
 		if e.node.Kind != yaml.ScalarNode || e.node.Tag == "!!null" {
 			return r.errAt(e, "is not text; allowed: a line saying where the value came from (put quotes around text that contains \": \")")
 		}
-	case "simulate", "cluster":
+	case "simulate", "cluster", "claimed":
 		known := clusterKeys
-		if head == "simulate" {
+		switch head {
+		case "simulate":
 			known = simulateKeys
+		case "claimed":
+			known = claimedKeys
 		}
 		if _, ok := known[sub]; !ok {
 			names := make([]string, 0, len(known))

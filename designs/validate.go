@@ -15,6 +15,7 @@ var Designs = []string{"cohort", "case-control", "trial", "cross-sectional"}
 // build validates the collected keys into a Spec, recording every problem
 // in r.errs; the Spec is nil only when a problem stopped it early.
 func (r *reader) build() *Spec {
+	r.promoteClaimed()
 	s := &Spec{Sources: r.sourceMap()}
 
 	// version
@@ -81,6 +82,14 @@ func (r *reader) build() *Spec {
 		r.buildComparison(s)
 	}
 	r.checkSources()
+	if r.get("claimed") != nil {
+		c, errs := r.readClaimed()
+		for _, se := range errs {
+			r.refuse(se)
+		}
+		s.Claimed = &c
+		s.Ignored = append(s.Ignored, "claimed is read by enough review, which rechecks the figures a protocol states; plan does not use it")
+	}
 	s.Given = r.given()
 	return s
 }

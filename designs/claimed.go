@@ -1,0 +1,643 @@
+package designs
+
+import (
+	"fmt"
+	"math"
+	"slices"
+	"strconv"
+	"strings"
+
+	"gopkg.in/yaml.v3"
+)
+
+// This file reads what `enough review` needs of a specification: the
+// claimed block (what a protocol states), which reporting elements the
+// protocol stated, and the plan to recheck under the protocol's own
+// assumptions, with variants of it for the diagnosis and the sensitivity.
+
+// claimedKeys are the keys of the claimed block, with what each allows.
+var claimedKeys = map[string]string{
+	"n":               "the first group's analysable size the protocol states as needed (before inflation for loss), a whole number from 2 to 10⁹",
+	"n_second":        "the second group's analysable size the protocol states, a whole number from 1 to 10⁹",
+	"total":           "the analysable total the protocol states as needed (before inflation for loss), a whole number from 2 to 10⁹",
+	"enrol_total":     "the number the protocol will recruit, after inflation for loss, a whole number from 2 to 10⁹",
+	"power":           "the power the protocol states, a number above alpha and at most 1 − 1e-9",
+	"alpha":           "the alpha the protocol states, a number in [1e-20, 0.5]",
+	"sides":           "the sides of the test the protocol states, 1 or 2",
+	"method":          "the method the protocol names, a method of `enough methods` that serves the design",
+	"events":          "the events the protocol states as needed (time-to-event), a whole number from 1 to 10⁹",
+	"clusters":        "the clusters per arm the protocol states (cluster trials), a whole number from 1 to 10⁹",
+	"tolerance_n":     "the relative difference from the recomputed size still judged consistent, a number in (0, 1) (default 0.05)",
+	"tolerance_power": "the difference from the stated power still judged consistent, a number in (0, 1) (default 0.02)",
+}
+
+// Default tolerances of a recheck (issue 10).
+const (
+	DefaultToleranceN     = 0.05
+	DefaultTolerancePower = 0.02
+)
+
+// Claimed is the claimed block of a specification: what a protocol states.
+// A zero value means "not stated".
+type Claimed struct {
+	// N and NSecond are the analysable sizes of the two groups; Total the
+	// analysable total (in place of N).
+	N, NSecond, Total int
+	// EnrolTotal is the number the protocol will recruit, after inflation
+	// for loss.
+	EnrolTotal int
+	// Power, Alpha and Sides as stated (0 when not stated).
+	Power, Alpha float64
+	Sides        int
+	// Method is the method the protocol names ("" when none).
+	Method string
+	// Events (time-to-event) and Clusters (per arm, cluster trials).
+	Events, Clusters int
+	// ToleranceN and TolerancePower decide what counts as consistent.
+	ToleranceN, TolerancePower float64
+}
+
+// Reporting elements of a sample-size justification, by fixed id (issue
+// 10), in the order a report lists them.
+var ReportingElements = []string{
+	"primary_outcome", "reference_value", "effect", "effect_source", "alpha",
+	"sides", "power", "method", "allocation", "attrition", "design_effect",
+	"sample_size",
+}
+
+// Edit is one change to a specification made by a recheck: Key (dotted
+// for a nested key, cluster.icc) set to Value, YAML text, or removed when
+// Delete is set.
+type Edit struct {
+	Key    string
+	Value  string
+	Delete bool
+}
+
+// Set returns the edit that sets key to the YAML text of v.
+func Set(key string, v any) Edit {
+	switch x := v.(type) {
+	case float64:
+		return Edit{Key: key, Value: strconv.FormatFloat(x, 'g', -1, 64)}
+	case int:
+		return Edit{Key: key, Value: strconv.Itoa(x)}
+	case string:
+		return Edit{Key: key, Value: x}
+	}
+	return Edit{Key: key, Value: fmt.Sprint(v)}
+}
+
+// Delete returns the edit that removes key.
+func Delete(key string) Edit { return Edit{Key: key, Delete: true} }
+
+// Review modes: what the recheck can compute from what the protocol
+// stated.
+const (
+	// ReviewN: the effect, power and a size are stated: recompute n.
+	ReviewN = "n"
+	// ReviewPower: no power stated: the power the stated size gives.
+	ReviewPower = "power"
+	// ReviewEffect: no effect stated: the effect the stated size detects.
+	ReviewEffect = "effect"
+	// ReviewNone: no reference value (or no size and no effect): nothing
+	// can be recomputed.
+	ReviewNone = "none"
+)
+
+// ReviewInput is a specification read for `enough review`.
+type ReviewInput struct {
+	Claimed Claimed
+	// Given and Missing are the reporting elements the protocol stated
+	// and those it did not, in the order of ReportingElements; elements
+	// that do not apply to the design are in neither.
+	Given, Missing []string
+	// Assumed lists the conventions the recheck assumed for elements not
+	// stated ("alpha 0.05", "a two-sided test", "1:1 allocation").
+	Assumed []string
+	// Mode is what the recheck computes (ReviewN, ReviewPower,
+	// ReviewEffect or ReviewNone).
+	Mode string
+	// Spec is the plan to recheck, as the mode asks (solve n, power or
+	// effect); nil when Mode is ReviewNone.
+	Spec *Spec
+
+	file string
+	data []byte
+	sets []string
+	base []Edit
+}
+
+// ParseReview reads a specification for `enough review`: like Parse, with
+// a claimed block (required). Power, alpha, sides and method may be given
+// at the top level, in the claimed block or in both, where they must
+// agree. The plan to recheck solves n; or, when no power is stated, the
+// power at the stated size; or, when no effect is stated, the effect the
+// stated size detects at 80% power (see Variant for others). A missing
+// reference value leaves nothing to recompute (Mode ReviewNone), which is
+// not an error: the review reports it.
+func ParseReview(file string, data []byte, sets []string) (*ReviewInput, error) {
+	in := &ReviewInput{file: file, data: data, sets: sets}
+	r, err := readRaw(file, data, sets)
+	if err != nil {
+		return nil, err
+	}
+	if r.get("claimed") == nil {
+		e := r.entries["claimed"]
+		se := &SpecError{File: file, Key: "claimed", Msg: "missing; enough review rechecks what a protocol states; allowed: a claimed: block with the stated sizes (n, n_second or total, enrol_total), power, alpha and sides (start from `enough new trial --review`)"}
+		if e != nil {
+			se = r.errAt(e, "is empty; allowed: a map with the stated sizes (n, n_second or total, enrol_total), power, alpha and sides")
+		}
+		return nil, se
+	}
+	c, errs := r.readClaimed()
+	if len(errs) > 0 {
+		return nil, errs.result(sets)
+	}
+	in.Claimed = c
+	in.elements(r)
+	in.base = in.baseEdits(r)
+	if in.Mode == ReviewNone {
+		// Check the rest of the specification all the same: only the
+		// missing reference value is tolerated.
+		s, err := in.Variant()
+		if err == nil {
+			in.Spec = s
+			return in, nil
+		}
+		var kept SpecErrors
+		for _, se := range AllSpecErrors(err) {
+			if !strings.HasPrefix(se.Msg, "missing") && !strings.HasPrefix(se.Msg, "no effect given") {
+				kept = append(kept, se)
+			}
+		}
+		if len(kept) > 0 {
+			return nil, kept.result(sets)
+		}
+		return in, nil
+	}
+	s, err := in.Variant()
+	if err != nil {
+		return nil, err
+	}
+	in.Spec = s
+	return in, nil
+}
+
+// Variant parses the specification again with the recheck's own edits and
+// then edits, in order (later ones win), as the diagnosis and the
+// sensitivity analysis do.
+func (in *ReviewInput) Variant(edits ...Edit) (*Spec, error) {
+	r, err := readRaw(in.file, in.data, in.sets)
+	if err != nil {
+		return nil, err
+	}
+	for _, e := range append(slices.Clone(in.base), edits...) {
+		r.applyEdit(e)
+	}
+	spec := r.build()
+	r.dropSupplied()
+	if err := r.errs.result(in.sets); err != nil {
+		return nil, err
+	}
+	spec.File = in.file
+	spec.Overridden = r.overridden(spec.Sources)
+	spec.Overrides = append([]string(nil), in.sets...)
+	if spec.Claimed == nil {
+		spec.Claimed = &in.Claimed
+	}
+	return spec, nil
+}
+
+// Value returns the value as written of key (dotted for nested keys) in
+// the specification as the user gave it (file and --set), and whether it
+// is there.
+func (in *ReviewInput) Value(key string) (string, bool) {
+	r, err := readRaw(in.file, in.data, in.sets)
+	if err != nil {
+		return "", false
+	}
+	e := r.lookup(key)
+	if e == nil || e.node.Kind != yaml.ScalarNode {
+		return "", false
+	}
+	return e.node.Value, true
+}
+
+// readRaw reads the YAML of a specification and applies the overrides,
+// without validating the values.
+func readRaw(file string, data []byte, sets []string) (*reader, error) {
+	root, err := readDoc(file, data)
+	if err != nil {
+		return nil, err
+	}
+	r := newReader(file)
+	r.collect(root, file)
+	for _, s := range sets {
+		r.applySet(s)
+	}
+	if len(r.errs) > 0 {
+		return nil, r.errs.result(sets)
+	}
+	return r, nil
+}
+
+// lookup returns the entry of key, dotted for a nested key, or nil.
+func (r *reader) lookup(key string) *entry {
+	if head, sub, ok := strings.Cut(key, "."); ok {
+		return r.nested[head][sub]
+	}
+	return r.get(key)
+}
+
+// applyEdit applies one edit of a recheck to the raw specification.
+func (r *reader) applyEdit(ed Edit) {
+	head, sub, nested := strings.Cut(ed.Key, ".")
+	if ed.Delete {
+		if nested {
+			delete(r.nested[head], sub)
+			return
+		}
+		e := r.entries[ed.Key]
+		if e == nil {
+			return
+		}
+		delete(r.entries, ed.Key)
+		delete(r.nested, ed.Key)
+		r.order = slices.DeleteFunc(r.order, func(x *entry) bool { return x == e })
+		for i, x := range r.order {
+			x.keyPos = i
+		}
+		return
+	}
+	var doc yaml.Node
+	node := &yaml.Node{Kind: yaml.ScalarNode, Tag: "!!str", Value: ed.Value}
+	if err := yaml.Unmarshal([]byte(ed.Value), &doc); err == nil && len(doc.Content) > 0 {
+		node = doc.Content[0]
+	}
+	if nested {
+		if r.nested[head] == nil {
+			r.nested[head] = map[string]*entry{}
+			if _, ok := r.entries[head]; !ok {
+				e := &entry{key: head, node: &yaml.Node{Kind: yaml.MappingNode}, file: r.file, keyPos: len(r.order)}
+				r.order = append(r.order, e)
+				r.entries[head] = e
+			}
+		}
+		r.nested[head][sub] = &entry{key: ed.Key, node: node, file: r.file}
+		return
+	}
+	e := &entry{key: ed.Key, node: node, file: r.file}
+	if prev, ok := r.entries[ed.Key]; ok {
+		e.keyPos, e.line = prev.keyPos, prev.line
+		r.order[prev.keyPos] = e
+	} else {
+		e.keyPos = len(r.order)
+		r.order = append(r.order, e)
+	}
+	r.entries[ed.Key] = e
+	if specKeys[ed.Key].kind == kindMap {
+		r.collectNested(e)
+	}
+}
+
+// readClaimed reads and checks the claimed block, and that power, alpha,
+// sides and method agree where both it and the top level give them.
+func (r *reader) readClaimed() (Claimed, SpecErrors) {
+	c := Claimed{ToleranceN: DefaultToleranceN, TolerancePower: DefaultTolerancePower}
+	var errs SpecErrors
+	m := r.nested["claimed"]
+	num := func(sub string, whole bool, in func(float64) bool) (float64, bool) {
+		e := m[sub]
+		if e == nil {
+			return 0, false
+		}
+		var x float64
+		_, err := fmt.Sscan(strings.ReplaceAll(e.node.Value, "_", ""), &x)
+		switch {
+		case e.node.Kind != yaml.ScalarNode || (e.node.Tag != "!!int" && e.node.Tag != "!!float") || err != nil || math.IsNaN(x) || math.IsInf(x, 0):
+			what := "a number"
+			if whole {
+				what = "a whole number"
+			}
+			errs = append(errs, r.errAt(e, "%s is not %s; allowed: %s", show(e.node), what, claimedKeys[sub]))
+		case whole && x != math.Trunc(x):
+			errs = append(errs, r.errAt(e, "%s is not a whole number; allowed: %s", show(e.node), claimedKeys[sub]))
+		case !in(x):
+			errs = append(errs, r.errAt(e, "%s is out of range; allowed: %s", show(e.node), claimedKeys[sub]))
+		default:
+			return x, true
+		}
+		return 0, false
+	}
+	size := func(lo float64) func(float64) bool {
+		return func(x float64) bool { return x >= lo && x <= MaxSize }
+	}
+	for sub, lo := range map[string]float64{"n": 2, "n_second": 1, "total": 2, "enrol_total": 2, "events": 1, "clusters": 1} {
+		if x, ok := num(sub, true, size(lo)); ok {
+			v := int(x)
+			switch sub {
+			case "n":
+				c.N = v
+			case "n_second":
+				c.NSecond = v
+			case "total":
+				c.Total = v
+			case "enrol_total":
+				c.EnrolTotal = v
+			case "events":
+				c.Events = v
+			case "clusters":
+				c.Clusters = v
+			}
+		}
+	}
+	if x, ok := num("alpha", false, func(x float64) bool { return x >= 1e-20 && x <= 0.5 }); ok {
+		c.Alpha = x
+	}
+	if x, ok := num("power", false, func(x float64) bool { return x > 0 && x <= MaxPower }); ok {
+		c.Power = x
+	}
+	if x, ok := num("sides", true, func(x float64) bool { return x == 1 || x == 2 }); ok {
+		c.Sides = int(x)
+	}
+	if x, ok := num("tolerance_n", false, func(x float64) bool { return x > 0 && x < 1 }); ok {
+		c.ToleranceN = x
+	}
+	if x, ok := num("tolerance_power", false, func(x float64) bool { return x > 0 && x < 1 }); ok {
+		c.TolerancePower = x
+	}
+	if e := m["method"]; e != nil {
+		if e.node.Kind != yaml.ScalarNode || MethodByID(e.node.Value) == nil {
+			errs = append(errs, r.errAt(e, "%s is not a method; allowed: %s", show(e.node), claimedKeys["method"]))
+		} else {
+			c.Method = e.node.Value
+		}
+	}
+	if m["n"] != nil && m["total"] != nil {
+		errs = append(errs, r.errAt(m["total"], "given together with claimed.n; allowed: n (with n_second when the groups differ) or total"))
+	}
+	if m["n_second"] != nil && m["n"] == nil {
+		errs = append(errs, r.errAt(m["n_second"], "given without claimed.n; allowed: n_second together with n"))
+	}
+	// Stated twice: the two must agree.
+	for _, k := range []string{"power", "alpha", "sides", "method"} {
+		top, in := r.get(k), m[k]
+		if top == nil || in == nil || top.node.Kind != yaml.ScalarNode {
+			continue
+		}
+		same := top.node.Value == in.node.Value
+		if a, err1 := strconv.ParseFloat(top.node.Value, 64); err1 == nil {
+			if b, err2 := strconv.ParseFloat(in.node.Value, 64); err2 == nil {
+				same = a == b
+			}
+		}
+		if !same {
+			where := "line " + strconv.Itoa(top.line)
+			if top.file != r.file {
+				where = top.file
+			}
+			errs = append(errs, r.errAt(in, "%s disagrees with %s: %s (%s); allowed: the same value in both, or one of them", show(in.node), k, show(top.node), where))
+		}
+	}
+	return c, errs
+}
+
+// promoteClaimed gives power, alpha, sides and method stated only in the
+// claimed block to the plan, as if given at the top level (at the claimed
+// block's line, so that a problem with the value points there).
+func (r *reader) promoteClaimed() {
+	for _, k := range []string{"power", "alpha", "sides", "method"} {
+		e := r.nested["claimed"][k]
+		if e == nil || r.entries[k] != nil {
+			continue
+		}
+		r.add(&entry{key: k, node: e.node, file: e.file, line: e.line})
+	}
+}
+
+// elements decides which reporting elements the protocol stated, what the
+// recheck assumes and what it can compute (the mode).
+func (in *ReviewInput) elements(r *reader) {
+	val := func(k string) string {
+		if e := r.get(k); e != nil && e.node.Kind == yaml.ScalarNode {
+			return strings.TrimSpace(e.node.Value)
+		}
+		return ""
+	}
+	has := func(keys ...string) bool {
+		for _, k := range keys {
+			if r.lookup(k) != nil {
+				return true
+			}
+		}
+		return false
+	}
+	c := in.Claimed
+	design, outcome, goal := val("design"), val("outcome"), val("goal")
+	if outcome == "" {
+		outcome = "binary"
+	}
+	precision := design == "cross-sectional" && goal == "precision"
+	hyp := val("hypothesis")
+	ro := roles[design]
+
+	var reference, effects []string
+	switch {
+	case precision:
+		reference, effects = []string{"expected_prevalence"}, []string{"margin"}
+	case outcome == "continuous":
+		reference = []string{"sd", "sd_first", "sd_second", "sd_difference"}
+		effects = []string{"mean_difference", ro.means[0], ro.means[1]}
+	case outcome == "time-to-event":
+		reference, effects = []string{"control_median", "control_survival"}, []string{"hazard_ratio"}
+	default:
+		reference, effects = []string{ro.reference}, ro.effects
+	}
+	if hyp == "non-inferiority" || hyp == "equivalence" {
+		// The margin is the effect such trials are sized on; the true
+		// difference defaults to none.
+		effects = append(slices.Clone(effects), "margin")
+	}
+	stated := map[string]bool{
+		"primary_outcome": has("primary_outcome"),
+		"reference_value": has(reference...),
+		"effect":          has(effects...),
+		"alpha":           has("alpha") || c.Alpha > 0,
+		"sides":           has("sides") || c.Sides > 0,
+		"power":           has("power") || c.Power > 0,
+		"method":          has("method") || c.Method != "",
+		"allocation":      has("ratio", "n_second", "exposure_prevalence") || c.NSecond > 0,
+		"attrition":       has("attrition", "dropout"),
+		"sample_size":     c.N > 0 || c.Total > 0 || c.EnrolTotal > 0 || c.Events > 0,
+	}
+	for _, k := range effects {
+		if has("sources." + k) {
+			stated["effect_source"] = true
+		}
+	}
+	applies := map[string]bool{}
+	for _, id := range ReportingElements {
+		applies[id] = true
+	}
+	if precision {
+		applies["alpha"], applies["sides"], applies["power"], applies["allocation"] = false, false, false, false
+		stated["effect_source"] = has("sources.margin")
+	}
+	if val("pairing") == "paired" {
+		applies["allocation"] = false
+	}
+	// The design effect applies to clustered designs: a cluster block or
+	// design effect given, or clusters stated.
+	stated["design_effect"] = has("cluster", "design_effect")
+	applies["design_effect"] = stated["design_effect"] || c.Clusters > 0
+	for _, id := range ReportingElements {
+		switch {
+		case !applies[id]:
+		case stated[id]:
+			in.Given = append(in.Given, id)
+		default:
+			in.Missing = append(in.Missing, id)
+		}
+	}
+
+	if applies["alpha"] && !stated["alpha"] {
+		in.Assumed = append(in.Assumed, "alpha 0.05 (the usual convention)")
+	}
+	if applies["sides"] && !stated["sides"] {
+		in.Assumed = append(in.Assumed, "a two-sided test (the usual convention)")
+	}
+	if applies["allocation"] && !stated["allocation"] && design != "cross-sectional" {
+		in.Assumed = append(in.Assumed, "1:1 allocation (the usual convention)")
+	}
+	sized := c.N > 0 || c.Total > 0 || c.EnrolTotal > 0
+	switch {
+	case !stated["reference_value"]:
+		in.Mode = ReviewNone
+	case !stated["effect"] && (!sized || hyp == "non-inferiority" || hyp == "equivalence"):
+		in.Mode = ReviewNone
+	case !stated["effect"]:
+		in.Mode = ReviewEffect
+	case !stated["power"] && !precision && sized:
+		in.Mode = ReviewPower
+	default:
+		in.Mode = ReviewN
+	}
+}
+
+// baseEdits are the edits that turn the protocol's specification into the
+// plan to recheck: power, alpha, sides and method moved up from the claimed
+// block, the solve its mode asks for, and the stated sizes where a solve
+// needs them.
+func (in *ReviewInput) baseEdits(r *reader) []Edit {
+	c := in.Claimed
+	var out []Edit
+	r.promoteClaimed()
+	out = append(out, Delete("claimed"), Delete("simulate"))
+	switch in.Mode {
+	case ReviewPower:
+		out = append(out, Set("solve", "power"))
+		out = append(out, in.SizeEdits()...)
+	case ReviewEffect:
+		out = append(out, Set("solve", "effect"))
+		if c.Power == 0 && r.get("power") == nil {
+			out = append(out, Set("power", 0.8))
+		}
+		out = append(out, in.SizeEdits()...)
+		out = append(out, in.scaleEdit(r)...)
+	default:
+		out = append(out, Set("solve", "n"), Delete("n"), Delete("n_second"))
+		if !(r.get("design") != nil && r.get("design").node.Value == "cross-sectional" && r.get("goal") != nil && r.get("goal").node.Value == "precision") {
+			out = append(out, Delete("total"))
+		}
+		if c.Power == 0 && r.get("power") == nil {
+			// No power stated: the recomputed n at the usual 80%.
+			out = append(out, Set("power", 0.8))
+		}
+	}
+	return out
+}
+
+// SizeEdits returns the edits that put the stated analysable sizes into a
+// plan that solves power or effect: n and n_second (or total for a
+// survey) with no attrition, so that the analysable sizes are the stated
+// ones; or, when only the recruitment is stated, that enrolment with the
+// assumed attrition, split by the allocation.
+func (in *ReviewInput) SizeEdits() []Edit {
+	c := in.Claimed
+	rv := 1.0
+	if v, ok := in.Value("ratio"); ok {
+		if x, err := strconv.ParseFloat(v, 64); err == nil && x > 0 {
+			rv = x
+		}
+	}
+	survey := false
+	if v, ok := in.Value("design"); ok && v == "cross-sectional" {
+		survey = true
+	}
+	split := func(total int) (int, int) {
+		n1 := int(math.Round(float64(total) / (1 + rv)))
+		return max(n1, 2), max(total-n1, 1)
+	}
+	out := []Edit{Delete("n"), Delete("n_second"), Delete("total")}
+	_, survival := in.Value("dropout")
+	if v, ok := in.Value("outcome"); ok && v == "time-to-event" {
+		survival = true
+	}
+	noLoss := func() []Edit {
+		if survival {
+			return nil
+		}
+		return []Edit{Set("attrition", 0)}
+	}
+	switch {
+	case survey && (c.Total > 0 || c.N > 0):
+		t := c.Total
+		if t == 0 {
+			t = c.N + c.NSecond
+		}
+		out = append(out, Set("total", t))
+		out = append(out, noLoss()...)
+	case survey && c.EnrolTotal > 0:
+		out = append(out, Set("total", c.EnrolTotal))
+	case c.N > 0:
+		out = append(out, Set("n", c.N))
+		if c.NSecond > 0 {
+			out = append(out, Delete("ratio"), Set("n_second", c.NSecond))
+		}
+		out = append(out, noLoss()...)
+	case c.Total > 0:
+		n1, n2 := split(c.Total)
+		out = append(out, Set("n", n1), Delete("ratio"), Set("n_second", n2))
+		out = append(out, noLoss()...)
+	case c.EnrolTotal > 0:
+		n1, n2 := split(c.EnrolTotal)
+		out = append(out, Set("n", n1), Delete("ratio"), Set("n_second", n2))
+	}
+	return out
+}
+
+// scaleEdit names the scale of the detectable effect when the protocol
+// gave no effect: the design's first effect key at no difference.
+func (in *ReviewInput) scaleEdit(r *reader) []Edit {
+	if r.get("hypothesis") != nil && r.get("hypothesis").node.Value != "superiority" {
+		return nil
+	}
+	outcome := "binary"
+	if e := r.get("outcome"); e != nil {
+		outcome = e.node.Value
+	}
+	design := ""
+	if e := r.get("design"); e != nil {
+		design = e.node.Value
+	}
+	switch outcome {
+	case "continuous":
+		return []Edit{Delete(roles[design].means[0]), Delete(roles[design].means[1]), Set("mean_difference", 0)}
+	case "time-to-event":
+		return []Edit{Set("hazard_ratio", 1)}
+	}
+	if ro, ok := roles[design]; ok {
+		return []Edit{Set(ro.effects[0], 1)}
+	}
+	return nil
+}
