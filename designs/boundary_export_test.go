@@ -1,6 +1,9 @@
 package designs
 
-import "sort"
+import (
+	"slices"
+	"sort"
+)
 
 // BoundaryKey is a numeric key of the specification, dotted when nested
 // (cluster.icc), with what it allows as the messages say it: the
@@ -25,6 +28,12 @@ func BoundaryKeys() []BoundaryKey {
 	}
 	for k, allowed := range simulateKeys {
 		out = append(out, BoundaryKey{"simulate." + k, true, allowed})
+	}
+	for k, allowed := range claimedKeys {
+		if k != "method" {
+			whole := !slices.Contains([]string{"power", "alpha", "tolerance_n", "tolerance_power"}, k)
+			out = append(out, BoundaryKey{"claimed." + k, whole, allowed})
+		}
 	}
 	sort.Slice(out, func(i, j int) bool { return out[i].Name < out[j].Name })
 	return out

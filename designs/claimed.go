@@ -87,7 +87,8 @@ func Set(key string, v any) Edit {
 	return Edit{Key: key, Value: fmt.Sprint(v)}
 }
 
-// Delete returns the edit that removes key.
+// Delete returns the edit that removes key, with the sources that speak
+// of it (sources.KEY, and sources.KEY.SUB for a map such as cluster).
 func Delete(key string) Edit { return Edit{Key: key, Delete: true} }
 
 // Review modes: what the recheck can compute from what the protocol
@@ -151,6 +152,11 @@ func ParseReview(file string, data []byte, sets []string) (*ReviewInput, error) 
 	}
 	c, errs := r.readClaimed()
 	if len(errs) > 0 {
+		// Report every problem of the specification, the claimed block's
+		// among them, as plan would.
+		if _, err := Parse(file, data, sets); err != nil {
+			return nil, err
+		}
 		return nil, errs.result(sets)
 	}
 	in.Claimed = c
@@ -252,6 +258,15 @@ func (r *reader) lookup(key string) *entry {
 // applyEdit applies one edit of a recheck to the raw specification.
 func (r *reader) applyEdit(ed Edit) {
 	head, sub, nested := strings.Cut(ed.Key, ".")
+	if ed.Delete && head != "sources" {
+		// The sources of a removed key would name a key the
+		// specification no longer sets.
+		for k := range r.nested["sources"] {
+			if k == ed.Key || strings.HasPrefix(k, ed.Key+".") {
+				delete(r.nested["sources"], k)
+			}
+		}
+	}
 	if ed.Delete {
 		if nested {
 			delete(r.nested[head], sub)
@@ -314,6 +329,8 @@ func (r *reader) readClaimed() (Claimed, SpecErrors) {
 		var x float64
 		_, err := fmt.Sscan(strings.ReplaceAll(e.node.Value, "_", ""), &x)
 		switch {
+		case isPlaceholder(e.node):
+			errs = append(errs, r.errAt(e, "%s is a placeholder still to fill in with what the protocol states (or delete the line); allowed: %s", show(e.node), claimedKeys[sub]))
 		case e.node.Kind != yaml.ScalarNode || (e.node.Tag != "!!int" && e.node.Tag != "!!float") || err != nil || math.IsNaN(x) || math.IsInf(x, 0):
 			what := "a number"
 			if whole {
@@ -409,6 +426,12 @@ func (r *reader) promoteClaimed() {
 	for _, k := range []string{"power", "alpha", "sides", "method"} {
 		e := r.nested["claimed"][k]
 		if e == nil || r.entries[k] != nil {
+			continue
+		}
+		if n := e.node; n.Kind != yaml.ScalarNode || isPlaceholder(n) || (k != "method" && n.Tag != "!!int" && n.Tag != "!!float") || (k == "method" && MethodByID(n.Value) == nil) {
+			// The claimed block's own check reports the value; the key
+			// is not missing besides.
+			r.standsFor[k] = true
 			continue
 		}
 		r.add(&entry{key: k, node: e.node, file: e.file, line: e.line})
@@ -531,25 +554,32 @@ func (in *ReviewInput) elements(r *reader) {
 func (in *ReviewInput) baseEdits(r *reader) []Edit {
 	c := in.Claimed
 	var out []Edit
-	r.promoteClaimed()
+	for _, k := range []string{"power", "alpha", "sides", "method"} {
+		if e := r.nested["claimed"][k]; e != nil && r.get(k) == nil {
+			out = append(out, Set(k, e.node.Value))
+		}
+	}
 	out = append(out, Delete("claimed"), Delete("simulate"))
+	precision := r.get("design") != nil && r.get("design").node.Value == "cross-sectional" && r.get("goal") != nil && r.get("goal").node.Value == "precision"
+	// No power stated: the usual 80% (a precision survey has no power).
+	noPower := c.Power == 0 && r.get("power") == nil && !precision
 	switch in.Mode {
 	case ReviewPower:
 		out = append(out, Set("solve", "power"))
 		out = append(out, in.SizeEdits()...)
 	case ReviewEffect:
 		out = append(out, Set("solve", "effect"))
-		if c.Power == 0 && r.get("power") == nil {
+		if noPower {
 			out = append(out, Set("power", 0.8))
 		}
 		out = append(out, in.SizeEdits()...)
 		out = append(out, in.scaleEdit(r)...)
 	default:
 		out = append(out, Set("solve", "n"), Delete("n"), Delete("n_second"))
-		if !(r.get("design") != nil && r.get("design").node.Value == "cross-sectional" && r.get("goal") != nil && r.get("goal").node.Value == "precision") {
+		if !precision {
 			out = append(out, Delete("total"))
 		}
-		if c.Power == 0 && r.get("power") == nil {
+		if noPower {
 			// No power stated: the recomputed n at the usual 80%.
 			out = append(out, Set("power", 0.8))
 		}
@@ -560,35 +590,14 @@ func (in *ReviewInput) baseEdits(r *reader) []Edit {
 // SizeEdits returns the edits that put the stated analysable sizes into a
 // plan that solves power or effect: n and n_second (or total for a
 // survey) with no attrition, so that the analysable sizes are the stated
-// ones; or, when only the recruitment is stated, that enrolment with the
-// assumed attrition, split by the allocation.
+// ones (a cluster trial with attrition enrols ⌈n / (1 − attrition)⌉, since
+// its clusters are filled by the enrolment); or, when only the
+// recruitment is stated, that enrolment with the assumed attrition, split
+// by the allocation (EnrolmentEdits).
 func (in *ReviewInput) SizeEdits() []Edit {
 	c := in.Claimed
-	rv := 1.0
-	if v, ok := in.Value("ratio"); ok {
-		if x, err := strconv.ParseFloat(v, 64); err == nil && x > 0 {
-			rv = x
-		}
-	}
-	survey := false
-	if v, ok := in.Value("design"); ok && v == "cross-sectional" {
-		survey = true
-	}
-	split := func(total int) (int, int) {
-		n1 := int(math.Round(float64(total) / (1 + rv)))
-		return max(n1, 2), max(total-n1, 1)
-	}
+	survey := in.survey()
 	out := []Edit{Delete("n"), Delete("n_second"), Delete("total")}
-	_, survival := in.Value("dropout")
-	if v, ok := in.Value("outcome"); ok && v == "time-to-event" {
-		survival = true
-	}
-	noLoss := func() []Edit {
-		if survival {
-			return nil
-		}
-		return []Edit{Set("attrition", 0)}
-	}
 	switch {
 	case survey && (c.Total > 0 || c.N > 0):
 		t := c.Total
@@ -596,24 +605,110 @@ func (in *ReviewInput) SizeEdits() []Edit {
 			t = c.N + c.NSecond
 		}
 		out = append(out, Set("total", t))
-		out = append(out, noLoss()...)
-	case survey && c.EnrolTotal > 0:
-		out = append(out, Set("total", c.EnrolTotal))
+		out = append(out, in.noLoss()...)
+	case c.N > 0 && in.clusterLoss() > 0:
+		// Clusters are filled by the enrolment, and attrition loses
+		// participants, not clusters: the stated analysable sizes are
+		// enrolled as ⌈n / (1 − attrition)⌉, which leaves at least n.
+		a := in.clusterLoss()
+		up := func(n int) int { return int(math.Ceil(float64(n)/(1-a) - 1e-9)) }
+		out = append(out, Set("n", up(c.N)))
+		if c.NSecond > 0 {
+			out = append(out, Delete("ratio"), Set("n_second", up(c.NSecond)))
+		}
 	case c.N > 0:
 		out = append(out, Set("n", c.N))
 		if c.NSecond > 0 {
 			out = append(out, Delete("ratio"), Set("n_second", c.NSecond))
 		}
-		out = append(out, noLoss()...)
+		out = append(out, in.noLoss()...)
 	case c.Total > 0:
-		n1, n2 := split(c.Total)
-		out = append(out, Set("n", n1), Delete("ratio"), Set("n_second", n2))
-		out = append(out, noLoss()...)
+		out = append(out, in.SplitEdits(c.Total)...)
+		out = append(out, in.noLoss()...)
 	case c.EnrolTotal > 0:
-		n1, n2 := split(c.EnrolTotal)
-		out = append(out, Set("n", n1), Delete("ratio"), Set("n_second", n2))
+		return in.EnrolmentEdits(c.EnrolTotal)
 	}
 	return out
+}
+
+// EnrolmentEdits returns the edits that put an enrolment into a plan that
+// solves power or effect, with the assumed attrition kept: the plan's
+// analysable sizes are then ⌊enrolment × (1 − attrition)⌋ per group, the
+// enrolment split by the allocation (SplitEdits).
+func (in *ReviewInput) EnrolmentEdits(enrol int) []Edit {
+	out := []Edit{Delete("n"), Delete("n_second"), Delete("total")}
+	if in.survey() {
+		return append(out, Set("total", enrol))
+	}
+	return append(out, in.SplitEdits(enrol)...)
+}
+
+// SplitEdits returns the edits that split a total over the groups by the
+// allocation: the first group round(total / (1 + ratio)) and the second
+// the rest (with several arms, each intervention arm
+// round(total / (arms − 1 + ratio)) and the control arm the rest; every
+// pair of arms compared: total / arms each); a paired design counts pairs;
+// a survey takes the total as it is.
+func (in *ReviewInput) SplitEdits(total int) []Edit {
+	if in.survey() {
+		return []Edit{Set("total", total)}
+	}
+	if v, _ := in.Value("pairing"); v == "paired" {
+		return []Edit{Set("n", total)}
+	}
+	num := func(key string, def float64) float64 {
+		if v, ok := in.Value(key); ok {
+			if x, err := strconv.ParseFloat(v, 64); err == nil && x > 0 {
+				return x
+			}
+		}
+		return def
+	}
+	rv, arms := num("ratio", 1), int(num("arms", 2))
+	if cmp, _ := in.Value("comparisons"); cmp == "all-pairs" && arms > 2 {
+		return []Edit{Set("n", max(int(math.Round(float64(total)/float64(arms))), 2))}
+	}
+	others := float64(max(arms-1, 1))
+	n1 := max(int(math.Round(float64(total)/(others+rv))), 2)
+	n2 := max(total-int(others)*n1, 1)
+	return []Edit{Set("n", n1), Delete("ratio"), Set("n_second", n2)}
+}
+
+// clusterLoss is the attrition of a cluster trial (0 for other designs,
+// or when not given).
+func (in *ReviewInput) clusterLoss() float64 {
+	if _, ok := in.Value("cluster.size"); !ok {
+		return 0
+	}
+	v, ok := in.Value("attrition")
+	if !ok {
+		return 0
+	}
+	a, err := strconv.ParseFloat(v, 64)
+	if err != nil || a <= 0 || a >= 1 {
+		return 0
+	}
+	return a
+}
+
+// survey tells whether the specification is a cross-sectional survey,
+// whose size is a total.
+func (in *ReviewInput) survey() bool {
+	v, ok := in.Value("design")
+	return ok && v == "cross-sectional"
+}
+
+// noLoss is the edit that makes the stated sizes the analysable ones: no
+// attrition (a time-to-event plan has dropout in place of attrition, which
+// acts on the events, not on the sizes).
+func (in *ReviewInput) noLoss() []Edit {
+	if _, ok := in.Value("dropout"); ok {
+		return nil
+	}
+	if v, ok := in.Value("outcome"); ok && v == "time-to-event" {
+		return nil
+	}
+	return []Edit{Set("attrition", 0)}
 }
 
 // scaleEdit names the scale of the detectable effect when the protocol

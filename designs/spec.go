@@ -779,6 +779,9 @@ func (r *reader) number(key string) (v float64, e *entry, err *SpecError) {
 		if n.Kind == yaml.ScalarNode && percentLike.MatchString(n.Value) {
 			return 0, e, r.errAt(e, "%s", r.percentMsg(key, n))
 		}
+		if isPlaceholder(n) {
+			return 0, e, r.errAt(e, "%s is a placeholder still to fill in; allowed: %s", show(n), specKeys[key].allowed)
+		}
 		return 0, e, r.errAt(e, "%s is not a number; allowed: %s%s", show(n), specKeys[key].allowed, ratioHint(key, n))
 	}
 	f, perr := strconv.ParseFloat(strings.ReplaceAll(n.Value, "_", ""), 64)
@@ -791,6 +794,13 @@ func (r *reader) number(key string) (v float64, e *entry, err *SpecError) {
 		return 0, e, r.errAt(e, "%s is not a finite number; allowed: %s", show(n), specKeys[key].allowed)
 	}
 	return f, e, nil
+}
+
+// isPlaceholder reports whether a value is a starter's placeholder,
+// "[…]", not yet filled in.
+func isPlaceholder(n *yaml.Node) bool {
+	v := strings.TrimSpace(n.Value)
+	return n.Kind == yaml.ScalarNode && strings.HasPrefix(v, "[") && strings.HasSuffix(v, "]")
 }
 
 var colonRatio = regexp.MustCompile(`^\s*([0-9]+(?:\.[0-9]+)?)\s*:\s*([0-9]+(?:\.[0-9]+)?)\s*$`)

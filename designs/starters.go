@@ -4,6 +4,8 @@ import (
 	"embed"
 	"fmt"
 	"slices"
+	"strconv"
+	"strings"
 )
 
 //go:embed starters/*.yaml
@@ -15,8 +17,19 @@ var starters embed.FS
 // a trial or a cross-sectional comparison; "time-to-event" for a trial).
 // The errors name what was given and what is allowed, for `enough new`.
 func Starter(design, goal, outcome string) ([]byte, error) {
+	name, err := starterName(design, goal, outcome)
+	if err != nil {
+		return nil, err
+	}
+	return starters.ReadFile("starters/" + name + ".yaml")
+}
+
+// starterName returns the name of the starter for a design, goal and
+// outcome: the design, "precision", or the design and the outcome
+// ("trial-time-to-event").
+func starterName(design, goal, outcome string) (string, error) {
 	if !slices.Contains(Designs, design) {
-		return nil, fmt.Errorf("%q is not a design; allowed: %s", design, orList(Designs))
+		return "", fmt.Errorf("%q is not a design; allowed: %s", design, orList(Designs))
 	}
 	name := design
 	switch {
@@ -24,25 +37,25 @@ func Starter(design, goal, outcome string) ([]byte, error) {
 	case goal == "precision" && design == "cross-sectional":
 		name = "precision"
 	case goal == "precision":
-		return nil, fmt.Errorf("--goal precision applies to design cross-sectional only (design %s always compares two groups); allowed: comparison, or leave --goal out", design)
+		return "", fmt.Errorf("--goal precision applies to design cross-sectional only (design %s always compares two groups); allowed: comparison, or leave --goal out", design)
 	default:
-		return nil, fmt.Errorf("--goal %q is not a goal; allowed: comparison or precision (cross-sectional only)", goal)
+		return "", fmt.Errorf("--goal %q is not a goal; allowed: comparison or precision (cross-sectional only)", goal)
 	}
 	switch outcome {
 	case "", "binary":
 	case "continuous", "time-to-event":
 		switch {
 		case name == "precision":
-			return nil, fmt.Errorf("--outcome %s does not apply to a precision survey, which estimates one prevalence; allowed: binary", outcome)
+			return "", fmt.Errorf("--outcome %s does not apply to a precision survey, which estimates one prevalence; allowed: binary", outcome)
 		case outcome == "continuous" && design != "case-control", outcome == "time-to-event" && design == "trial":
 			name += "-" + outcome
 		default:
-			return nil, fmt.Errorf("--outcome %s does not apply to design %s; allowed: %s", outcome, design, starterOutcomes(name))
+			return "", fmt.Errorf("--outcome %s does not apply to design %s; allowed: %s", outcome, design, starterOutcomes(name))
 		}
 	default:
-		return nil, fmt.Errorf("--outcome %q is not an outcome; allowed: %s", outcome, starterOutcomes(name))
+		return "", fmt.Errorf("--outcome %q is not an outcome; allowed: %s", outcome, starterOutcomes(name))
 	}
-	return starters.ReadFile("starters/" + name + ".yaml")
+	return name, nil
 }
 
 // starterOutcomes lists the outcomes that have a starter for a design (or
@@ -57,4 +70,165 @@ func starterOutcomes(design string) string {
 		return "binary (a case-control study compares exposure between cases and controls)"
 	}
 	return "binary or continuous"
+}
+
+// ReviewStarter returns a commented starter for `enough review`: the
+// starter of the design with a claimed block for what the protocol states
+// and a placeholder "[as stated, e.g. …]" in place of every value the
+// reviewer copies from the protocol. It does not parse until the
+// placeholders are filled in, on purpose: a review of example values would
+// be a review of nobody's protocol. The errors are those of Starter.
+func ReviewStarter(design, goal, outcome string) ([]byte, error) {
+	name, err := starterName(design, goal, outcome)
+	if err != nil {
+		return nil, err
+	}
+	data, err := starters.ReadFile("starters/" + name + ".yaml")
+	if err != nil {
+		return nil, err
+	}
+	var out []string
+	header := true
+	for _, line := range strings.Split(strings.TrimRight(string(data), "\n"), "\n") {
+		if header {
+			switch {
+			case strings.HasPrefix(line, "# Starter specification: "):
+				out = append(out, "# Review starter: "+strings.TrimPrefix(line, "# Starter specification: "))
+				continue
+			case strings.HasPrefix(line, "# Replace every value"):
+				out = append(out, reviewHeader(name)...)
+				continue
+			case strings.HasPrefix(line, "#"):
+				out = append(out, line)
+				continue
+			}
+			header = false
+		}
+		key, rest, _ := strings.Cut(line, ":")
+		switch {
+		case key == "solve":
+			// The claimed block comes first, then the assumptions.
+			out = append(out, "")
+			out = append(out, claimedBlock(name, starterValue(data, "method"))...)
+			out = append(out, "", "# The protocol's assumptions, as it states them.")
+		case key == "alpha" || key == "sides" || key == "power" || key == "method":
+			// Stated in the claimed block.
+		case strings.HasPrefix(line, "# n:") || strings.HasPrefix(line, "# total:"):
+			// The stated sizes go in the claimed block.
+		case key == "title":
+			out = append(out, `title: "[the protocol's short title]"`)
+		case strings.HasPrefix(line, "  ") && !strings.HasPrefix(line, "  #"):
+			// A source: what the protocol cites.
+			out = append(out, key+`: "[`+strings.TrimSpace(rest)+`, as the protocol cites it]"`)
+		case key != "version" && !strings.HasPrefix(line, "#") && isStarterNumber(rest):
+			out = append(out, placeholder(key, rest))
+		default:
+			out = append(out, line)
+		}
+	}
+	return []byte(strings.Join(out, "\n") + "\n"), nil
+}
+
+// reviewHeader says how to fill in a review starter.
+func reviewHeader(name string) []string {
+	lines := []string{
+		"# For `enough review`, which rechecks the sample size a protocol states.",
+		`# Replace each "[…]", brackets and quotes included, with what the protocol`,
+		`# states: 0.25, not "0.25" or 25%: proportions, power and alpha are`,
+		"# fractions (0.8 for 80%). Delete the line of anything the protocol does",
+		"# not state: the review lists it as missing,",
+	}
+	if name == "precision" {
+		return append(lines[:len(lines)-1], "# not state: the review lists it as missing.")
+	}
+	return append(lines,
+		"# and assumes the usual convention where there is one (alpha 0.05, a",
+		"# two-sided test, 1:1 allocation).")
+}
+
+// starterColumn is the column of the comments in a review starter.
+const starterColumn = 40
+
+// commented writes line with comment at starterColumn.
+func commented(line, comment string) string {
+	return line + strings.Repeat(" ", max(1, starterColumn-len([]rune(line)))) + "# " + comment
+}
+
+// claimedBlock is the claimed block of a review starter for the starter
+// named name (see starterName); method is the starter's method, shown as an
+// example.
+func claimedBlock(name, method string) []string {
+	lines := []string{
+		"# What the protocol states in its sample-size section. The sizes are",
+		"# analysable numbers, before any allowance for loss; enrol_total is the",
+		"# number it will recruit after that allowance.",
+		"claimed:",
+	}
+	first, second := "needed in the intervention arm", "needed in the control arm, when the arms differ"
+	switch {
+	case name == "case-control":
+		first, second = "cases needed", "controls needed, when their number differs"
+	case strings.HasPrefix(name, "cohort"):
+		first, second = "exposed participants needed", "unexposed participants needed, when their number differs"
+	}
+	if strings.HasPrefix(name, "cross-sectional") || name == "precision" {
+		lines = append(lines,
+			commented(`  total: "[as stated, e.g. 900]"`, "the respondents needed"),
+			commented(`  enrol_total: "[as stated, e.g. 1000]"`, "the number to survey, after allowing for non-response"))
+	} else {
+		lines = append(lines,
+			commented(`  n: "[as stated, e.g. 250]"`, first),
+			commented(`  # n_second: "[as stated, e.g. 500]"`, second),
+			commented(`  # total: "[as stated, e.g. 500]"`, "or the total alone, in place of n and n_second"),
+			commented(`  enrol_total: "[as stated, e.g. 560]"`, "the number it will recruit, after allowing for loss"))
+	}
+	if name == "trial-time-to-event" {
+		lines = append(lines, commented(`  events: "[as stated, e.g. 380]"`, "the events the protocol says are needed"))
+	}
+	if name != "precision" {
+		lines = append(lines,
+			`  power: "[as stated, e.g. 0.8]"`,
+			`  alpha: "[as stated, e.g. 0.05]"`,
+			commented(`  sides: "[as stated, e.g. 2]"`, "1 or 2"))
+	}
+	if method != "" {
+		lines = append(lines, commented("  # method: "+method, "only when the protocol names its method (see `enough methods`)"))
+	}
+	if strings.HasPrefix(name, "trial") && name != "trial-time-to-event" {
+		lines = append(lines, commented(`  # clusters: "[as stated, e.g. 12]"`, "cluster trials: the clusters per arm"))
+	}
+	return append(lines,
+		commented("  # tolerance_n: 0.05", "a stated size within 5% of the recomputed one is consistent"),
+		commented("  # tolerance_power: 0.02", "so is one whose power is within 2 points of the stated power"))
+}
+
+// starterValue returns the value a starter gives a top-level key ("" when
+// it gives none).
+func starterValue(data []byte, key string) string {
+	for _, line := range strings.Split(string(data), "\n") {
+		if k, rest, ok := strings.Cut(line, ":"); ok && k == key {
+			v, _, _ := strings.Cut(rest, "#")
+			return strings.TrimSpace(v)
+		}
+	}
+	return ""
+}
+
+// isStarterNumber reports whether the value part of a starter's line (after
+// the colon) is a number.
+func isStarterNumber(rest string) bool {
+	v, _, _ := strings.Cut(rest, "#")
+	_, err := strconv.ParseFloat(strings.TrimSpace(v), 64)
+	return err == nil
+}
+
+// placeholder writes a starter's line with its value replaced by "[as
+// stated, e.g. VALUE]", its comment kept.
+func placeholder(key, rest string) string {
+	v, comment, hasComment := strings.Cut(rest, "#")
+	line := key + `: "[as stated, e.g. ` + strings.TrimSpace(v) + `]"`
+	if !hasComment {
+		return line
+	}
+	return commented(line, strings.TrimSpace(comment))
 }

@@ -12,6 +12,7 @@ import (
 
 	"enough/designs"
 	"enough/designs/report"
+	"enough/designs/review"
 	"enough/examples"
 )
 
@@ -58,6 +59,36 @@ func TestJSONFieldsDocumented(t *testing.T) {
 			}
 			collectKeys(v, "", name, keys)
 		}
+	}
+	// The review's JSON: every example protocol as written, and every
+	// example as a protocol stating a size of 200 (or a total of 600 for a
+	// survey), with no power, and with a power that other examples state.
+	reviews := 0
+	for _, name := range names {
+		data, _ := examples.Files.ReadFile(name)
+		for _, sets := range [][]string{nil, {"claimed.n=200"}, {"claimed.total=600"}, {"claimed.n=200", "claimed.enrol_total=500", "power=0.9"}} {
+			in, err := designs.ParseReview(name, data, sets)
+			if err != nil {
+				continue
+			}
+			rep, err := review.Run(in)
+			if err != nil {
+				continue
+			}
+			var b bytes.Buffer
+			if err := report.WriteReview(&b, rep, in, report.ReviewSource{File: name, Data: data, Sets: sets}, "json"); err != nil {
+				t.Fatal(err)
+			}
+			var v any
+			if err := json.Unmarshal(b.Bytes(), &v); err != nil {
+				t.Fatalf("%s %v: %v", name, sets, err)
+			}
+			collectKeys(v, "", name+" reviewed", keys)
+			reviews++
+		}
+	}
+	if reviews < 20 {
+		t.Fatalf("only %d reviews", reviews)
 	}
 	if len(keys) < 60 {
 		t.Fatalf("only %d keys seen", len(keys))

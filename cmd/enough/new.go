@@ -15,6 +15,7 @@ const newDesigns = "cohort, case-control, trial or cross-sectional"
 // NewCmdNew builds `enough new DESIGN`.
 func NewCmdNew(streams *IO) *cobra.Command {
 	var goal, outcome string
+	var forReview bool
 	cmd := &cobra.Command{
 		Use:   "new DESIGN",
 		Short: "Print a commented starter specification for a design",
@@ -33,8 +34,13 @@ plans as it stands. The starters are:
   enough new cross-sectional --goal precision        estimate one prevalence
 
 --outcome continuous applies to cohort, trial and cross-sectional;
---outcome time-to-event to trial; --goal precision to cross-sectional.`,
-		Example: "  enough new trial > my-trial.yaml\n  enough new cohort --outcome continuous > my-cohort.yaml",
+--outcome time-to-event to trial; --goal precision to cross-sectional.
+
+With --review, any of these becomes a starter for enough review: a claimed:
+block for the figures the protocol states, and a placeholder "[as stated,
+e.g. …]" for every value to copy from the protocol. It is refused until the
+placeholders are filled in.`,
+		Example: "  enough new trial > my-trial.yaml\n  enough new cohort --outcome continuous > my-cohort.yaml\n  enough new trial --review > protocol.yaml",
 		Args: func(_ *cobra.Command, args []string) error {
 			switch {
 			case len(args) == 0:
@@ -46,7 +52,11 @@ plans as it stands. The starters are:
 		},
 		ValidArgs: designs.Designs,
 		RunE: func(cmd *cobra.Command, args []string) error {
-			data, err := designs.Starter(args[0], goal, outcome)
+			starter := designs.Starter
+			if forReview {
+				starter = designs.ReviewStarter
+			}
+			data, err := starter(args[0], goal, outcome)
 			if err != nil {
 				return &inputError{msg: "new: " + err.Error()}
 			}
@@ -56,5 +66,6 @@ plans as it stands. The starters are:
 	}
 	cmd.Flags().StringVar(&goal, "goal", "", "comparison (default) or precision (cross-sectional only: estimate one prevalence)")
 	cmd.Flags().StringVar(&outcome, "outcome", "", "binary (default); continuous (cohort, trial, cross-sectional); time-to-event (trial)")
+	switchFlag(cmd, &forReview, "review", "", "a starter for enough review: a claimed: block for what the protocol states, and placeholders for its assumptions")
 	return cmd
 }

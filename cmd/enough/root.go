@@ -18,9 +18,8 @@ import (
 
 // Exit statuses of enough: one table, documented in README.md ("Exit
 // status") and in the root command's help, which every command follows.
-// Statuses 3 to 6 are reserved for commands still to come (a review of a
-// protocol's stated size and a sweep); no command returns them yet, and no
-// command may give them another meaning.
+// Statuses 3 to 5 are the verdicts of `enough review`; 6 is reserved for a
+// sweep still to come. No command may give them another meaning.
 const (
 	ExitOK              = 0   // success
 	ExitFailure         = 1   // a failure that is not the input's: I/O, an internal error, a plan that cannot be computed
@@ -48,7 +47,8 @@ const exitTable = `Exit status:
        replicates done, marked partial
   143  terminated (SIGTERM); a simulation's output holds the replicates
        done, marked partial
-Statuses 3 to 6 are reserved for the review and sweep commands to come.`
+Statuses 3 to 5 are the verdicts of enough review; 6 is reserved for the
+sweep command to come.`
 
 // IO holds the streams of a command.
 type IO struct {
@@ -70,7 +70,7 @@ func (e *inputError) Error() string {
 }
 
 // commands names the documented commands, for the message on an unknown one.
-var commands = []string{"plan", "simulate", "new", "methods"}
+var commands = []string{"plan", "simulate", "review", "new", "methods"}
 
 // NewRootCmd builds the root command with all verbs.
 func NewRootCmd(streams *IO) *cobra.Command {
@@ -94,7 +94,7 @@ Errors are written to standard error, one line each ("enough: ..."); with
 	root.SetOut(streams.Out)
 	root.SetErr(streams.ErrOut)
 	root.SetFlagErrorFunc(flagProblem)
-	root.AddCommand(NewCmdPlan(streams, nil), NewCmdSimulate(streams), NewCmdNew(streams), NewCmdMethods(streams))
+	root.AddCommand(NewCmdPlan(streams, nil), NewCmdSimulate(streams), NewCmdReview(streams, nil), NewCmdNew(streams), NewCmdMethods(streams))
 	return root
 }
 
@@ -115,6 +115,11 @@ func Execute(args []string, streams *IO) (code int) {
 	err := root.Execute()
 	if err == nil {
 		return ExitOK
+	}
+	var verdict *verdictStatus
+	if errors.As(err, &verdict) {
+		// A review's verdict: the review is written, nothing to report.
+		return verdict.code
 	}
 	err = unknownCommand(root, err)
 	printError(streams.ErrOut, err, wantsJSON(root, args))
@@ -217,8 +222,11 @@ func exitCode(err error) int {
 		ie *inputError
 		fe *flagError
 		de *designs.InputError
+		vs *verdictStatus
 	)
 	switch {
+	case errors.As(err, &vs):
+		return vs.code
 	case errors.Is(err, errInterrupted):
 		return ExitInterrupted
 	case errors.Is(err, errTerminated):

@@ -152,6 +152,6 @@ func outputIsInput(output, spec string, stdin io.Reader) error {
 		return nil
 	}
 	return &flagError{flag: "--output " + output,
-		msg:     "is " + what + ": the plan would replace it",
+		msg:     "is " + what + ": the output would replace it",
 		allowed: "another file name"}
 }

@@ -143,18 +143,7 @@ func provenance(r *designs.Result, key string) string {
 // build turns a result into the document shared by Markdown and text.
 func build(r *designs.Result) *document {
 	d := &document{title: r.Title}
-	what := map[string]string{"cohort": "cohort study", "case-control": "unmatched case-control study",
-		"trial": "parallel-group randomised trial", "cross-sectional": "cross-sectional survey"}[r.Design]
-	switch {
-	case r.Spec.Pairing == "crossover":
-		what = "two-period crossover trial"
-	case r.Spec.Pairing == "paired" && r.Design == "trial":
-		what = "paired randomised trial"
-	case r.Spec.Pairing == "paired":
-		what = "paired (before-after or matched) study"
-	case r.Spec.Cluster != nil:
-		what = "cluster-randomised trial"
-	}
+	what := studyKind(r)
 	solved := map[string]string{"n": "sample size", "power": "power", "effect": "smallest detectable effect"}[r.Solve]
 	if r.Goal == "precision" && r.Solve == "effect" {
 		solved = "achievable precision"
@@ -193,6 +182,26 @@ func build(r *designs.Result) *document {
 	}
 	return d
 }
+
+// studyKind names the kind of study planned: "parallel-group randomised
+// trial", "cluster-randomised trial", "cohort study".
+func studyKind(r *designs.Result) string {
+	switch {
+	case r.Spec.Pairing == "crossover":
+		return "two-period crossover trial"
+	case r.Spec.Pairing == "paired" && r.Design == "trial":
+		return "paired randomised trial"
+	case r.Spec.Pairing == "paired":
+		return "paired (before-after or matched) study"
+	case r.Spec.Cluster != nil:
+		return "cluster-randomised trial"
+	}
+	return designKinds[r.Design]
+}
+
+// designKinds names each design as a kind of study.
+var designKinds = map[string]string{"cohort": "cohort study", "case-control": "unmatched case-control study",
+	"trial": "parallel-group randomised trial", "cross-sectional": "cross-sectional survey"}
 
 // sentences returns warnings or notes as full sentences: a capital first
 // and a full stop last. The messages are written so already; this keeps a

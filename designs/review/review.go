@@ -28,6 +28,9 @@ type Report struct {
 	// be recomputed (no reference value).
 	Plan *designs.Result `json:"-"`
 
+	// Mode is what the recheck could compute (designs.ReviewN, ReviewPower,
+	// ReviewEffect or ReviewNone): a required size only in mode n.
+	Mode    string `json:"mode"`
 	Verdict string `json:"verdict"`
 	// Sentence is the verdict in one plain sentence with the figures
 	// behind it.
@@ -40,14 +43,19 @@ type Report struct {
 	// Figures judges each stated figure against its recomputed value.
 	Figures []Figure `json:"figures"`
 	// ClaimedPowerActual is the power the stated analysable sizes give
-	// under the protocol's assumptions (nil when it cannot be computed).
+	// under the protocol's assumptions (or the stated enrolment after the
+	// assumed attrition when only that is stated, or the stated events
+	// when only those are; nil when it cannot be computed).
 	ClaimedPowerActual *float64 `json:"claimed_power_actual"`
 	// DetectableEffect is the smallest effect the stated sizes detect at
 	// the stated power (or at 80% and 90% when no power is stated).
 	DetectableEffect []Detectable `json:"detectable_effect"`
 	// Methods is the recomputed n by every applicable method, the named
 	// (or default) one first.
-	Methods   []MethodN   `json:"methods"`
+	Methods []MethodN `json:"methods"`
+	// Diagnosis lists the slips that reproduce an inconsistent stated
+	// figure: the single slips, best first, then the pairs tried for the
+	// figures no single slip reproduces (Slips in slips.go).
 	Diagnosis []Diagnosis `json:"diagnosis"`
 	// DiagnosisNote says what the diagnosis found when it lists nothing
 	// ("the stated figures hold: no diagnosis", "no common slip, alone or
@@ -92,8 +100,14 @@ type Figure struct {
 	Stated int    `json:"stated"`
 	// Recomputed is the figure the recheck gives.
 	Recomputed int `json:"recomputed"`
-	// Difference is (stated − recomputed) / recomputed.
+	// Difference is (stated − recomputed) / recomputed; for enrol_total,
+	// (Analysable − recomputed analysable total) / recomputed analysable
+	// total, since an enrolment is judged by what it yields.
 	Difference float64 `json:"difference"`
+	// Analysable is, for enrol_total only, the analysable total the stated
+	// enrolment yields after the assumed attrition: ⌊enrolment × (1 −
+	// attrition)⌋ per group, the enrolment split by the allocation.
+	Analysable *int `json:"analysable,omitempty"`
 	// Power is the power the stated figure gives (nil when not computed).
 	Power *float64 `json:"power"`
 	// Judgement is "consistent", "too small" or "too large".
@@ -102,7 +116,9 @@ type Figure struct {
 	Why string `json:"why"`
 }
 
-// Detectable is the smallest effect detectable at a power.
+// Detectable is the smallest effect detectable at a power. For a
+// precision survey it is the margin the stated size achieves: Scale
+// "margin", Power 0, the margin in Upper.
 type Detectable struct {
 	Power float64 `json:"power"`
 	// Scale is the effect key the effect is stated on.
@@ -133,7 +149,8 @@ type Diagnosis struct {
 	Reproduces int `json:"reproduces"`
 	// Distance is |reproduced − stated| / stated.
 	Distance float64 `json:"distance"`
-	// Tied lists the other slips that yield the same figure.
+	// Tied lists the other entries that yield the same figure (a pair
+	// written "a + b"); each of them has its entry in the diagnosis too.
 	Tied        []string `json:"tied,omitempty"`
 	Explanation string   `json:"explanation"`
 }
@@ -150,9 +167,13 @@ type Sensitivity struct {
 	To   float64 `json:"to"`
 	// N is the first group's analysable size required; Total the total
 	// analysable (nil when the plan fails, with Error saying why).
-	N     *int   `json:"n"`
-	Total *int   `json:"total"`
-	Error string `json:"error,omitempty"`
+	// Entries are sorted by EnrolTotal, then Total, largest first.
+	N     *int `json:"n"`
+	Total *int `json:"total"`
+	// EnrolTotal is the enrolment required, after inflation for loss
+	// (the attrition moves this figure only).
+	EnrolTotal *int   `json:"enrol_total"`
+	Error      string `json:"error,omitempty"`
 }
 
 // Reporting lists the reporting elements given and missing, with the
