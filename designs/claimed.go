@@ -301,18 +301,7 @@ func (r *reader) applyEdit(ed Edit) {
 		r.nested[head][sub] = &entry{key: ed.Key, node: node, file: r.file}
 		return
 	}
-	e := &entry{key: ed.Key, node: node, file: r.file}
-	if prev, ok := r.entries[ed.Key]; ok {
-		e.keyPos, e.line = prev.keyPos, prev.line
-		r.order[prev.keyPos] = e
-	} else {
-		e.keyPos = len(r.order)
-		r.order = append(r.order, e)
-	}
-	r.entries[ed.Key] = e
-	if specKeys[ed.Key].kind == kindMap {
-		r.collectNested(e)
-	}
+	r.place(&entry{key: ed.Key, node: node, file: r.file})
 }
 
 // readClaimed reads and checks the claimed block, and that power, alpha,

@@ -455,18 +455,9 @@ func (r *reader) add(e *entry) {
 	if e.set {
 		r.noteSet(e.key, r.entries[e.key])
 	}
-	if prev, ok := r.entries[e.key]; ok {
-		// A --set override replaces the value in place.
-		e.keyPos = prev.keyPos
-		r.order[prev.keyPos] = e
-	} else {
-		e.keyPos = len(r.order)
-		r.order = append(r.order, e)
-	}
-	r.entries[e.key] = e
+	old := r.nested[e.key]
+	r.place(e)
 	if specKeys[e.key].kind == kindMap {
-		old := r.nested[e.key]
-		r.collectNested(e)
 		if e.set && e.key != "sources" {
 			// A whole map set on the command line overrides each of its
 			// keys, and those the file gave.
@@ -486,6 +477,26 @@ func (r *reader) add(e *entry) {
 				r.noteSet(e.key+"."+k, old[k])
 			}
 		}
+	}
+}
+
+// place puts e in the specification: in place of the key's entry, where
+// there is one (an override), else after the others; a map's keys are
+// read.
+func (r *reader) place(e *entry) {
+	if prev, ok := r.entries[e.key]; ok {
+		e.keyPos = prev.keyPos
+		if e.line == 0 && e.file == prev.file {
+			e.line = prev.line
+		}
+		r.order[prev.keyPos] = e
+	} else {
+		e.keyPos = len(r.order)
+		r.order = append(r.order, e)
+	}
+	r.entries[e.key] = e
+	if specKeys[e.key].kind == kindMap {
+		r.collectNested(e)
 	}
 }
 
