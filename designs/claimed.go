@@ -31,6 +31,9 @@ var claimedKeys = map[string]string{
 	"tolerance_power": "the difference from the stated power still judged consistent, a number in (0, 1) (default 0.02)",
 }
 
+// claimedIgnored is what plan says of the claimed block.
+const claimedIgnored = "claimed is read by enough review, which rechecks the figures a protocol states; plan does not use it"
+
 // Default tolerances of a recheck (issue 10).
 const (
 	DefaultToleranceN     = 0.05
@@ -126,6 +129,37 @@ type ReviewInput struct {
 	data []byte
 	sets []string
 	base []Edit
+	// unstated holds the conventions the recheck must assume (alpha,
+	// sides, allocation); hypothesis is the protocol's.
+	unstated   map[string]bool
+	hypothesis string
+}
+
+// assume words the conventions the recheck assumed, from the plan to
+// recheck (nil: the defaults of the hypothesis).
+func (in *ReviewInput) assume(s *Spec) {
+	ni := in.hypothesis == "non-inferiority" || in.hypothesis == "equivalence"
+	alpha, sides := 0.05, 2
+	if ni {
+		alpha, sides = 0.025, 1
+	}
+	if s != nil {
+		alpha, sides = s.Alpha, s.Sides
+	}
+	why := "(the usual convention)"
+	if ni {
+		why = "(the usual convention for " + in.hypothesis + ")"
+	}
+	if in.unstated["alpha"] {
+		in.Assumed = append(in.Assumed, fmt.Sprintf("alpha %s %s", strconv.FormatFloat(alpha, 'g', -1, 64), why))
+	}
+	if in.unstated["sides"] {
+		word := map[int]string{1: "a one-sided test", 2: "a two-sided test"}[sides]
+		in.Assumed = append(in.Assumed, word+" "+why)
+	}
+	if in.unstated["allocation"] {
+		in.Assumed = append(in.Assumed, "1:1 allocation (the usual convention)")
+	}
 }
 
 // ParseReview reads a specification for `enough review`: like Parse, with
@@ -166,6 +200,7 @@ func ParseReview(file string, data []byte, sets []string) (*ReviewInput, error) 
 		// Check the rest of the specification all the same: only the
 		// missing reference value is tolerated.
 		s, err := in.Variant()
+		in.assume(s)
 		if err == nil {
 			in.Spec = s
 			return in, nil
@@ -186,6 +221,7 @@ func ParseReview(file string, data []byte, sets []string) (*ReviewInput, error) 
 		return nil, err
 	}
 	in.Spec = s
+	in.assume(s)
 	return in, nil
 }
 
@@ -197,8 +233,16 @@ func (in *ReviewInput) Variant(edits ...Edit) (*Spec, error) {
 	if err != nil {
 		return nil, err
 	}
-	for _, e := range append(slices.Clone(in.base), edits...) {
+	all := append(slices.Clone(in.base), edits...)
+	for _, e := range all {
 		r.applyEdit(e)
+	}
+	// The claimed block lends the plan only the power, alpha, sides and
+	// method the edits leave alone; its other figures were read already.
+	for k := range claimedKeys {
+		if !slices.Contains([]string{"power", "alpha", "sides", "method"}, k) || slices.ContainsFunc(all, func(e Edit) bool { return e.Key == k }) {
+			r.applyEdit(Delete("claimed." + k))
+		}
 	}
 	spec := r.build()
 	r.dropSupplied()
@@ -208,9 +252,8 @@ func (in *ReviewInput) Variant(edits ...Edit) (*Spec, error) {
 	spec.File = in.file
 	spec.Overridden = r.overridden(spec.Sources)
 	spec.Overrides = append([]string(nil), in.sets...)
-	if spec.Claimed == nil {
-		spec.Claimed = &in.Claimed
-	}
+	spec.Ignored = slices.DeleteFunc(spec.Ignored, func(s string) bool { return s == claimedIgnored })
+	spec.Claimed = &in.Claimed
 	return spec, nil
 }
 
@@ -242,6 +285,10 @@ func readRaw(file string, data []byte, sets []string) (*reader, error) {
 		r.applySet(s)
 	}
 	if len(r.errs) > 0 {
+		// Report every problem of the specification, as plan would.
+		if _, err := Parse(file, data, sets); err != nil {
+			return nil, err
+		}
 		return nil, r.errs.result(sets)
 	}
 	return r, nil
@@ -329,7 +376,11 @@ func (r *reader) readClaimed() (Claimed, SpecErrors) {
 		case whole && x != math.Trunc(x):
 			errs = append(errs, r.errAt(e, "%s is not a whole number; allowed: %s", show(e.node), claimedKeys[sub]))
 		case !in(x):
-			errs = append(errs, r.errAt(e, "%s is out of range; allowed: %s", show(e.node), claimedKeys[sub]))
+			hint := ""
+			if !whole && x > 1 && x <= 100 && in(x/100) {
+				hint = fmt.Sprintf("; did you mean %s?", fmtFraction(x/100))
+			}
+			errs = append(errs, r.errAt(e, "%s is out of range; allowed: %s%s", show(e.node), claimedKeys[sub], hint))
 		default:
 			return x, true
 		}
@@ -385,6 +436,17 @@ func (r *reader) readClaimed() (Claimed, SpecErrors) {
 	if m["n_second"] != nil && m["n"] == nil {
 		errs = append(errs, r.errAt(m["n_second"], "given without claimed.n; allowed: n_second together with n"))
 	}
+	// Figures that only some designs have.
+	if e := m["events"]; e != nil && c.Events > 0 {
+		if o := r.get("outcome"); o == nil || strings.TrimSpace(o.node.Value) != "time-to-event" {
+			errs = append(errs, r.errAt(e, "%s does not apply: events are stated for a time-to-event outcome; allowed: leave events out", show(e.node)))
+			c.Events = 0
+		}
+	}
+	if e := m["clusters"]; e != nil && c.Clusters > 0 && r.get("cluster") == nil {
+		errs = append(errs, r.errAt(e, "%s cannot be judged without the cluster block; allowed: add cluster: with the size and icc the protocol assumes (leave clusters out when the protocol does not say them)", show(e.node)))
+		c.Clusters = 0
+	}
 	// Stated twice: the two must agree.
 	for _, k := range []string{"power", "alpha", "sides", "method"} {
 		top, in := r.get(k), m[k]
@@ -411,19 +473,19 @@ func (r *reader) readClaimed() (Claimed, SpecErrors) {
 // promoteClaimed gives power, alpha, sides and method stated only in the
 // claimed block to the plan, as if given at the top level (at the claimed
 // block's line, so that a problem with the value points there).
-func (r *reader) promoteClaimed() {
+// bad holds the keys whose claimed value was refused: they are not taken,
+// and not reported missing besides.
+func (r *reader) promoteClaimed(bad map[string]bool) {
 	for _, k := range []string{"power", "alpha", "sides", "method"} {
 		e := r.nested["claimed"][k]
 		if e == nil || r.entries[k] != nil {
 			continue
 		}
-		if n := e.node; n.Kind != yaml.ScalarNode || isPlaceholder(n) || (k != "method" && n.Tag != "!!int" && n.Tag != "!!float") || (k == "method" && MethodByID(n.Value) == nil) {
-			// The claimed block's own check reports the value; the key
-			// is not missing besides.
+		if bad[k] {
 			r.standsFor[k] = true
 			continue
 		}
-		r.add(&entry{key: k, node: e.node, file: e.file, line: e.line})
+		r.add(&entry{key: k, node: e.node, file: e.file, line: e.line, alias: "claimed." + k})
 	}
 }
 
@@ -480,7 +542,7 @@ func (in *ReviewInput) elements(r *reader) {
 		"method":          has("method") || c.Method != "",
 		"allocation":      has("ratio", "n_second", "exposure_prevalence") || c.NSecond > 0,
 		"attrition":       has("attrition", "dropout"),
-		"sample_size":     c.N > 0 || c.Total > 0 || c.EnrolTotal > 0 || c.Events > 0,
+		"sample_size":     c.N > 0 || c.Total > 0 || c.EnrolTotal > 0 || c.Events > 0 || c.Clusters > 0,
 	}
 	for _, k := range effects {
 		if has("sources." + k) {
@@ -498,6 +560,10 @@ func (in *ReviewInput) elements(r *reader) {
 	if val("pairing") == "paired" {
 		applies["allocation"] = false
 	}
+	if hyp == "equivalence" {
+		// Two one-sided tests, each at alpha: there is no side to state.
+		applies["sides"] = false
+	}
 	// The design effect applies to clustered designs: a cluster block or
 	// design effect given, or clusters stated.
 	stated["design_effect"] = has("cluster", "design_effect")
@@ -512,16 +578,12 @@ func (in *ReviewInput) elements(r *reader) {
 		}
 	}
 
-	if applies["alpha"] && !stated["alpha"] {
-		in.Assumed = append(in.Assumed, "alpha 0.05 (the usual convention)")
+	in.unstated = map[string]bool{}
+	for _, id := range []string{"alpha", "sides", "allocation"} {
+		in.unstated[id] = applies[id] && !stated[id] && !(id == "allocation" && design == "cross-sectional")
 	}
-	if applies["sides"] && !stated["sides"] {
-		in.Assumed = append(in.Assumed, "a two-sided test (the usual convention)")
-	}
-	if applies["allocation"] && !stated["allocation"] && design != "cross-sectional" {
-		in.Assumed = append(in.Assumed, "1:1 allocation (the usual convention)")
-	}
-	sized := c.N > 0 || c.Total > 0 || c.EnrolTotal > 0
+	in.hypothesis = hyp
+	sized := c.N > 0 || c.Total > 0 || c.EnrolTotal > 0 || (c.Clusters > 0 && has("cluster"))
 	switch {
 	case !stated["reference_value"]:
 		in.Mode = ReviewNone
@@ -543,12 +605,9 @@ func (in *ReviewInput) elements(r *reader) {
 func (in *ReviewInput) baseEdits(r *reader) []Edit {
 	c := in.Claimed
 	var out []Edit
-	for _, k := range []string{"power", "alpha", "sides", "method"} {
-		if e := r.nested["claimed"][k]; e != nil && r.get(k) == nil {
-			out = append(out, Set(k, e.node.Value))
-		}
-	}
-	out = append(out, Delete("claimed"), Delete("simulate"))
+	// The claimed block stays: the plan takes power, alpha, sides and
+	// method from it (a problem then names claimed.KEY and its line).
+	out = append(out, Delete("simulate"))
 	precision := r.get("design") != nil && r.get("design").node.Value == "cross-sectional" && r.get("goal") != nil && r.get("goal").node.Value == "precision"
 	// No power stated: the usual 80% (a precision survey has no power).
 	noPower := c.Power == 0 && r.get("power") == nil && !precision
@@ -565,6 +624,10 @@ func (in *ReviewInput) baseEdits(r *reader) []Edit {
 		out = append(out, in.scaleEdit(r)...)
 	default:
 		out = append(out, Set("solve", "n"), Delete("n"), Delete("n_second"))
+		if c.N > 0 && c.NSecond > 0 && r.get("ratio") == nil && !precision {
+			// The stated sizes give the allocation.
+			out = append(out, Set("ratio", impliedRatio(c.N, c.NSecond)))
+		}
 		if !precision {
 			out = append(out, Delete("total"))
 		}
@@ -616,8 +679,36 @@ func (in *ReviewInput) SizeEdits() []Edit {
 		out = append(out, in.noLoss()...)
 	case c.EnrolTotal > 0:
 		return in.EnrolmentEdits(c.EnrolTotal)
+	case c.Clusters > 0:
+		// Only the clusters per arm: each arm enrols its clusters full.
+		if v, ok := in.Value("cluster.size"); ok {
+			if m, err := strconv.ParseFloat(v, 64); err == nil && m > 0 {
+				n := int(math.Round(float64(c.Clusters) * m))
+				out = append(out, Set("n", n), Delete("ratio"), Set("n_second", n))
+			}
+		}
 	}
 	return out
+}
+
+// impliedRatio is the allocation the stated sizes imply, n_second / n,
+// taken as the nearest simple ratio a/b (a, b up to 10) when it lies within
+// 2% of one (sizes rounded up separately rarely give the ratio exactly).
+func impliedRatio(n, nSecond int) float64 {
+	x := float64(nSecond) / float64(n)
+	best, gap := x, math.Inf(1)
+	for a := 1; a <= 10; a++ {
+		for b := 1; b <= 10; b++ {
+			q := float64(a) / float64(b)
+			if g := math.Abs(q-x) / x; g < gap {
+				best, gap = q, g
+			}
+		}
+	}
+	if gap <= 0.02 {
+		return best
+	}
+	return x
 }
 
 // EnrolmentEdits returns the edits that put an enrolment into a plan that

@@ -80,6 +80,11 @@ func TestParseReviewErrors(t *testing.T) {
 		{"unknown method", reviewBase + "power: 0.8\nclaimed:\n  n: 300\n  method: magic\n", "claimed.method", "not a method"},
 		{"tolerance out of range", reviewBase + "power: 0.8\nclaimed:\n  n: 300\n  tolerance_n: 5\n", "claimed.tolerance_n", "out of range"},
 		{"bad value elsewhere", reviewBase + "power: 0.8\nratio: 0\nclaimed:\n  n: 300\n", "ratio", "out of range"},
+		{"power as a percentage", reviewBase + "claimed:\n  n: 300\n  power: 80\n", "claimed.power", "did you mean 0.8?"},
+		{"events of a binary outcome", reviewBase + "power: 0.8\nclaimed:\n  n: 300\n  events: 100\n", "claimed.events", "does not apply"},
+		{"clusters without the cluster block", reviewBase + "power: 0.8\nclaimed:\n  n: 300\n  clusters: 10\n", "claimed.clusters", "without the cluster block"},
+		{"claimed power below alpha", reviewBase + "claimed:\n  n: 300\n  power: 0.03\n", "claimed.power", "not above alpha"},
+		{"claimed power in a survey", "version: 1\ndesign: cross-sectional\ngoal: precision\nexpected_prevalence: 0.3\nmargin: 0.05\nclaimed:\n  total: 300\n  power: 0.8\n", "claimed.power", "does not apply"},
 	} {
 		_, err := ParseReview("p.yaml", []byte(c.spec), nil)
 		errs := AllSpecErrors(err)
@@ -90,6 +95,42 @@ func TestParseReviewErrors(t *testing.T) {
 		if !found {
 			t.Errorf("%s: err = %v; want key %q with %q", c.name, err, c.key, c.msg)
 		}
+	}
+}
+
+// TestParseReviewAssumed: the conventions assumed follow the hypothesis,
+// and the allocation follows the stated sizes.
+func TestParseReviewAssumed(t *testing.T) {
+	ni := "version: 1\ndesign: trial\nhypothesis: non-inferiority\nhigher_is_better: true\ncontrol_risk: 0.85\nmargin: 0.1\nclaimed:\n  n: 268\n  power: 0.9\n"
+	in, err := ParseReview("p.yaml", []byte(ni), nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(in.Assumed) < 2 || !strings.HasPrefix(in.Assumed[0], "alpha 0.025") || !strings.HasPrefix(in.Assumed[1], "a one-sided test") {
+		t.Errorf("non-inferiority assumed %q; want alpha 0.025 and a one-sided test (the plan's defaults)", in.Assumed)
+	}
+	eq := "version: 1\ndesign: trial\nhypothesis: equivalence\ncontrol_risk: 0.85\nmargin: 0.1\nclaimed:\n  n: 268\n  power: 0.9\n"
+	if in, err = ParseReview("p.yaml", []byte(eq), nil); err != nil {
+		t.Fatal(err)
+	}
+	if slices.Contains(in.Missing, "sides") || slices.ContainsFunc(in.Assumed, func(a string) bool { return strings.Contains(a, "sided") }) {
+		t.Errorf("equivalence: sides do not apply; missing %q, assumed %q", in.Missing, in.Assumed)
+	}
+	// 339 and 677 stated, no ratio: the allocation 1:2 the sizes imply.
+	un := "version: 1\ndesign: trial\ncontrol_risk: 0.1\nintervention_risk: 0.05\nclaimed:\n  n: 339\n  n_second: 677\n  power: 0.8\n"
+	if in, err = ParseReview("p.yaml", []byte(un), nil); err != nil {
+		t.Fatal(err)
+	}
+	if in.Spec.Ratio != 2 || slices.ContainsFunc(in.Assumed, func(a string) bool { return strings.Contains(a, "1:1") }) {
+		t.Errorf("ratio %g, assumed %q; want 2 and no 1:1 assumed", in.Spec.Ratio, in.Assumed)
+	}
+	// Only the clusters per arm: the plan at the stated clusters, full.
+	cl := "version: 1\ndesign: trial\ncontrol_risk: 0.3\nrisk_ratio: 0.7\ncluster:\n  size: 30\n  icc: 0.08\nclaimed:\n  clusters: 12\n"
+	if in, err = ParseReview("p.yaml", []byte(cl), nil); err != nil {
+		t.Fatal(err)
+	}
+	if in.Mode != ReviewPower || in.Spec.N != 360 || in.Spec.NSecond != 360 || slices.Contains(in.Missing, "sample_size") {
+		t.Errorf("clusters only: mode %s, n %d and %d, missing %q", in.Mode, in.Spec.N, in.Spec.NSecond, in.Missing)
 	}
 }
 

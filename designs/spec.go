@@ -188,6 +188,9 @@ type entry struct {
 	line   int
 	keyPos int  // order in the document
 	set    bool // from a --set override
+	// alias is the key a problem names when it differs from key: a value
+	// of the claimed block taken as the plan's (claimed.power for power).
+	alias string
 }
 
 type reader struct {
@@ -244,7 +247,11 @@ func newReader(file string) *reader {
 }
 
 func (r *reader) errAt(e *entry, format string, args ...any) *SpecError {
-	return &SpecError{File: e.file, Line: e.line, Key: e.key, Msg: fmt.Sprintf(format, args...)}
+	key := e.key
+	if e.alias != "" {
+		key = e.alias
+	}
+	return &SpecError{File: e.file, Line: e.line, Key: key, Msg: fmt.Sprintf(format, args...)}
 }
 
 func (r *reader) errFile(key, format string, args ...any) *SpecError {
@@ -265,6 +272,10 @@ func (r *reader) refuse(err *SpecError) {
 	if err != nil {
 		r.errs = append(r.errs, err)
 		r.refused[err.Key] = true
+		if k, ok := strings.CutPrefix(err.Key, "claimed."); ok {
+			// A claimed value taken as the plan's: the plan's key too.
+			r.refused[k] = true
+		}
 	}
 }
 

@@ -115,6 +115,12 @@ func ReviewStarter(design, goal, outcome string) ([]byte, error) {
 			// Stated in the claimed block.
 		case strings.HasPrefix(line, "# n:") || strings.HasPrefix(line, "# total:"):
 			// The stated sizes go in the claimed block.
+		case key == "design_effect":
+			// Given, even as 1, it marks the design effect as stated: it
+			// is offered commented out, for the designs it serves.
+			out = append(out, designEffectLines(name)...)
+		case strings.HasPrefix(line, "# cluster:"):
+			out = append(out, clusterLines()...)
 		case key == "title":
 			out = append(out, `title: "[the protocol's short title]"`)
 		case strings.HasPrefix(line, "  ") && !strings.HasPrefix(line, "  #"):
@@ -127,6 +133,40 @@ func ReviewStarter(design, goal, outcome string) ([]byte, error) {
 		}
 	}
 	return []byte(strings.Join(out, "\n") + "\n"), nil
+}
+
+// designEffectLines offer the design effect in a review starter, commented
+// out: stating one (even 1) marks the element design_effect as given, which
+// only a clustered or complex design has. A trial is offered the cluster
+// block beside it.
+func designEffectLines(name string) []string {
+	if strings.HasPrefix(name, "trial") {
+		return append([]string{
+			"# Only for a cluster trial that states a design effect alone, without",
+			"# the cluster block below; leave it out for an individually randomised",
+			"# trial.",
+			commented(`# design_effect: "[as stated, e.g. 1.5]"`, "at least 1"),
+		}, clusterLines()...)
+	}
+	return []string{
+		"# Only for a clustered or complex design (cluster sampling): the design",
+		"# effect the protocol applies; leave it out for a simple random sample.",
+		commented(`# design_effect: "[as stated, e.g. 1.5]"`, "at least 1"),
+	}
+}
+
+// clusterLines offer the cluster block of a cluster trial in a review
+// starter, commented out, beside claimed.clusters: the mean cluster size
+// and the intracluster correlation the protocol assumes.
+func clusterLines() []string {
+	return []string{
+		"# A cluster trial: the mean cluster size and the intracluster correlation",
+		"# (ICC) the protocol assumes; the clusters it states per arm go in",
+		"# claimed.clusters.",
+		"# cluster:",
+		commented(`#   size: "[as stated, e.g. 20]"`, "mean participants per cluster, at least 2"),
+		commented(`#   icc: "[as stated, e.g. 0.05]"`, "in [0, 1)"),
+	}
 }
 
 // reviewHeader says how to fill in a review starter.
@@ -195,11 +235,14 @@ func claimedBlock(name, method string) []string {
 		lines = append(lines, commented("  # method: "+method, "only when the protocol names its method (see `enough methods`)"))
 	}
 	if strings.HasPrefix(name, "trial") && name != "trial-time-to-event" {
-		lines = append(lines, commented(`  # clusters: "[as stated, e.g. 12]"`, "cluster trials: the clusters per arm"))
+		lines = append(lines, commented(`  # clusters: "[as stated, e.g. 12]"`, "cluster trials: the clusters per arm (with the cluster block below)"))
 	}
-	return append(lines,
-		commented("  # tolerance_n: 0.05", "a stated size within 5% of the recomputed one is consistent"),
-		commented("  # tolerance_power: 0.02", "so is one whose power is within 2 points of the stated power"))
+	lines = append(lines, commented("  # tolerance_n: 0.05", "a stated size within 5% of the recomputed one is consistent"))
+	if name == "precision" {
+		// A survey has no power to be within.
+		return lines
+	}
+	return append(lines, commented("  # tolerance_power: 0.02", "so is one whose power is within 2 points of the stated power"))
 }
 
 // starterValue returns the value a starter gives a top-level key ("" when

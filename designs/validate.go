@@ -15,8 +15,20 @@ var Designs = []string{"cohort", "case-control", "trial", "cross-sectional"}
 // build validates the collected keys into a Spec, recording every problem
 // in r.errs; the Spec is nil only when a problem stopped it early.
 func (r *reader) build() *Spec {
-	r.promoteClaimed()
-	s := &Spec{Sources: r.sourceMap()}
+	var claimed *Claimed
+	if r.get("claimed") != nil {
+		// The claimed block first: its power, alpha, sides and method
+		// serve the plan where the top level does not give them.
+		c, errs := r.readClaimed()
+		bad := map[string]bool{}
+		for _, se := range errs {
+			r.refuse(se)
+			bad[strings.TrimPrefix(se.Key, "claimed.")] = true
+		}
+		claimed = &c
+		r.promoteClaimed(bad)
+	}
+	s := &Spec{Sources: r.sourceMap(), Claimed: claimed}
 
 	// version
 	v, ve, err := r.whole("version")
@@ -82,13 +94,8 @@ func (r *reader) build() *Spec {
 		r.buildComparison(s)
 	}
 	r.checkSources()
-	if r.get("claimed") != nil {
-		c, errs := r.readClaimed()
-		for _, se := range errs {
-			r.refuse(se)
-		}
-		s.Claimed = &c
-		s.Ignored = append(s.Ignored, "claimed is read by enough review, which rechecks the figures a protocol states; plan does not use it")
+	if claimed != nil {
+		s.Ignored = append(s.Ignored, claimedIgnored)
 	}
 	s.Given = r.given()
 	return s

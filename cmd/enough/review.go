@@ -62,7 +62,7 @@ specification from standard input.`,
   enough review protocol.yaml
   enough review protocol.yaml -f json -o review.json
   enough review protocol.yaml --set claimed.n=300`,
-		Args: specArgs("review", true),
+		Args: reviewArgs,
 		RunE: func(cmd *cobra.Command, args []string) error {
 			opts.Spec = args[0]
 			if runF != nil {
@@ -75,6 +75,16 @@ specification from standard input.`,
 	outputFlag(cmd, &opts.Output)
 	cmd.Flags().StringArrayVar(&opts.Sets, "set", nil, "override one key, key=value (repeatable; dotted keys such as claimed.n reach nested keys)")
 	return cmd
+}
+
+// reviewArgs checks the arguments of enough review: exactly one
+// specification. Without one, it points to the review starter, from which
+// a reviewer writes the specification of the protocol to recheck.
+func reviewArgs(cmd *cobra.Command, args []string) error {
+	if len(args) == 0 {
+		return &inputError{msg: "review: needs a specification file; allowed: enough review SPEC.yaml, or - to read it from standard input (enough new trial --review prints a starter to fill in with what the protocol states; other designs: enough new DESIGN --review)"}
+	}
+	return specArgs("review", true)(cmd, args)
 }
 
 // reviewRun reads the specification, runs the recheck, writes the review

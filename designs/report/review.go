@@ -7,7 +7,6 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
-	"math"
 	"slices"
 	"strconv"
 	"strings"
@@ -310,8 +309,14 @@ func figureLabel(r *designs.Result, name string) string {
 	case "n_second":
 		return "analysable, " + second
 	case "total":
+		if r != nil && r.Goal == "precision" {
+			return "respondents"
+		}
 		return "analysable, in total"
 	case "enrol_total":
+		if r != nil && r.Goal == "precision" {
+			return "to invite"
+		}
 		return "to recruit, in total"
 	case "events":
 		return "events"
@@ -321,17 +326,20 @@ func figureLabel(r *designs.Result, name string) string {
 	return name
 }
 
-// signedPct writes a relative difference with its sign: "−19.9%", "+31.2%".
-func signedPct(d float64) string {
-	v := trimZeros(strconv.FormatFloat(100*d, 'f', 1, 64))
-	switch {
-	case v == "0":
-		return "0%"
-	case d > 0:
-		v = "+" + v
+// statedKey is the key of the claimed block that stated a judged figure: a
+// survey's respondents are judged as its total, though the protocol may
+// state them as n.
+func statedKey(c review.Claimed, name string) string {
+	if name == "total" && c.Total == nil && c.N != nil {
+		return "n"
 	}
-	return strings.Replace(v, "-", "−", 1) + "%"
+	return name
 }
+
+// signedPct writes a relative difference with its sign: "−19.9%",
+// "+31.2%", with the digits the engine's sentences use
+// (review.SignedPercent).
+func signedPct(d float64) string { return review.SignedPercent(d) }
 
 // claimedLine lists what the claimed block states, key by key.
 func claimedLine(c review.Claimed) string {
@@ -385,10 +393,12 @@ func figuresSection(rep *review.Report, r *designs.Result) section {
 			judgement = "**" + judgement + "**"
 		}
 		stated := count(f.Stated)
-		if f.Analysable != nil {
+		if f.Analysable != nil && *f.Analysable != f.Stated {
+			// What the enrolment yields after the assumed loss (none
+			// when nothing is lost: a time-to-event plan, or no attrition).
 			stated += " (" + count(*f.Analysable) + " analysable)"
 		}
-		rows = append(rows, []string{figureLabel(r, f.Name) + " (`" + f.Name + "`)", stated, count(f.Recomputed), signedPct(f.Difference), power, judgement})
+		rows = append(rows, []string{figureLabel(r, f.Name) + " (`" + statedKey(rep.Claimed, f.Name) + "`)", stated, count(f.Recomputed), signedPct(f.Difference), power, judgement})
 	}
 	if !withPower {
 		// A precision survey: no power to show.
@@ -426,24 +436,45 @@ func methodsSection(rep *review.Report, r *designs.Result) section {
 		settings = append(settings, sidesWord(r.Sides))
 	}
 	if len(settings) > 0 {
-		s.paras = append(s.paras, "Recomputed at "+strings.Join(settings, ", ")+", with the protocol's assumptions (listed below). The size is the analysable size, before any allowance for loss; the last column allows for the assumed loss.")
+		loss := "The size is the analysable size, before any allowance for loss; the last column allows for the assumed loss."
+		switch {
+		case r.Outcome == "time-to-event" && r.Spec.Dropout > 0:
+			loss = "The size is the number of participants to recruit; the dropout is allowed for in the events they are expected to give."
+		case r.Outcome == "time-to-event":
+			loss = "The size is the number of participants to recruit, with no loss to follow-up assumed."
+		case r.Result.EnrolTotal == r.Result.Total:
+			loss = "The size is the analysable size; with no loss assumed, it is also the number to recruit."
+		}
+		s.paras = append(s.paras, "Recomputed at "+strings.Join(settings, ", ")+", with the protocol's assumptions (listed below). "+loss)
 	}
 	named := "used for the verdict (the default: the protocol names no method)"
 	if slices.Contains(rep.Reporting.Given, "method") {
 		named = "used for the verdict (the method the protocol names)"
 	}
-	rows := [][]string{{"Method", "Analysable per group", "Analysable in total", "To recruit", "Note"}}
+	per := "Analysable per group"
+	if r.Result.Arms > 2 {
+		per = "Analysable per arm"
+	}
+	rows := [][]string{{"Method", per, "Analysable in total", "To recruit", "Note"}}
 	for _, m := range rep.Methods {
 		mark := ""
 		if m.Named {
 			mark = "**" + named + "**"
 		}
-		rows = append(rows, []string{m.Name + " (`" + m.Method + "`)", sizeJoin(m.N), count(m.Total), count(m.EnrolTotal), mark})
+		rows = append(rows, []string{m.Name + " (`" + m.Method + "`)", armSizes(r, m.N), count(m.Total), count(m.EnrolTotal), mark})
 	}
-	if r.Goal == "precision" {
+	switch unit := oneGroupUnit(r); {
+	case r.Goal == "precision":
 		// One group: its size is the total.
 		for i, row := range rows {
 			rows[i] = slices.Delete(row, 1, 2)
+		}
+	case unit != "":
+		// Pairs, or the participants of a crossover trial: one count,
+		// which is the total.
+		rows[0][1] = "Analysable " + unit
+		for i, row := range rows {
+			rows[i] = slices.Delete(row, 2, 3)
 		}
 	}
 	s.table = rows
@@ -461,6 +492,37 @@ func methodsSection(rep *review.Report, r *designs.Result) section {
 	return s
 }
 
+// oneGroupUnit is what a design of one group of units counts: "pairs" for
+// a paired design, "participants" for a crossover trial (each receives
+// both treatments); "" for a design of groups.
+func oneGroupUnit(r *designs.Result) string {
+	if r == nil || r.Spec == nil {
+		return ""
+	}
+	switch r.Spec.Pairing {
+	case "paired":
+		return "pairs"
+	case "crossover":
+		return "participants"
+	}
+	return ""
+}
+
+// armSizes writes the analysable sizes of a method: "632 and 632" for two
+// groups; with several arms, the size of each with the number of arms,
+// "323 in each of 3 arms", or "300 in each of 2 intervention arms, 450
+// in the control arm".
+func armSizes(r *designs.Result, n []int) string {
+	a := r.Result
+	switch {
+	case a.Arms <= 2 || len(n) == 0:
+		return sizeJoin(n)
+	case len(n) == 1 || n[0] == n[1] || r.Spec.Comparisons == "all-pairs":
+		return fmt.Sprintf("%s in each of %d arms", count(n[0]), a.Arms)
+	}
+	return fmt.Sprintf("%s in each of %d intervention arms, %s in the control arm", count(n[0]), a.Arms-1, count(n[1]))
+}
+
 // sizeJoin writes sizes as "12 and 12".
 func sizeJoin(n []int) string {
 	out := make([]string, len(n))
@@ -473,7 +535,11 @@ func sizeJoin(n []int) string {
 func achievesSection(rep *review.Report, r *designs.Result) section {
 	s := section{heading: "What the stated size achieves"}
 	if p := rep.ClaimedPowerActual; p != nil {
-		line := "Power at the stated analysable size: **" + pct1(*p) + "**"
+		at := "the stated analysable size"
+		if c := rep.Claimed; c.N == nil && c.Total == nil && c.EnrolTotal == nil && c.Events != nil {
+			at = "the stated number of events"
+		}
+		line := "Power at " + at + ": **" + pct1(*p) + "**"
 		switch {
 		case rep.Claimed.Power != nil:
 			line += " (the protocol states " + pct1(*rep.Claimed.Power) + ")"
@@ -498,8 +564,15 @@ func achievesSection(rep *review.Report, r *designs.Result) section {
 		}
 		s.bullets = append(s.bullets, fmt.Sprintf("Smallest effect detectable with %s power: %s", pct(det.Power), detectablePhrase(r, det)))
 	}
-	if len(s.bullets) == 0 {
-		s.paras = append(s.paras, "Not computed: the protocol states no size, or too little to compute what a size achieves.")
+	switch {
+	case len(s.bullets) == 0 && rep.DetectableNote != "":
+		s.paras = append(s.paras, designs.Sentence(rep.DetectableNote))
+	case len(s.bullets) == 0:
+		s.paras = append(s.paras, "Not computed: the protocol states too little to compute what its size achieves.")
+	case len(rep.DetectableEffect) == 0 && rep.DetectableNote != "":
+		// The power is shown; the effect could not be solved: one line
+		// says so.
+		s.bullets = append(s.bullets, strings.TrimSuffix(rep.DetectableNote, "."))
 	}
 	return s
 }
@@ -510,6 +583,9 @@ func detectablePhrase(r *designs.Result, det review.Detectable) string {
 	name := strings.ReplaceAll(det.Scale, "_", " ")
 	if r != nil && r.Spec != nil {
 		name = scaleName(r, det.Scale)
+		if firstRiskScale(det.Scale) {
+			return riskPhrase(r, det)
+		}
 	}
 	side := func(v *float64, where string) string {
 		if v == nil {
@@ -524,6 +600,25 @@ func detectablePhrase(r *designs.Result, det review.Detectable) string {
 		return name + " " + side(det.Upper, "(above no difference)")
 	}
 	return name + " " + side(det.Lower, "below no difference") + ", " + side(det.Upper, "above")
+}
+
+// riskPhrase writes a detectable effect on the scale of the first group's
+// own risk (or exposure) as that risk, set against the second group's:
+// "a risk of 4.81% in the intervention arm (below the 10% in the control
+// arm), or of 17.3% (above it)".
+func riskPhrase(r *designs.Result, det review.Detectable) string {
+	f, g := groupsOf(r)
+	noun := vocabOf(r).noun
+	ref := pct(r.Spec.P2) + " " + g.in()
+	switch {
+	case det.Lower != nil && det.Upper != nil:
+		return fmt.Sprintf("%s %s of %s %s (below the %s), or of %s (above it)", article(noun), noun, pct(*det.Lower), f.in(), ref, pct(*det.Upper))
+	case det.Lower != nil:
+		return fmt.Sprintf("%s %s of %s %s (below the %s); none above it is reachable", article(noun), noun, pct(*det.Lower), f.in(), ref)
+	case det.Upper != nil:
+		return fmt.Sprintf("%s %s of %s %s (above the %s); none below it is reachable", article(noun), noun, pct(*det.Upper), f.in(), ref)
+	}
+	return "none reachable"
 }
 
 func diagnosisSection(rep *review.Report, r *designs.Result) section {
@@ -559,10 +654,13 @@ func diagnosisLine(dg review.Diagnosis, r *designs.Result, stated map[string]int
 		return out
 	}
 	line := "**" + strings.Join(code(dg.Slips), " with ") + "**"
+	how := distance(dg.Distance) + " from the stated figure"
 	if len(dg.Tied) > 0 {
-		line += ", tied with " + orWords(code(dg.Tied)) + " (the same figure)"
+		// One parenthesis: the tie and the distance together.
+		line += ", tied with " + orWords(code(dg.Tied))
+		how = "the same figure, " + how
 	}
-	line += " (" + distance(dg.Distance) + " from the stated figure). "
+	line += " (" + how + "). "
 	if dg.Explanation != "" {
 		return line + designs.Sentence(dg.Explanation)
 	}
@@ -581,12 +679,13 @@ func orWords(words []string) string {
 	return strings.Join(words[:len(words)-1], ", ") + " or " + words[len(words)-1]
 }
 
-// distance writes how close a reproduced figure is: "exact", "0.4%".
+// distance writes how close a reproduced figure is: "exact, 0%", "0.4%",
+// with the digits of the engine's explanation (review.DiffPercent).
 func distance(d float64) string {
 	if d == 0 {
 		return "exact, 0%"
 	}
-	return pct(math.Abs(d))
+	return review.DiffPercent(d)
 }
 
 func sensitivitySection(rep *review.Report, r *designs.Result) section {
@@ -596,13 +695,23 @@ func sensitivitySection(rep *review.Report, r *designs.Result) section {
 		return s
 	}
 	s.paras = append(s.paras, "The size required when one assumption at a time is made 10% and 20% less favourable (an effect moved towards no effect, a standard deviation, intracluster correlation or attrition made larger, a reference risk moved the way that needs more participants), the largest first:")
-	rows := [][]string{{"Assumption", "Less favourable by", "From", "To", "First group needs", "Analysable in total", "To recruit"}}
+	needs := "First group needs"
+	unit := oneGroupUnit(r)
+	switch {
+	case unit != "":
+		needs = capitalise(unit) + " needed"
+	case r != nil && r.Result.Arms > 2 && r.Spec.Comparisons == "all-pairs":
+		needs = "Each arm needs"
+	case r != nil && r.Result.Arms > 2:
+		needs = "Each intervention arm needs"
+	}
+	rows := [][]string{{"Assumption", "Less favourable by", "From", "To", needs, "Analysable in total", "To recruit"}}
 	for _, x := range rep.Sensitivity {
 		label := x.Key
 		if r != nil && r.Spec != nil {
-			label = keyLabel(r, x.Key)
+			label = reviewKeyLabel(r, x.Key)
 		}
-		row := []string{label + " (`" + x.Key + "`)", pct(x.Change), plainNumber(x.From), plainNumber(x.To)}
+		row := []string{label + " (`" + x.Key + "`)", review.Percent(x.Change), plainNumber(x.From), plainNumber(x.To)}
 		if x.N == nil {
 			why := "cannot be planned"
 			if x.Error != "" {
@@ -614,14 +723,35 @@ func sensitivitySection(rep *review.Report, r *designs.Result) section {
 		row = append(row, count(*x.N), orDash(x.Total), orDash(x.EnrolTotal))
 		rows = append(rows, row)
 	}
-	if r != nil && r.Goal == "precision" {
+	switch {
+	case r != nil && r.Goal == "precision":
 		// One group: its size is the total.
 		for i, row := range rows {
 			rows[i] = slices.Delete(row, 4, 5)
 		}
+	case unit != "":
+		// Pairs (or crossover participants): the count is the total.
+		for i, row := range rows {
+			rows[i] = slices.Delete(row, 5, 6)
+		}
 	}
 	s.table = rows
 	return s
+}
+
+// reviewKeyLabel names an assumption in the review's tables, which show it
+// alone, without the plan's table of assumptions around it: a trial's
+// margin is its non-inferiority or equivalence margin (a survey's, the
+// half-width of its interval), and a survival is named with its time.
+func reviewKeyLabel(r *designs.Result, key string) string {
+	switch {
+	case key == "margin" && r.Goal != "precision" && r.Spec.Hypothesis != "":
+		return r.Spec.Hypothesis + " margin"
+	case key == "control_survival" && r.Spec.SurvivalTime > 0:
+		_, g := groupsOf(r)
+		return "survival at " + duration(r.Spec.SurvivalTime, r.Spec.TimeUnit) + ", " + g.label
+	}
+	return keyLabel(r, key)
 }
 
 // orDash writes a count, or a dash when there is none.

@@ -143,7 +143,7 @@ func TestReviewLayout(t *testing.T) {
 			"Under-powered. The protocol states 250 (hand-written figures).", // the verdict first, not said twice
 			"hand-written convention", "hand-written reason one", "hand-written reason two",
 			"560 (500 analysable)", "−16.7%", "70.0%",
-			"slip-a", "tied with slip-b or slip-c", "0.4% from the stated figure", "hand-written explanation",
+			"slip-a", "tied with slip-b or slip-c (the same figure, 0.4% from the stated figure)", "hand-written explanation",
 			"slip-d with slip-e", "gives 252 for analysable, reminder arm against 250 stated",
 			"cannot be planned: hand-written failure", "890",
 			"hand-written guideline item", "1. hand-written request.",
@@ -160,6 +160,9 @@ func TestReviewLayout(t *testing.T) {
 		}
 		if strings.Contains(out, "\n|  |") || strings.Contains(out, "NaN") {
 			t.Errorf("%s: an empty first cell or a NaN", format)
+		}
+		if strings.Contains(out, ") (") {
+			t.Errorf("%s: a double parenthesis", format)
 		}
 	}
 }
@@ -276,6 +279,9 @@ func TestReviewNothingRecomputed(t *testing.T) {
 func TestReviewFormatting(t *testing.T) {
 	for _, c := range []struct{ got, want string }{
 		{signedPct(-0.19936), "−19.9%"}, {signedPct(0.31144), "+31.1%"}, {signedPct(0.0001), "0%"},
+		// One writer for the table and the sentences: 6.25% is 6.3%, and
+		// 2046.6% keeps its decimal.
+		{signedPct(-1.0 / 16), "−6.3%"}, {signedPct(20.466), "+2046.6%"}, {distance(2.0 / 30), "6.7%"},
 		{plainNumber(1.6749999999999998), "1.675"}, {plainNumber(0.11000000000000001), "0.11"}, {plainNumber(-4.8), "−4.8"},
 		{percentagePoints(0.02), "2 percentage points"}, {percentagePoints(0.01), "1 percentage point"},
 		{withoutVerdict("Larger than needed: the protocol states", "Larger than needed"), "The protocol states"},
@@ -285,5 +291,97 @@ func TestReviewFormatting(t *testing.T) {
 		if c.got != c.want {
 			t.Errorf("got %q, want %q", c.got, c.want)
 		}
+	}
+}
+
+// renderReview rechecks a protocol and renders it in Markdown.
+func renderReview(t *testing.T, spec string) string {
+	t.Helper()
+	src := ReviewSource{File: "p.yaml", Data: []byte(spec)}
+	in, err := designs.ParseReview(src.File, src.Data, nil)
+	if err != nil {
+		t.Fatalf("%v\n%s", err, spec)
+	}
+	rep, err := review.Run(in)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var b bytes.Buffer
+	if err := WriteReview(&b, rep, in, src, "markdown"); err != nil {
+		t.Fatal(err)
+	}
+	return b.String()
+}
+
+// TestReviewWording: the words of the letter for designs whose groups,
+// effects or sizes differ from two groups compared on a ratio. Only the
+// wording is checked here; the figures are the engine's, tested there.
+func TestReviewWording(t *testing.T) {
+	for _, c := range []struct {
+		name, spec string
+		want, not  []string
+	}{
+		{
+			name: "non-inferiority margin and no detectable effect",
+			spec: "version: 1\ndesign: trial\noutcome: time-to-event\nhypothesis: non-inferiority\nhigher_is_better: false\nmargin: 1.3\ncontrol_median: 30\naccrual: 18\nfollow_up: 24\ntime_unit: months\nclaimed:\n  n: 300\n  power: 0.85\n",
+			want: []string{"| non-inferiority margin (`margin`) |", "- The smallest detectable effect is not computed: a non-inferiority trial is sized on its margin"},
+			not:  []string{"half-width"},
+		},
+		{
+			name: "survival at a time",
+			spec: "version: 1\ndesign: trial\noutcome: time-to-event\nhazard_ratio: 0.7\ncontrol_survival: 0.6\ntime: 12\ntime_unit: months\naccrual: 12\nfollow_up: 12\nclaimed:\n  n: 150\n  power: 0.8\n",
+			want: []string{"| survival at 12 months, control arm (`control_survival`) |"},
+			not:  []string{"| survival at the time below, control arm (`control_survival`) |"},
+		},
+		{
+			name: "a risk as the detectable effect",
+			spec: "version: 1\ndesign: trial\ncontrol_risk: 0.1\nintervention_risk: 0.05\nclaimed:\n  n: 300\n  power: 0.8\n",
+			want: []string{"Smallest effect detectable with 80% power: a risk of ", " in the intervention arm (below the 10% in the control arm), or of "},
+			not:  []string{"below no difference"},
+		},
+		{
+			name: "pairs",
+			spec: "version: 1\ndesign: trial\noutcome: continuous\npairing: paired\nmean_difference: 2\nsd_difference: 5\nclaimed:\n  n: 40\n  power: 0.8\n",
+			want: []string{"| Method | Analysable pairs | To recruit | Note |", "| Pairs needed | To recruit |"},
+			not:  []string{"per group", "First group needs"},
+		},
+		{
+			name: "three arms",
+			spec: "version: 1\ndesign: trial\narms: 3\ncomparisons: each-vs-control\ncontrol_risk: 0.3\nrisk_ratio: 0.7\nclaimed:\n  n: 450\n  power: 0.8\n",
+			want: []string{"| Analysable per arm |", " in each of 3 arms |", "| Each intervention arm needs |"},
+			not:  []string{"per group"},
+		},
+		{
+			name: "a survey's n",
+			spec: "version: 1\ndesign: cross-sectional\ngoal: precision\nexpected_prevalence: 0.3\nmargin: 0.05\nclaimed:\n  n: 300\n",
+			want: []string{"| respondents (`n`) |"},
+			not:  []string{"(`total`)", "tolerance_power"},
+		},
+		{
+			name: "nothing recomputed",
+			spec: "version: 1\ndesign: trial\nrisk_ratio: 0.7\nclaimed:\n  n: 300\n  power: 0.8\n",
+			want: []string{"Nothing the stated size achieves could be computed: the protocol does not state the reference value"},
+			not:  []string{"states no size"},
+		},
+		{
+			name: "time to event enrolment, no loss",
+			spec: "version: 1\ndesign: trial\noutcome: time-to-event\nhazard_ratio: 0.7\ncontrol_median: 12\naccrual: 12\nfollow_up: 12\nclaimed:\n  enrol_total: 247\n  power: 0.8\n",
+			want: []string{"| to recruit, in total (`enrol_total`) | 247 |"},
+			not:  []string{"assumed loss", "247 analysable"},
+		},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			out := renderReview(t, c.spec)
+			for _, w := range c.want {
+				if !strings.Contains(out, w) {
+					t.Errorf("no %q in\n%s", w, out)
+				}
+			}
+			for _, w := range c.not {
+				if strings.Contains(out, w) {
+					t.Errorf("%q in\n%s", w, out)
+				}
+			}
+		})
 	}
 }

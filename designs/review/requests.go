@@ -54,7 +54,7 @@ var elementRequests = map[string]string{
 	"power":           "State the power the sample size is meant to give.",
 	"method":          "Name the formula, method or software procedure that gave the sample size, with its reference.",
 	"allocation":      "State the allocation ratio between the groups.",
-	"attrition":       "State the expected loss to follow-up (or non-response) and how the enrolment target allows for it.",
+	"attrition":       "State the expected {loss} and how the enrolment target allows for it.",
 	"design_effect":   "State the intracluster correlation and the mean cluster size (or the design effect) used to inflate the sample size, and where they come from.",
 	"sample_size":     "State the number of participants needed for the analysis in each group and the number to be enrolled.",
 }
@@ -81,7 +81,7 @@ func reporting(in *designs.ReviewInput) Reporting {
 func requests(rc *recheck) []string {
 	out := []string{}
 	for _, id := range rc.in.Missing {
-		line := elementRequests[id]
+		line := strings.ReplaceAll(elementRequests[id], "{loss}", lossWords(rc.in))
 		if a := assumedFor(rc.in, id); a != "" {
 			line = strings.TrimSuffix(line, ".") + "; the recheck assumed " + a + "."
 		}
@@ -99,7 +99,7 @@ func requests(rc *recheck) []string {
 			}
 			seen[id] = true
 			if s := SlipByID(id); s != nil {
-				out = append(out, s.Request)
+				out = append(out, s.RequestFor(rc.in))
 			}
 		}
 	}
@@ -110,7 +110,7 @@ func requests(rc *recheck) []string {
 				continue
 			}
 			line := fmt.Sprintf("Explain how the stated figure, %s, was obtained: under the protocol's own assumptions the recheck gives %s.", rc.phrase(f.Name, f.Stated), count(f.Recomputed))
-			if f.Analysable != nil {
+			if rc.lossApplied(&f) {
 				line = fmt.Sprintf("Explain how the enrolment of %s was obtained: after the assumed loss it leaves %s analysable, where the protocol's own assumptions need %s.", count(f.Stated), count(*f.Analysable), count(rc.rec.v["total"]))
 			}
 			out = append(out, line)
@@ -122,13 +122,16 @@ func requests(rc *recheck) []string {
 // assumedFor is the convention the recheck assumed for a missing element,
 // as ParseReview words it ("" when none).
 func assumedFor(in *designs.ReviewInput, id string) string {
-	word := map[string]string{"alpha": "alpha", "sides": "two-sided", "allocation": "1:1"}[id]
+	word := map[string]string{"alpha": "alpha", "sides": "-sided", "allocation": "1:1"}[id]
 	if word == "" {
 		return ""
 	}
 	for _, a := range in.Assumed {
 		if strings.Contains(a, word) {
-			return strings.TrimSuffix(a, " (the usual convention)")
+			if i := strings.Index(a, " (the usual convention"); i > 0 {
+				a = a[:i]
+			}
+			return a
 		}
 	}
 	return ""

@@ -50,6 +50,12 @@ type Report struct {
 	// DetectableEffect is the smallest effect the stated sizes detect at
 	// the stated power (or at 80% and 90% when no power is stated).
 	DetectableEffect []Detectable `json:"detectable_effect"`
+	// DetectableNote says, in one sentence, why DetectableEffect is empty
+	// ("" when it is not): nothing recomputed, no size stated, only the
+	// events stated, or a plan that cannot solve its effect (a
+	// non-inferiority or equivalence trial, sized on its margin). The
+	// letter prints it; the JSON keeps detectable_effect empty.
+	DetectableNote string `json:"-"`
 	// Methods is the recomputed n by every applicable method, the named
 	// (or default) one first.
 	Methods []MethodN `json:"methods"`

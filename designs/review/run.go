@@ -43,6 +43,7 @@ func Run(in *designs.ReviewInput) (*Report, error) {
 		rep.DiagnosisNote = "Nothing could be recomputed, so there is no diagnosis."
 		rep.Sensitivity = []Sensitivity{}
 		rep.DetectableEffect = []Detectable{}
+		rep.DetectableNote = noneNote(in)
 		rep.Requests = requests(rc)
 		return rep, nil
 	}
@@ -53,7 +54,7 @@ func Run(in *designs.ReviewInput) (*Report, error) {
 	rc.spec, rc.res = in.Spec, res
 	rep.Plan = res
 	rep.Recomputed = &res.Result
-	rep.DetectableEffect = rc.detectable()
+	rep.DetectableEffect, rep.DetectableNote = rc.detectable()
 	rep.Sensitivity = []Sensitivity{}
 
 	switch in.Mode {
@@ -248,19 +249,29 @@ func (rc *recheck) statedPower() float64 {
 
 // detectable is the smallest effect the stated sizes detect at the stated
 // power, or at 80% and 90% when no power was stated. A precision survey
-// gives the margin its stated size achieves (Upper, with Power 0).
-func (rc *recheck) detectable() []Detectable {
+// gives the margin its stated size achieves (Upper, with Power 0). When
+// none can be computed, the note says why in one sentence.
+func (rc *recheck) detectable() ([]Detectable, string) {
 	out := []Detectable{}
 	c := rc.c
 	if c.N == 0 && c.Total == 0 && c.EnrolTotal == 0 {
-		return out
+		if c.Events > 0 {
+			return out, "The smallest detectable effect is not computed: it is solved from the numbers of participants, and the protocol states only the events."
+		}
+		return out, "Nothing is computed here: the protocol states no size."
 	}
 	if rc.spec.Goal == "precision" {
 		res, err := rc.plan(append(rc.in.SizeEdits(), designs.Set("solve", "effect"))...)
 		if err == nil && res.Result.Margin != nil {
 			out = append(out, Detectable{Scale: "margin", Upper: res.Result.Margin})
+			return out, ""
 		}
-		return out
+		return out, "The margin the stated size achieves could not be computed."
+	}
+	if h := rc.spec.Hypothesis; h == "non-inferiority" || h == "equivalence" {
+		// Such a trial is sized on its margin, which the protocol fixes;
+		// the plan solves its size or its power, not an effect.
+		return out, fmt.Sprintf("The smallest detectable effect is not computed: %s trial is sized on its margin, which the protocol fixes, and the recheck solves its size and power only.", map[string]string{"non-inferiority": "a non-inferiority", "equivalence": "an equivalence"}[h])
 	}
 	powers := []float64{0.8, 0.9}
 	if rc.in.Mode == designs.ReviewN || rc.in.Mode == designs.ReviewEffect {
@@ -268,16 +279,42 @@ func (rc *recheck) detectable() []Detectable {
 			powers = []float64{p}
 		}
 	}
+	var firstErr error
 	for _, p := range powers {
 		edits := append(rc.in.SizeEdits(), designs.Set("solve", "effect"), designs.Set("power", p))
 		res, err := rc.plan(edits...)
 		if err != nil || res.Result.Detectable == nil {
+			if firstErr == nil {
+				firstErr = err
+			}
 			continue
 		}
 		d := res.Result.Detectable
 		out = append(out, Detectable{Power: p, Scale: d.Scale, Lower: d.Lower, Upper: d.Upper})
 	}
-	return out
+	if len(out) == 0 {
+		if firstErr != nil {
+			return out, "The smallest detectable effect could not be computed: " + firstErr.Error() + "."
+		}
+		return out, "The smallest detectable effect could not be computed."
+	}
+	return out, ""
+}
+
+// noneNote says why nothing the stated size achieves is computed when
+// nothing could be recomputed: the elements the recomputation needs that
+// the protocol left out.
+func noneNote(in *designs.ReviewInput) string {
+	var miss []string
+	for _, id := range []string{"reference_value", "effect", "sample_size"} {
+		if slices.Contains(in.Missing, id) {
+			miss = append(miss, elementNames[id])
+		}
+	}
+	if len(miss) == 0 {
+		return "Nothing the stated size achieves could be computed."
+	}
+	return "Nothing the stated size achieves could be computed: the protocol does not state " + joinAnd(miss) + "."
 }
 
 // hasKey tells whether the protocol's specification gives key.
@@ -387,7 +424,7 @@ func (rc *recheck) judge(f *Figure) {
 	byN := within(f.Difference, tn)
 	byPower := f.Power != nil && sp > 0 && math.Abs(*f.Power-sp) <= tp+1e-12
 	head := fmt.Sprintf("%s: %s stated, %s recomputed (%s)", rc.noun(f.Name), count(f.Stated), count(f.Recomputed), signedPct(float64(f.Stated-f.Recomputed)/float64(f.Recomputed)))
-	if f.Analysable != nil {
+	if rc.lossApplied(f) {
 		head = fmt.Sprintf("%s: %s stated, %s recomputed; after the assumed loss it yields %s analysable against %s needed (%s)", rc.noun(f.Name), count(f.Stated), count(f.Recomputed), count(*f.Analysable), count(rc.rec.v["total"]), signedPct(f.Difference))
 	}
 	pw := ""
@@ -439,15 +476,41 @@ func (rc *recheck) verdict() (string, string) {
 	if worst.Judgement == "too large" {
 		v, word = LargerThanNeeded, "Larger than needed"
 	}
-	need := fmt.Sprintf("its own assumptions need %s", count(worst.Recomputed))
-	if worst.Analysable != nil {
-		need = fmt.Sprintf("after the assumed loss that yields %s analysable where %s are needed", count(*worst.Analysable), count(rc.rec.v["total"]))
+	// The difference is Figure.Difference, relative to the recomputed
+	// figure: the sentence says so ("below it"), so that it cannot be read
+	// as relative to the stated figure.
+	need := fmt.Sprintf("its own assumptions need %s: the stated figure is %s", count(worst.Recomputed), relation(worst.Difference, "it"))
+	if rc.lossApplied(worst) {
+		need = fmt.Sprintf("after the assumed loss it yields %s analysable, where its own assumptions need %s: the analysable figure is %s",
+			count(*worst.Analysable), count(rc.rec.v["total"]), relation(worst.Difference, "that"))
 	}
 	pw := ""
 	if worst.Power != nil && rc.statedPower() > 0 {
 		pw = fmt.Sprintf("; at the stated figure the power is %s, not the %s stated", pct(*worst.Power), pct(rc.statedPower()))
 	}
-	return v, fmt.Sprintf("%s: the protocol states %s, but %s (%s)%s; %s.", word, rc.phrase(worst.Name, worst.Stated), need, signedPct(worst.Difference), pw, tol)
+	return v, fmt.Sprintf("%s: the protocol states %s, but %s%s; %s.", word, rc.phrase(worst.Name, worst.Stated), need, pw, tol)
+}
+
+// relation words a relative difference against a reference named ref:
+// "19.9% below it", "31.2% above it", "the same as it".
+func relation(d float64, ref string) string {
+	v := DiffPercent(d)
+	switch {
+	case v == "0%":
+		return "the same as " + ref
+	case d < 0:
+		return v + " below " + ref
+	}
+	return v + " above " + ref
+}
+
+// lossApplied tells whether a judged enrolment loses participants to the
+// assumed attrition: the analysable figure it yields differs from the
+// enrolment. (A time-to-event plan, whose losses are a dropout hazard
+// acting on the events, or a plan with no attrition, enrols its
+// analysable participants.)
+func (rc *recheck) lossApplied(f *Figure) bool {
+	return f.Analysable != nil && *f.Analysable != f.Stated
 }
 
 // incompleteFor lists the elements whose absence leaves the verdict
@@ -466,7 +529,12 @@ func (rc *recheck) incompleteFor() []string {
 // recText words the recomputed size.
 func (rc *recheck) recText() string {
 	a := rc.res.Result
-	if len(a.N) == 2 {
+	switch {
+	case len(a.N) == 2 && a.Arms > 2 && (a.N[0] == a.N[1] || rc.spec.Comparisons == "all-pairs"):
+		return fmt.Sprintf("%s analysable in each of %d arms (%s in all, %s to enrol)", count(a.N[0]), a.Arms, count(a.Total), count(a.EnrolTotal))
+	case len(a.N) == 2 && a.Arms > 2:
+		return fmt.Sprintf("%s analysable in each of %d intervention arms and %s in the control arm (%s in all, %s to enrol)", count(a.N[0]), a.Arms-1, count(a.N[1]), count(a.Total), count(a.EnrolTotal))
+	case len(a.N) == 2:
 		return fmt.Sprintf("%s and %s analysable (%s in all, %s to enrol)", count(a.N[0]), count(a.N[1]), count(a.Total), count(a.EnrolTotal))
 	}
 	return fmt.Sprintf("%s analysable (%s to enrol)", count(a.Total), count(a.EnrolTotal))
@@ -530,7 +598,11 @@ func incompleteSentence(in *designs.ReviewInput, what string) string {
 	if len(miss) > 0 {
 		why = "the protocol does not state " + joinAnd(miss)
 	}
-	return fmt.Sprintf("Incomplete: %s, so the stated size cannot be judged; %s.", why, what)
+	so := "so the stated size cannot be judged"
+	if slices.Contains(in.Missing, "sample_size") {
+		so = "so there is no stated size to judge"
+	}
+	return fmt.Sprintf("Incomplete: %s, %s; %s.", why, so, what)
 }
 
 // tolText words the tolerances.
@@ -593,53 +665,4 @@ func (rc *recheck) phrase(name string, x int) string {
 		return n + " clusters per arm"
 	}
 	return n + " " + name
-}
-
-// count writes a whole number with thousands separators.
-func count(n int) string {
-	s := fmt.Sprint(n)
-	neg := strings.HasPrefix(s, "-")
-	s = strings.TrimPrefix(s, "-")
-	for i := len(s) - 3; i > 0; i -= 3 {
-		s = s[:i] + "," + s[i:]
-	}
-	if neg {
-		return "-" + s
-	}
-	return s
-}
-
-// pct writes a fraction as a percentage with at most one decimal.
-func pct(x float64) string { return trim(math.Round(x*1000)/10) + "%" }
-
-// signedPct writes a relative difference as "12.5% fewer" or "3% more".
-func signedPct(d float64) string {
-	switch {
-	case math.Abs(d) < 0.0005:
-		return "the same"
-	case d < 0:
-		return pct(-d) + " fewer"
-	}
-	return pct(d) + " more"
-}
-
-// trim writes a number with up to four significant decimals and no
-// trailing zeros.
-func trim(x float64) string {
-	s := fmt.Sprintf("%.4g", x)
-	if strings.ContainsAny(s, "e") {
-		return fmt.Sprint(x)
-	}
-	return s
-}
-
-// joinAnd joins words as "a, b and c".
-func joinAnd(xs []string) string {
-	switch len(xs) {
-	case 0:
-		return ""
-	case 1:
-		return xs[0]
-	}
-	return strings.Join(xs[:len(xs)-1], ", ") + " and " + xs[len(xs)-1]
 }

@@ -5,6 +5,8 @@ import (
 	"slices"
 	"strings"
 	"testing"
+
+	"enough/designs"
 )
 
 // One test per slip: an invented protocol commits the slip on purpose,
@@ -29,7 +31,11 @@ func expectSlip(t *testing.T, spec, id, name string, stated int) *Report {
 			if d.Figure != name || d.Reproduces != stated || d.Explanation == "" {
 				t.Errorf("%s reproduces %s %d; want %s %d (%s)", id, d.Figure, d.Reproduces, name, stated, d.Explanation)
 			}
-			if !slices.Contains(rep.Requests, SlipByID(id).Request) {
+			in, err := designs.ParseReview("p.yaml", []byte(spec), nil)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !slices.Contains(rep.Requests, SlipByID(id).RequestFor(in)) {
 				t.Errorf("no request for %s: %q", id, rep.Requests)
 			}
 			return rep
@@ -116,6 +122,26 @@ func TestSlipDesignEffectIgnored(t *testing.T) {
 	// design_effect_ignored_cluster_n: ⌈power.t.test(delta=5, sd=12)$n⌉ = 92.
 	n = refInt(t, "design_effect_ignored_cluster_n")
 	expectSlip(t, fmt.Sprintf("version: 1\ndesign: trial\noutcome: continuous\nmean_difference: 5\nsd: 12\ncluster: {size: 20, icc: 0.05}\nsources:\n  cluster.icc: a previous trial in the same clinics (invented)\nclaimed:\n  n: %d\n  power: 0.8\n", n), "design-effect-ignored", "n", n)
+	// The same cluster trial stating also the clusters that slip fills,
+	// make.R design_effect_ignored_clusters: ⌈92 / 20⌉ = 5 clusters per
+	// arm, explained by the same slip (no pair, no request to explain
+	// them), whose request does not ask for the clustering the protocol
+	// states.
+	k := refInt(t, "design_effect_ignored_clusters")
+	rep = expectSlip(t, fmt.Sprintf("version: 1\ndesign: trial\noutcome: continuous\nmean_difference: 5\nsd: 12\ncluster: {size: 20, icc: 0.05}\nsources:\n  cluster.icc: a previous trial in the same clinics (invented)\nclaimed:\n  n: %d\n  clusters: %d\n  power: 0.8\n", n, k), "design-effect-ignored", "n", n)
+	if !strings.Contains(rep.Diagnosis[0].Explanation, fmt.Sprintf("also reproduces the stated %d clusters per arm", k)) {
+		t.Errorf("the clusters are not explained: %+v", rep.Diagnosis)
+	}
+	for _, d := range rep.Diagnosis {
+		if len(d.Slips) > 1 {
+			t.Errorf("a pair tried although one slip explains every figure: %+v", d)
+		}
+	}
+	for _, r := range rep.Requests {
+		if strings.Contains(r, "state the intracluster correlation") || strings.HasPrefix(r, "Explain how") {
+			t.Errorf("the clustering is stated and the clusters explained, yet the request %q", r)
+		}
+	}
 	// A survey without its design effect, make.R
 	// survey_design_effect_ignored_total: ⌈1.96² × 0.21 / 0.05²⌉ = 323.
 	n = refInt(t, "survey_design_effect_ignored_total")
@@ -189,6 +215,46 @@ func TestSlipEventsAsParticipants(t *testing.T) {
 	}
 }
 
+// TestSlipMultiplicityIgnored: a trial of three arms, each against the
+// control, whose n sizes each comparison at the stated alpha 0.05 (make.R
+// multiplicity_ignored_n, 389) where the plan divides it between the two
+// comparisons (multiplicity_correct_n, 467 at 0.025). A one-sided 0.05
+// divided by two gives the same z (multiplicity_one_sided_n, 389): the two
+// slips are listed together, as tied, and never as a pair.
+func TestSlipMultiplicityIgnored(t *testing.T) {
+	n := refInt(t, "multiplicity_ignored_n")
+	if refInt(t, "multiplicity_one_sided_n") != n {
+		t.Fatal("the fixture no longer ties")
+	}
+	spec := fmt.Sprintf("version: 1\ndesign: trial\narms: 3\ncomparisons: each-vs-control\ncontrol_risk: 0.3\nrisk_ratio: 0.7\nclaimed:\n  n: %d\n  power: 0.8\n  alpha: 0.05\n  sides: 2\n", n)
+	rep := expectSlip(t, spec, "multiplicity-ignored", "n", n)
+	if f := figure(rep, "n"); f.Recomputed != refInt(t, "multiplicity_correct_n") {
+		t.Errorf("recomputed %d; want %d (multiplicity_correct_n)", f.Recomputed, refInt(t, "multiplicity_correct_n"))
+	}
+	var tied bool
+	for _, d := range rep.Diagnosis {
+		ids := append(slices.Clone(d.Slips), d.Tied...)
+		if slices.Contains(ids, "one-sided-alpha") && slices.Contains(ids, "multiplicity-ignored") {
+			tied = len(d.Slips) == 1 && d.Reproduces == n
+		}
+		for _, tie := range d.Tied {
+			if strings.Contains(tie, " + ") && strings.Contains(tie, "one-sided-alpha") && strings.Contains(tie, "multiplicity-ignored") {
+				t.Errorf("paired: %+v", d)
+			}
+		}
+	}
+	if !tied {
+		t.Errorf("one-sided-alpha and multiplicity-ignored are not listed as tied: %+v", rep.Diagnosis)
+	}
+	// Two arms: one comparison, the slip does not apply.
+	two := review(t, fleissTrial+"claimed:\n  n: 300\n  power: 0.8\n")
+	for _, d := range two.Diagnosis {
+		if slices.Contains(d.Slips, "multiplicity-ignored") || slices.Contains(d.Tied, "multiplicity-ignored") {
+			t.Errorf("multiplicity-ignored diagnosed with two arms: %+v", d)
+		}
+	}
+}
+
 // TestSlipPair: no single slip gives 289 as a total; a one-sided alpha
 // with the per-group figure reported as the total does (make.R
 // pair_one_sided_per_group_total).
@@ -244,7 +310,7 @@ func TestSlipList(t *testing.T) {
 	want := []string{"one-sided-alpha", "per-group-as-total", "total-as-per-group", "attrition-ignored", "attrition-multiplied",
 		"continuity-omitted", "continuity-added", "odds-ratio-as-risk-ratio", "design-effect-ignored", "power-90-as-80",
 		"power-80-as-90", "normal-instead-of-t", "ratio-ignored", "variance-not-doubled", "relative-as-absolute",
-		"absolute-as-relative", "events-as-participants"}
+		"absolute-as-relative", "events-as-participants", "multiplicity-ignored"}
 	var got []string
 	for _, s := range Slips {
 		got = append(got, s.ID)
@@ -257,7 +323,7 @@ func TestSlipList(t *testing.T) {
 	}
 	for _, pair := range [][2]string{{"continuity-omitted", "continuity-added"}, {"power-90-as-80", "power-80-as-90"},
 		{"attrition-ignored", "attrition-multiplied"}, {"per-group-as-total", "total-as-per-group"},
-		{"relative-as-absolute", "absolute-as-relative"}} {
+		{"relative-as-absolute", "absolute-as-relative"}, {"one-sided-alpha", "multiplicity-ignored"}} {
 		if SlipByID(pair[0]).Group != SlipByID(pair[1]).Group {
 			t.Errorf("%s and %s can be combined", pair[0], pair[1])
 		}

@@ -24,7 +24,8 @@ type Slip struct {
 	// ID is the slip's fixed id (issue 10, item 5).
 	ID string
 	// Says names the slip in a sentence: "a one-sided alpha where the plan
-	// is two-sided".
+	// is two-sided". "{loss}" in it, and in Request, stands for the losses
+	// of the design (Protocol.lossWords).
 	Says string
 	// Group is the conflict group: two slips of one group are opposites,
 	// or act on the same figure or key, and are never combined in a pair.
@@ -40,6 +41,31 @@ type Slip struct {
 	// Stage orders the reads of a pair (losses before totals).
 	Read  func(p *Protocol, f figs) figs
 	Stage int
+}
+
+// SaysFor names the slip in the words of the protocol's design.
+func (s *Slip) SaysFor(in *designs.ReviewInput) string {
+	return strings.ReplaceAll(s.Says, "{loss}", lossWords(in))
+}
+
+// RequestFor is the slip's request in the words of the protocol's design.
+func (s *Slip) RequestFor(in *designs.ReviewInput) string {
+	return strings.ReplaceAll(s.Request, "{loss}", lossWords(in))
+}
+
+// lossWords names the losses an enrolment allows for, in the words of the
+// design: non-participation or unusable records for a case-control study
+// (which follows no one up), non-response for a survey, loss to follow-up
+// otherwise.
+func lossWords(in *designs.ReviewInput) string {
+	v, _ := in.Value("design")
+	switch v {
+	case "case-control":
+		return "non-participation or unusable records"
+	case "cross-sectional":
+		return "non-response"
+	}
+	return "loss to follow-up"
 }
 
 // Protocol is what a slip may look at: the protocol's review input and
@@ -170,8 +196,8 @@ var Slips = []Slip{
 	// hazard: every figure recomputed with dropout 0.
 	{
 		ID: "attrition-ignored", Group: "attrition", Stage: 1,
-		Says:    "no allowance for loss to follow-up",
-		Request: "State the expected loss to follow-up and inflate the enrolment for it: the enrolment target should be the analysable size divided by (1 − the expected loss).",
+		Says:    "no allowance for {loss}",
+		Request: "State the expected {loss} and inflate the enrolment for it: the enrolment target should be the analysable size divided by (1 − the fraction expected to be lost).",
 		Edits: func(p *Protocol) ([]designs.Edit, bool) {
 			if p.Spec.Outcome == "time-to-event" {
 				if p.Spec.Dropout > 0 {
@@ -196,7 +222,7 @@ var Slips = []Slip{
 	{
 		ID: "attrition-multiplied", Group: "attrition", Stage: 1,
 		Says:    "the enrolment inflated by multiplying by (1 + loss) instead of dividing by (1 − loss)",
-		Request: "Recompute the enrolment target as the analysable size divided by (1 − the expected loss); multiplying by (1 + the loss) leaves fewer than needed once the loss occurs.",
+		Request: "Recompute the enrolment target as the analysable size divided by (1 − the fraction expected to be lost to {loss}); multiplying by (1 + that fraction) leaves fewer than needed once the loss occurs.",
 		Edits: func(p *Protocol) ([]designs.Edit, bool) {
 			return nil, p.Spec.Outcome != "time-to-event" && p.Spec.Attrition > 0
 		},
@@ -256,11 +282,16 @@ var Slips = []Slip{
 	},
 	// design-effect-ignored: the size without the design effect or the
 	// clustering (1 + (m − 1) ICC, Donner & Klar 2000): every figure
-	// recomputed with the cluster block and the design effect removed.
+	// recomputed with the cluster block and the design effect removed. When
+	// the protocol has a cluster block, the clusters per arm that slip
+	// states are those its enrolment fills: ⌈enrolment per arm / m⌉, as
+	// the plan counts clusters. The slip applies only where the protocol
+	// states its clustering, so the request asks to confirm that the size
+	// allows for it rather than to state it.
 	{
-		ID: "design-effect-ignored", Group: "clustering",
+		ID: "design-effect-ignored", Group: "clustering", Stage: 2,
 		Says:    "no allowance for clustering (the design effect left out)",
-		Request: "Inflate the sample size for clustering: state the intracluster correlation and the mean cluster size (or the design effect) and where they come from.",
+		Request: "Confirm that the sample size allows for clustering: the stated figure matches the size without the design effect, although the protocol states its clustering; the size should be multiplied by the design effect, 1 + (m − 1) × ICC for clusters of mean size m.",
 		Edits: func(p *Protocol) ([]designs.Edit, bool) {
 			if p.Spec.Cluster == nil && p.Spec.DesignEffect <= 1 {
 				return nil, false
@@ -270,6 +301,12 @@ var Slips = []Slip{
 				edits = append(edits, designs.Delete("test"))
 			}
 			return edits, true
+		},
+		Read: func(p *Protocol, f figs) figs {
+			if cl := p.Spec.Cluster; cl != nil && cl.Size > 0 && len(f.enrol) > 0 && f.enrol[0] > 0 {
+				f.v["clusters"] = int(math.Ceil(float64(f.enrol[0])/cl.Size - 1e-9))
+			}
+			return f
 		},
 	},
 	// power-90-as-80: the z of 90% power used where 80% is stated: every
@@ -406,6 +443,44 @@ var Slips = []Slip{
 			return f
 		},
 	},
+	// multiplicity-ignored: in a trial of several arms with more than one
+	// comparison, the alpha not divided among the comparisons: each
+	// comparison sized at the stated alpha where the plan tests each at
+	// alpha / k, k the number of comparisons (Bonferroni; Dunn 1961, J Am
+	// Stat Assoc 56:52–64): every figure recomputed with alpha × k, which
+	// makes the alpha of each comparison the stated one (where alpha × k is
+	// at most 0.5). It acts on the alpha, as one-sided-alpha does: the two
+	// share a conflict group and are never paired.
+	{
+		ID: "multiplicity-ignored", Group: "alpha",
+		Says:    "the alpha not divided among the comparisons of the several arms (no Bonferroni correction)",
+		Request: "Confirm how the significance level was shared among the comparisons of the arms: the stated figure matches each comparison tested at the full alpha, where the plan divides it among the comparisons (Bonferroni); recompute the size at alpha divided by the number of comparisons, or justify another correction.",
+		Edits: func(p *Protocol) ([]designs.Edit, bool) {
+			k := p.comparisons()
+			if k < 2 || p.Spec.Goal == "precision" {
+				return nil, false
+			}
+			a := round12(p.Spec.Alpha * float64(k))
+			if a > 0.5 {
+				return nil, false
+			}
+			return []designs.Edit{designs.Set("alpha", a)}, true
+		},
+	},
+}
+
+// comparisons is the number of comparisons among the arms, over which the
+// plan divides the alpha (Bonferroni): arms − 1 each against the control,
+// arms (arms − 1) / 2 for every pair; 1 with two arms.
+func (p *Protocol) comparisons() int {
+	a := p.Spec.Arms
+	switch {
+	case a <= 2:
+		return 1
+	case p.Spec.Comparisons == "all-pairs":
+		return a * (a - 1) / 2
+	}
+	return a - 1
 }
 
 // SlipByID returns the slip with the id, or nil.
@@ -583,7 +658,7 @@ func reach(figure string, stated int) float64 {
 func (rc *recheck) explain(c candidate, d Diagnosis) string {
 	var says []string
 	for _, s := range c.slips {
-		says = append(says, s.Says)
+		says = append(says, s.SaysFor(rc.in))
 	}
 	who := says[0]
 	if len(says) > 1 {
@@ -592,11 +667,41 @@ func (rc *recheck) explain(c candidate, d Diagnosis) string {
 	st := rc.stated()[d.Figure]
 	how := "exactly"
 	if d.Reproduces != st {
-		how = "within " + pct(d.Distance) + " of"
+		how = "within " + DiffPercent(d.Distance) + " of"
 	}
+	// The distance is relative to the stated figure (Diagnosis.Distance);
+	// the recomputed figure's gap is given in units, not as a second
+	// percentage on another basis.
 	rec := rc.rec.v[d.Figure]
 	return designs.Sentence(fmt.Sprintf("%s gives %s, %s the stated %s; the recomputed %s is %s away",
-		who, rc.phrase(d.Figure, d.Reproduces), how, count(st), count(rec), pct(math.Abs(float64(rec-st))/float64(st))))
+		who, rc.phrase(d.Figure, d.Reproduces), how, count(st), count(rec), rc.units(d.Figure, absInt(rec-st))))
+}
+
+// absInt is the absolute value of a whole number.
+func absInt(x int) int {
+	if x < 0 {
+		return -x
+	}
+	return x
+}
+
+// units words a gap in the units of a figure: "126", "1 cluster",
+// "12 events" (participants and pairs go without a unit, as the figures
+// they separate are written).
+func (rc *recheck) units(name string, x int) string {
+	switch name {
+	case "events":
+		if x == 1 {
+			return "1 event"
+		}
+		return count(x) + " events"
+	case "clusters":
+		if x == 1 {
+			return "1 cluster"
+		}
+		return count(x) + " clusters"
+	}
+	return count(x)
 }
 
 // noSlipNote says that no slip reproduces the stated figures.

@@ -25,7 +25,7 @@ var slipIDs = []string{
 	"continuity-added", "odds-ratio-as-risk-ratio", "design-effect-ignored",
 	"power-90-as-80", "power-80-as-90", "normal-instead-of-t",
 	"ratio-ignored", "variance-not-doubled", "relative-as-absolute",
-	"absolute-as-relative", "events-as-participants",
+	"absolute-as-relative", "events-as-participants", "multiplicity-ignored",
 }
 
 // correctID is the row of the protocol with no slip: its stated figure is

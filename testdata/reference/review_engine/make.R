@@ -149,6 +149,27 @@ add("survey_total", up(n0 * 1.5), "ceiling(qnorm(0.975)^2 * 0.3 * 0.7 / 0.05^2 *
 add("survey_invite", up(up(n0 * 1.5) / 0.8), "ceiling(survey_total / (1 - 0.2))")
 add("survey_design_effect_ignored_total", up(n0), "ceiling(qnorm(0.975)^2 * 0.3 * 0.7 / 0.05^2), no design effect")
 
+## Several arms: three arms each against the control (two comparisons),
+## control risk 0.30, risk ratio 0.7 (p1 0.21), fleiss-cc. The plan divides
+## alpha among the comparisons (Bonferroni; Dunn 1961): each at 0.05 / 2 =
+## 0.025 two-sided. multiplicity-ignored sizes each comparison at the
+## stated 0.05 two-sided; one-sided-alpha (0.05 one-sided, divided by 2:
+## 0.025 one-sided) has the same z_a = qnorm(0.975), so the two tie.
+cat("== several arms: alpha divided among the comparisons\n")
+add("multiplicity_correct_n", up(n_fleiss_cc(0.21, 0.30, alpha = 0.025)),
+    "3 arms each vs control: ceiling Fleiss-Tytun-Ury n(0.21, 0.30) at alpha 0.05 / 2 = 0.025 two-sided (Bonferroni)")
+add("multiplicity_ignored_n", up(n_fleiss_cc(0.21, 0.30, alpha = 0.05)),
+    "3 arms, alpha not divided: ceiling Fleiss-Tytun-Ury n(0.21, 0.30) at alpha 0.05 two-sided per comparison")
+add("multiplicity_one_sided_n", up(n_fleiss_cc(0.21, 0.30, alpha = 0.025, sides = 1)),
+    "3 arms, alpha 0.05 one-sided divided by 2: ceiling Fleiss-Tytun-Ury n(0.21, 0.30) at alpha 0.025 one-sided (z_a = qnorm(0.975))")
+stopifnot(up(n_fleiss_cc(0.21, 0.30, alpha = 0.05)) == up(n_fleiss_cc(0.21, 0.30, alpha = 0.025, sides = 1)))
+
+## Cluster trial of the means above (difference 5, SD 12), clusters of 20:
+## the clusters per arm the individual-level t answer fills when the design
+## effect is left out, ceiling(92 / 20) (design-effect-ignored).
+add("design_effect_ignored_clusters", up(up(pt) / 20),
+    "ceiling(ceiling(power.t.test(delta=5, sd=12, sig.level=0.05, power=0.8, strict=TRUE)$n) / 20)")
+
 out <- do.call(rbind, rows)
 write.table(out, "cases.tsv", sep = "\t", quote = FALSE, row.names = FALSE)
 cat(sprintf("wrote cases.tsv (%d rows)\n", nrow(out)))

@@ -289,6 +289,18 @@ add("events-as-participants", "events-as-participants.yaml", "total", ev, sum(go
     "the events required reported as the participants required",
     "Schoenfeld 1983 events, Lachin-Foulkes 1986 P; HR=0.7 median=24 accrual=18 follow_up=12 alpha=0.05 two-sided power=0.8")
 
+# 18. multiplicity-ignored: trial of three arms, every pair compared (3
+# comparisons), control 0.20, risk ratio 0.5 (p1 0.10), fleiss-cc. The plan
+# tests each comparison at alpha / 3 (Bonferroni; Dunn 1961, J Am Stat
+# Assoc 56:52); the slip sizes each at the stated alpha 0.05.
+p2 <- 0.20; p1 <- 0.10; k <- 3
+good <- groups(nstar_bin(p1, p2, alpha = 0.05 / k))
+bad <- groups(nstar_bin(p1, p2, alpha = 0.05))
+add("multiplicity-ignored", "multiplicity-ignored.yaml", "n", bad[1], good[1],
+    power_bin(p1, p2, bad[1], bad[2], alpha = 0.05 / k),
+    "each of the 3 comparisons sized at the stated alpha 0.05 in place of 0.05 / 3 (Bonferroni)",
+    "Fleiss-Tytun-Ury 1980 cc; p1=0.10 p2=0.20 r=1 two-sided power=0.8; slip alpha 0.05, correct alpha 0.05/3 per comparison")
+
 out <- do.call(rbind, rows)
 write.table(out, file = "slips.tsv", sep = "\t", quote = FALSE, row.names = FALSE)
 cat("\n"); print(sessionInfo()$R.version$version.string)
