@@ -13,17 +13,104 @@ import (
 // detectable effect, is answered for every method alike by searching the
 // effect at which power reaches the target (see detectEffect), so that the
 // three answers can never disagree.
-type calculator interface {
-	// nStar is the unrounded first-group size at the target power; it
-	// records its steps on tr.
-	nStar(target float64, tr *trail) (float64, error)
-	// power at effective sizes n1 and n2.
-	power(n1, n2 float64) float64
-	// powerName names the power computation in the steps.
-	powerName() string
-	// params names the values, other than the sizes, that the size and
-	// power computations use, for the steps.
-	params() []Input
+//
+// It is one of the method families' calculators (binaryCalc, marginCalc,
+// meansCalc, survivalCalc), held by value rather than behind an interface:
+// a sweep builds one for each of its points, and a search for the
+// detectable effect one at each step, without allocating.
+type calculator struct {
+	kind calcKind
+	s    *Spec
+	id   string
+	// method is the family's method: a power.Method, power.MarginMethod,
+	// power.MeansMethod or power.EventsMethod.
+	method int
+	e      effects              // binary, margin and survival
+	mc     power.MeanComparison // means
+}
+
+// calcKind names a method family's calculator.
+type calcKind uint8
+
+const (
+	calcBinary calcKind = iota
+	calcMargin
+	calcMeans
+	calcSurvival
+)
+
+// The method families' calculators are the calculator under other names,
+// so that dispatching to one is a conversion of its pointer.
+type (
+	// binaryCalc serves the superiority methods for two risks.
+	binaryCalc calculator
+	// marginCalc serves non-inferiority and equivalence for two risks, on
+	// the difference or the ratio scale.
+	marginCalc calculator
+	// meansCalc serves the z and t methods.
+	meansCalc calculator
+	// survivalCalc serves the events methods, converting events to
+	// participants through each arm's probability of an observed event.
+	survivalCalc calculator
+)
+
+// survival returns the survival calculator, when c is one.
+func (c *calculator) survival() (*survivalCalc, bool) {
+	return (*survivalCalc)(c), c.kind == calcSurvival
+}
+
+// nStar is the unrounded first-group size at the target power; it records
+// its steps on tr.
+func (c *calculator) nStar(target float64, tr *trail) (float64, error) {
+	switch c.kind {
+	case calcMargin:
+		return (*marginCalc)(c).nStar(target, tr)
+	case calcMeans:
+		return (*meansCalc)(c).nStar(target, tr)
+	case calcSurvival:
+		return (*survivalCalc)(c).nStar(target, tr)
+	}
+	return (*binaryCalc)(c).nStar(target, tr)
+}
+
+// power is the power at effective sizes n1 and n2.
+func (c *calculator) power(n1, n2 float64) float64 {
+	switch c.kind {
+	case calcMargin:
+		return (*marginCalc)(c).power(n1, n2)
+	case calcMeans:
+		return (*meansCalc)(c).power(n1, n2)
+	case calcSurvival:
+		return (*survivalCalc)(c).power(n1, n2)
+	}
+	return (*binaryCalc)(c).power(n1, n2)
+}
+
+// powerName names the power computation in the steps.
+func (c *calculator) powerName() string {
+	switch c.kind {
+	case calcMargin:
+		return (*marginCalc)(c).powerName()
+	case calcMeans:
+		return (*meansCalc)(c).powerName()
+	case calcSurvival:
+		return (*survivalCalc)(c).powerName()
+	}
+	return (*binaryCalc)(c).powerName()
+}
+
+// params names the values, other than the sizes, that the size and power
+// computations use, for the steps.
+func (c *calculator) params() []Input {
+	switch c.kind {
+	case calcMargin:
+		return (*marginCalc)(c).params()
+	case calcMeans:
+		return (*meansCalc)(c).params()
+	case calcSurvival:
+		return (*survivalCalc)(c).params()
+	}
+	return (*binaryCalc)(c).params()
 }
 
 // effects holds the effect an analysis sees: the planned (undiluted) effect
@@ -92,13 +179,13 @@ func newCalculator(s *Spec, m *MethodInfo, e effects) calculator {
 			// The cluster-level analysis is a t test whatever the method.
 			mm = power.T
 		}
-		return meansCalc{s: s, m: mm, id: m.ID, mc: meanComparison(s, e)}
+		return calculator{kind: calcMeans, s: s, id: m.ID, method: int(mm), mc: meanComparison(s, e)}
 	case s.Outcome == "time-to-event":
-		return survivalCalc{s: s, m: m.events, id: m.ID, e: e}
+		return calculator{kind: calcSurvival, s: s, id: m.ID, method: int(m.events), e: e}
 	case m.margin != 0:
-		return marginCalc{s: s, m: m.margin, id: m.ID, e: e}
+		return calculator{kind: calcMargin, s: s, id: m.ID, method: int(m.margin), e: e}
 	}
-	return binaryCalc{s: s, m: m.engine, id: m.ID, e: e}
+	return calculator{kind: calcBinary, s: s, id: m.ID, method: int(m.engine), e: e}
 }
 
 // alphaInput names the alpha of one comparison for the steps.
@@ -117,20 +204,12 @@ func riskInputs(e effects) []Input {
 	return []Input{in("first_risk", e.p1), in("second_risk", e.p2)}
 }
 
-// binaryCalc serves the superiority methods for two risks.
-type binaryCalc struct {
-	s  *Spec
-	m  power.Method
-	id string
-	e  effects
-}
-
-func (c binaryCalc) tp() power.TwoProportions {
+func (c *binaryCalc) tp() power.TwoProportions {
 	return power.TwoProportions{P1: c.e.p1, P2: c.e.p2, Alpha: c.e.alpha, Sides: c.s.Sides}
 }
 
-func (c binaryCalc) nStar(target float64, tr *trail) (float64, error) {
-	n, err := c.m.N(c.tp(), c.s.Ratio, target)
+func (c *binaryCalc) nStar(target float64, tr *trail) (float64, error) {
+	n, err := power.Method(c.method).N(c.tp(), c.s.Ratio, target)
 	if err == nil && tr != nil {
 		ins := append(c.params(), in("target_power", target), in("ratio", c.s.Ratio))
 		tr.add("n_star", fmt.Sprintf("the unrounded size of the first group from %s", MethodByID(c.id).Name), n, ins...)
@@ -138,18 +217,18 @@ func (c binaryCalc) nStar(target float64, tr *trail) (float64, error) {
 	return n, err
 }
 
-func (c binaryCalc) params() []Input {
+func (c *binaryCalc) params() []Input {
 	return append(riskInputs(c.e), alphaInput(c.s, c.e), inInt("sides", c.s.Sides))
 }
 
-func (c binaryCalc) power(n1, n2 float64) float64 {
+func (c *binaryCalc) power(n1, n2 float64) float64 {
 	if c.e.clusterK[0] > 0 {
 		return clusterTBinary(c.e, c.s.Sides, n1, n2)
 	}
-	return c.m.Power(c.tp(), n1, n2)
+	return power.Method(c.method).Power(c.tp(), n1, n2)
 }
 
-func (c binaryCalc) powerName() string {
+func (c *binaryCalc) powerName() string {
 	if c.e.clusterK[0] > 0 {
 		return "the power of a t test on cluster proportions with clusters_first + clusters_second − 2 degrees of freedom"
 	}
@@ -163,26 +242,17 @@ func clusterTBinary(e effects, sides int, n1, n2 float64) float64 {
 	return power.TTestPower(math.Abs(e.p1-e.p2)/se, float64(e.clusterK[0]+e.clusterK[1]-2), e.alpha, sides)
 }
 
-// marginCalc serves non-inferiority and equivalence for two risks, on the
-// difference or the ratio scale.
-type marginCalc struct {
-	s  *Spec
-	m  power.MarginMethod
-	id string
-	e  effects
-}
-
 // d0 is the margin as a signed difference p1 − p2 under the null.
-func (c marginCalc) d0() float64 {
+func (c *marginCalc) d0() float64 {
 	if c.s.HigherIsBetter {
 		return -c.s.Margin
 	}
 	return c.s.Margin
 }
 
-func (c marginCalc) ratio() bool { return c.s.MarginScale == "ratio" }
+func (c *marginCalc) ratio() bool { return c.s.MarginScale == "ratio" }
 
-func (c marginCalc) nStar(target float64, tr *trail) (float64, error) {
+func (c *marginCalc) nStar(target float64, tr *trail) (float64, error) {
 	var n float64
 	var err error
 	switch {
@@ -191,9 +261,9 @@ func (c marginCalc) nStar(target float64, tr *trail) (float64, error) {
 	case c.ratio():
 		n, err = power.RatioNonInferiorityN(c.e.p1, c.e.p2, c.s.Ratio, c.s.Margin, c.e.alpha, target)
 	case c.s.Hypothesis == "equivalence":
-		n, err = c.m.EquivalenceN(c.e.p1, c.e.p2, c.s.Ratio, c.s.Margin, c.e.alpha, target)
+		n, err = power.MarginMethod(c.method).EquivalenceN(c.e.p1, c.e.p2, c.s.Ratio, c.s.Margin, c.e.alpha, target)
 	default:
-		n, err = c.m.NonInferiorityN(c.e.p1, c.e.p2, c.s.Ratio, c.d0(), c.e.alpha, target)
+		n, err = power.MarginMethod(c.method).NonInferiorityN(c.e.p1, c.e.p2, c.s.Ratio, c.d0(), c.e.alpha, target)
 	}
 	if err == nil && tr != nil {
 		ins := append(c.params(), in("target_power", target), in("ratio", c.s.Ratio))
@@ -206,7 +276,7 @@ func (c marginCalc) nStar(target float64, tr *trail) (float64, error) {
 	return n, err
 }
 
-func (c marginCalc) params() []Input {
+func (c *marginCalc) params() []Input {
 	margin := in("margin", c.s.Margin)
 	if !c.ratio() && c.s.Hypothesis == "non-inferiority" {
 		margin = in("null_difference", c.d0())
@@ -214,7 +284,7 @@ func (c marginCalc) params() []Input {
 	return append(riskInputs(c.e), margin, alphaInput(c.s, c.e))
 }
 
-func (c marginCalc) power(n1, n2 float64) float64 {
+func (c *marginCalc) power(n1, n2 float64) float64 {
 	if c.e.clusterK[0] > 0 {
 		// A t test of the cluster proportions against the margin, on
 		// k1 + k2 − 2 degrees of freedom, with each arm's binomial
@@ -236,12 +306,12 @@ func (c marginCalc) power(n1, n2 float64) float64 {
 	case c.ratio():
 		return power.RatioNonInferiorityPower(c.e.p1, c.e.p2, n1, n2, c.s.Margin, c.e.alpha)
 	case c.s.Hypothesis == "equivalence":
-		return c.m.EquivalencePower(c.e.p1, c.e.p2, n1, n2, c.s.Margin, c.e.alpha)
+		return power.MarginMethod(c.method).EquivalencePower(c.e.p1, c.e.p2, n1, n2, c.s.Margin, c.e.alpha)
 	}
-	return c.m.NonInferiorityPower(c.e.p1, c.e.p2, n1, n2, c.d0(), c.e.alpha)
+	return power.MarginMethod(c.method).NonInferiorityPower(c.e.p1, c.e.p2, n1, n2, c.d0(), c.e.alpha)
 }
 
-func (c marginCalc) powerName() string {
+func (c *marginCalc) powerName() string {
 	if c.e.clusterK[0] > 0 {
 		return "the power of a t test of the cluster proportions against the margin with clusters_first + clusters_second − 2 degrees of freedom"
 	}
@@ -274,16 +344,8 @@ func meanComparison(s *Spec, e effects) power.MeanComparison {
 	return mc
 }
 
-// meansCalc serves the z and t methods.
-type meansCalc struct {
-	s  *Spec
-	m  power.MeansMethod
-	id string
-	mc power.MeanComparison
-}
-
-func (c meansCalc) nStar(target float64, tr *trail) (float64, error) {
-	n, err := c.m.N(c.mc, c.s.Ratio, target)
+func (c *meansCalc) nStar(target float64, tr *trail) (float64, error) {
+	n, err := power.MeansMethod(c.method).N(c.mc, c.s.Ratio, target)
 	if err == nil && tr != nil {
 		ins := append(c.params(), in("target_power", target), in("ratio", c.s.Ratio))
 		rule := fmt.Sprintf("the unrounded size of the first group from %s", MethodByID(c.id).Name)
@@ -295,7 +357,7 @@ func (c meansCalc) nStar(target float64, tr *trail) (float64, error) {
 	return n, err
 }
 
-func (c meansCalc) params() []Input {
+func (c *meansCalc) params() []Input {
 	name := "difference"
 	if c.s.NonAdherence > 0 || c.s.Contamination > 0 {
 		name = "diluted_difference"
@@ -314,9 +376,11 @@ func (c meansCalc) params() []Input {
 	return ins
 }
 
-func (c meansCalc) power(n1, n2 float64) float64 { return c.m.Power(c.mc, n1, n2) }
+func (c *meansCalc) power(n1, n2 float64) float64 {
+	return power.MeansMethod(c.method).Power(c.mc, n1, n2)
+}
 
-func (c meansCalc) powerName() string {
+func (c *meansCalc) powerName() string {
 	if c.mc.DF > 0 {
 		return "the power of a t test on cluster means with clusters_first + clusters_second − 2 degrees of freedom"
 	}
@@ -384,16 +448,7 @@ func meansEffect(s *Spec, d float64) *Effect {
 	return &Effect{MeanDifference: ptr(d), StandardizedDifference: ptr(d / sd)}
 }
 
-// survivalCalc serves the events methods, converting events to
-// participants through each arm's probability of an observed event.
-type survivalCalc struct {
-	s  *Spec
-	m  power.EventsMethod
-	id string
-	e  effects
-}
-
-func (c survivalCalc) entry() power.Entry {
+func (c *survivalCalc) entry() power.Entry {
 	return power.Entry{Accrual: c.s.Accrual, FollowUp: c.s.FollowUp, Dropout: power.DropoutHazard(c.s.Dropout)}
 }
 
@@ -402,7 +457,7 @@ func (c survivalCalc) entry() power.Entry {
 // receiving the intervention (hazard HR·h) and those not (hazard h):
 //
 //	P1 = (1 − na) P(HR h) + na P(h),  P2 = (1 − c) P(h) + c P(HR h)
-func (c survivalCalc) probabilities() (float64, float64) {
+func (c *survivalCalc) probabilities() (float64, float64) {
 	en := c.entry()
 	h := c.s.ControlHazard
 	pi, pc := power.EventProbability(c.e.plannedHR*h, en), power.EventProbability(h, en)
@@ -410,17 +465,17 @@ func (c survivalCalc) probabilities() (float64, float64) {
 }
 
 // events is the unrounded number of events for the target power.
-func (c survivalCalc) events(target float64) (float64, error) {
+func (c *survivalCalc) events(target float64) (float64, error) {
 	switch c.s.Hypothesis {
 	case "non-inferiority":
-		return c.m.NonInferiorityEvents(c.e.hr, c.s.Margin, c.s.Ratio, c.e.alpha, target)
+		return power.EventsMethod(c.method).NonInferiorityEvents(c.e.hr, c.s.Margin, c.s.Ratio, c.e.alpha, target)
 	case "equivalence":
-		return c.m.EquivalenceEvents(c.e.hr, c.s.Margin, c.s.Ratio, c.e.alpha, target)
+		return power.EventsMethod(c.method).EquivalenceEvents(c.e.hr, c.s.Margin, c.s.Ratio, c.e.alpha, target)
 	}
-	return c.m.Events(c.e.hr, c.s.Ratio, c.e.alpha, c.s.Sides, target)
+	return power.EventsMethod(c.method).Events(c.e.hr, c.s.Ratio, c.e.alpha, c.s.Sides, target)
 }
 
-func (c survivalCalc) nStar(target float64, tr *trail) (float64, error) {
+func (c *survivalCalc) nStar(target float64, tr *trail) (float64, error) {
 	d, err := c.events(target)
 	if err != nil {
 		return math.NaN(), err
@@ -443,7 +498,7 @@ func (c survivalCalc) nStar(target float64, tr *trail) (float64, error) {
 		d/(p1+r*p2), in("events_star", d), in("event_probability_first", p1), in("event_probability_second", p2), in("ratio", r)), nil
 }
 
-func (c survivalCalc) params() []Input {
+func (c *survivalCalc) params() []Input {
 	hrName := "hazard_ratio"
 	if c.e.diluted {
 		hrName = "diluted_hazard_ratio"
@@ -460,7 +515,7 @@ func (c survivalCalc) params() []Input {
 }
 
 // recordProbabilities records the event probabilities of both arms.
-func (c survivalCalc) recordProbabilities(tr *trail, p1, p2 float64) {
+func (c *survivalCalc) recordProbabilities(tr *trail, p1, p2 float64) {
 	rule := "the probability of an observed event under exponential survival with uniform entry over the accrual period, follow-up after the last entry and exponential dropout (Lachin & Foulkes 1986)"
 	if c.e.diluted {
 		rule += ", mixed over those receiving the intervention and those not"
@@ -476,22 +531,22 @@ func (c survivalCalc) recordProbabilities(tr *trail, p1, p2 float64) {
 	tr.add("event_probability_second", rule, p2, ins...)
 }
 
-func (c survivalCalc) expectedEvents(n1, n2 float64) float64 {
+func (c *survivalCalc) expectedEvents(n1, n2 float64) float64 {
 	p1, p2 := c.probabilities()
 	return n1*p1 + n2*p2
 }
 
-func (c survivalCalc) power(n1, n2 float64) float64 {
+func (c *survivalCalc) power(n1, n2 float64) float64 {
 	d := c.expectedEvents(n1, n2)
 	switch c.s.Hypothesis {
 	case "non-inferiority":
-		return c.m.NonInferiorityEventsPower(c.e.hr, c.s.Margin, n2/n1, c.e.alpha, d)
+		return power.EventsMethod(c.method).NonInferiorityEventsPower(c.e.hr, c.s.Margin, n2/n1, c.e.alpha, d)
 	case "equivalence":
-		return c.m.EquivalenceEventsPower(c.e.hr, c.s.Margin, n2/n1, c.e.alpha, d)
+		return power.EventsMethod(c.method).EquivalenceEventsPower(c.e.hr, c.s.Margin, n2/n1, c.e.alpha, d)
 	}
-	return c.m.EventsPower(c.e.hr, n2/n1, c.e.alpha, c.s.Sides, d)
+	return power.EventsMethod(c.method).EventsPower(c.e.hr, n2/n1, c.e.alpha, c.s.Sides, d)
 }
 
-func (c survivalCalc) powerName() string {
+func (c *survivalCalc) powerName() string {
 	return "the power from " + MethodByID(c.id).Name + " with the expected events"
 }

@@ -275,14 +275,9 @@ func (in *ReviewInput) Value(key string) (string, bool) {
 // readRaw reads the YAML of a specification and applies the overrides,
 // without validating the values.
 func readRaw(file string, data []byte, sets []string) (*reader, error) {
-	root, err := readDoc(file, data)
+	r, err := readSpec(file, data, sets)
 	if err != nil {
 		return nil, err
-	}
-	r := newReader(file)
-	r.collect(root, file)
-	for _, s := range sets {
-		r.applySet(s)
 	}
 	if len(r.errs) > 0 {
 		// Report every problem of the specification, as plan would.
@@ -337,14 +332,7 @@ func (r *reader) applyEdit(ed Edit) {
 		node = doc.Content[0]
 	}
 	if nested {
-		if r.nested[head] == nil {
-			r.nested[head] = map[string]*entry{}
-			if _, ok := r.entries[head]; !ok {
-				e := &entry{key: head, node: &yaml.Node{Kind: yaml.MappingNode}, file: r.file, keyPos: len(r.order)}
-				r.order = append(r.order, e)
-				r.entries[head] = e
-			}
-		}
+		r.ensureNested(head, r.file, false)
 		r.nested[head][sub] = &entry{key: ed.Key, node: node, file: r.file}
 		return
 	}

@@ -59,7 +59,8 @@ func detectable(s *Spec, m *MethodInfo, e effects, sz sizes, tr *trail) *Detecta
 			continue
 		}
 		side := map[int]string{-1: "lower", 1: "upper"}[dir]
-		rule := "the " + scaleName(s) + " nearest no difference, " + map[int]string{-1: "below", 1: "above"}[dir] + " it, at which " + newCalculator(s, m, e).powerName() + " reaches the target power"
+		c := newCalculator(s, m, e)
+		rule := "the " + scaleName(s) + " nearest no difference, " + map[int]string{-1: "below", 1: "above"}[dir] + " it, at which " + c.powerName() + " reaches the target power"
 		if e.diluted {
 			rule += " once diluted by non-adherence and contamination"
 		}
@@ -143,7 +144,8 @@ func detectEffect(s *Spec, m *MethodInfo, base effects, sz sizes, dir int) (floa
 	// target, so that restating it on another scale (p1 = ratio × p2, and
 	// back) cannot leave its power a rounding error short of the target.
 	f := func(x float64) float64 {
-		return newCalculator(s, m, at(x)).power(sz.eff[0], sz.eff[1]) - s.Power - 1e-12
+		c := newCalculator(s, m, at(x))
+		return c.power(sz.eff[0], sz.eff[1]) - s.Power - 1e-12
 	}
 	var from, to float64
 	switch s.Outcome {

@@ -140,11 +140,13 @@ func Exact(s *Spec, res *Result) error {
 	n2 := tr.addInt("analysable_second", "ceil(ratio × analysable_first)", ceilTol(s.Ratio*float64(n1)-1e-9), in("ratio", s.Ratio), inInt("analysable_first", n1))
 	a.ExactPower = ptr(st.Powers[n1-st.Low])
 	a.NStar = 0
-	sz := sizes{n: []int{n1, n2}}
-	sz.enrol = []int{enrolFor(s, "enrol_first", n1, tr), enrolFor(s, "enrol_second", n2, tr)}
-	fillSizes(s, a, sz)
-	recordTotals(s, tr, "analysable", sz.n)
-	recordTotals(s, tr, "enrol", sz.enrol)
+	e1 := enrolFor(s, "enrol_first", n1, tr)
+	sz := sizes{k: 2, v: [4]int{n1, n2, e1, enrolFor(s, "enrol_second", n2, tr)}}
+	// New slices: the closed form's, now an alternative, keep theirs.
+	a.N, a.Enrol = nil, nil
+	fillSizes(s, a, &sz)
+	recordTotals(s, tr, "analysable", sz.n())
+	recordTotals(s, tr, "enrol", sz.enrol())
 	a.AchievedPower = a.ExactPower
 	tr.add("achieved_power", "the exact power of "+TestName(s.Test)+" at the analysable sizes (power_at_output of the search)", *a.ExactPower,
 		append([]Input{inInt("analysable_first", n1), inInt("analysable_second", n2)}, params...)...)

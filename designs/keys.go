@@ -1,9 +1,12 @@
 package designs
 
 import (
+	"math"
 	"slices"
 	"sort"
 	"strings"
+
+	"enough/power"
 )
 
 // kind is the YAML type a key takes.
@@ -54,6 +57,38 @@ func inTime(x float64) bool { return x >= MinTime && x <= MaxTime }
 
 // inTime0 says whether x is 0 or a time within the named limits.
 func inTime0(x float64) bool { return x == 0 || inTime(x) }
+
+// The ranges of the other numeric keys, shared by the reader
+// (validate.go) and a sweep's fast path (base.go), so that both accept
+// exactly the same values.
+
+// inAlpha is the range of alpha: from power.MinAlpha to 0.5.
+func inAlpha(x float64) bool { return x >= power.MinAlpha && x <= 0.5 }
+
+// inFraction0 is [0, 1): attrition, dropout, non_adherence, contamination,
+// baseline_correlation and cluster.icc.
+func inFraction0(x float64) bool { return x >= 0 && x < 1 }
+
+// inOpen1 is (−1, 1): risk and prevalence differences, within_correlation.
+func inOpen1(x float64) bool { return x > -1 && x < 1 }
+
+// inDesignEffect is the range of design_effect: from 1 to 1000.
+func inDesignEffect(x float64) bool { return x >= 1 && x <= 1000 }
+
+// inConfidence is the range of a survey's confidence: [0.5, 1).
+func inConfidence(x float64) bool { return x >= 0.5 && x < 1 }
+
+// inSurveyMargin is the range of a survey's margin: (0, 0.5).
+func inSurveyMargin(x float64) bool { return x > 0 && x < 0.5 }
+
+// inPositive is a finite number above 0: standard deviations.
+func inPositive(x float64) bool { return x > 0 && !math.IsInf(x, 0) }
+
+// inClusterSize is the range of cluster.size: from 2 to 1,000,000.
+func inClusterSize(x float64) bool { return x >= 2 && x <= 1e6 }
+
+// inSizeCV is the range of cluster.size_cv: from 0 to 10.
+func inSizeCV(x float64) bool { return x >= 0 && x <= 10 }
 
 // Allowed texts of the named limits.
 const (
@@ -317,19 +352,17 @@ var fractionKeys = map[string]bool{
 // as a percentage is suggested only when it would be accepted. alpha is
 // the level in force, which power must exceed (0 when not known).
 func fractionRange(key string, alpha float64) func(float64) bool {
-	from0 := func(x float64) bool { return x >= 0 && x < 1 }
-	pm1 := func(x float64) bool { return x > -1 && x < 1 }
 	switch key {
 	case "alpha":
-		return func(x float64) bool { return x >= 1e-20 && x <= 0.5 } // power.MinAlpha
+		return inAlpha
 	case "power":
 		return func(x float64) bool { return x > alpha && x <= MaxPower }
 	case "confidence":
-		return func(x float64) bool { return x >= 0.5 && x < 1 }
+		return inConfidence
 	case "attrition", "dropout", "non_adherence", "contamination", "baseline_correlation", "cluster.icc":
-		return from0
+		return inFraction0
 	case "risk_difference", "prevalence_difference", "within_correlation":
-		return pm1
+		return inOpen1
 	}
 	return inRisk
 }

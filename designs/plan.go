@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"regexp"
+	"slices"
 	"strconv"
 	"strings"
 	"unicode"
@@ -26,7 +27,9 @@ func ceilTol(x float64) int {
 // noise is the rounding tolerance at x: relative 1e-9, but never more than
 // 1e-7 in absolute terms, so that large sizes are still rounded up.
 func noise(x float64) float64 {
-	return math.Min(roundTol*math.Max(1, math.Abs(x)), 1e-7)
+	// The built-in min and max treat NaN and signed zeros as math.Min and
+	// math.Max do, and are inlined: this runs for every size rounded.
+	return min(roundTol*max(1, math.Abs(x)), 1e-7)
 }
 
 // floorTol rounds x down to a whole number, ignoring noise below roundTol.
@@ -164,12 +167,29 @@ func assumptions(s *Spec) []Assumption {
 	return out
 }
 
-// sizes holds the group sizes of a two-group plan.
+// sizes holds the group sizes of a plan, by value: a point of a sweep
+// allocates nothing for them (fillSizes copies them into the answer).
 type sizes struct {
-	n, enrol []int
+	// k is the number of groups: 2, or 1 for pairs.
+	k int
+	// v holds the analysable sizes of the groups, then their enrolment:
+	// first, second, enrolled first, enrolled second.
+	v [4]int
 	// eff are the effective sizes (analysable / design effect) at which
 	// power is evaluated.
 	eff [2]float64
+}
+
+// n returns the analysable sizes, one per group (a view of z).
+func (z *sizes) n() []int { return z.v[0:z.k:z.k] }
+
+// enrol returns the enrolment, one per group (a view of z).
+func (z *sizes) enrol() []int { return z.v[2 : 2+z.k : 2+z.k] }
+
+// oneGroup returns the sizes of pairs: n analysable of e enrolled, with
+// the design effect deff.
+func oneGroup(n, e int, deff float64) sizes {
+	return sizes{k: 1, v: [4]int{n, 0, e, 0}, eff: [2]float64{float64(n) / deff, float64(n) / deff}}
 }
 
 // checkSizes refuses sizes that are not finite, exceed MaxSize or round to
@@ -218,11 +238,7 @@ func enrolFor(s *Spec, name string, n int, tr *trail) int {
 // ceil(analysable / (1 − attrition)).
 func restFromNStar(s *Spec, nstar float64, n1 int, tr *trail) sizes {
 	if s.Pairing == "paired" {
-		return sizes{
-			n:     []int{n1},
-			enrol: []int{enrolFor(s, "enrol_first", n1, tr)},
-			eff:   [2]float64{float64(n1) / s.DesignEffect, float64(n1) / s.DesignEffect},
-		}
+		return oneGroup(n1, enrolFor(s, "enrol_first", n1, tr), s.DesignEffect)
 	}
 	rule := "ceil(ratio × n_star × design_effect)"
 	if least(s) > 1 {
@@ -230,11 +246,13 @@ func restFromNStar(s *Spec, nstar float64, n1 int, tr *trail) sizes {
 	}
 	n2 := tr.addInt("analysable_second", rule, max(least(s), ceilTol(s.Ratio*nstar*s.DesignEffect)),
 		in("ratio", s.Ratio), in("n_star", nstar), in("design_effect", s.DesignEffect))
-	return sizes{
-		n:     []int{n1, n2},
-		enrol: []int{enrolFor(s, "enrol_first", n1, tr), enrolFor(s, "enrol_second", n2, tr)},
-		eff:   [2]float64{float64(n1) / s.DesignEffect, float64(n2) / s.DesignEffect},
-	}
+	return twoGroups(n1, n2, enrolFor(s, "enrol_first", n1, tr), enrolFor(s, "enrol_second", n2, tr), s.DesignEffect)
+}
+
+// twoGroups returns the sizes of two groups: analysable n1 and n2,
+// enrolled e1 and e2, with the design effect deff.
+func twoGroups(n1, n2, e1, e2 int, deff float64) sizes {
+	return sizes{k: 2, v: [4]int{n1, n2, e1, e2}, eff: [2]float64{float64(n1) / deff, float64(n2) / deff}}
 }
 
 // sizesFromNStar applies the documented rounding and inflation order to the
@@ -251,8 +269,13 @@ func sizesFromNStar(s *Spec, nstar float64, tr *trail) (sizes, error) {
 // and effective sizes: analysable = floor(enrolment × (1 − attrition)).
 func sizesFromEnrolment(s *Spec, tr *trail) (sizes, error) {
 	var sz sizes
+	// Constant rules: a rule put together from pieces would be allocated
+	// at every call, even when a nil trail records nothing.
 	floorRule := func(name string) string {
-		return "floor(enrol_" + name + " × (1 − attrition))"
+		if name == "first" {
+			return "floor(enrol_first × (1 − attrition))"
+		}
+		return "floor(enrol_second × (1 − attrition))"
 	}
 	switch {
 	case s.Design == "cross-sectional":
@@ -263,8 +286,8 @@ func sizesFromEnrolment(s *Spec, tr *trail) (sizes, error) {
 		efirst := tr.addInt("enrol_first", "round(exposure_prevalence × total)", int(math.Round(e*float64(s.Total))), in("exposure_prevalence", e), inInt("total", s.Total))
 		esecond := tr.addInt("enrol_second", "total − enrol_first", s.Total-efirst, inInt("total", s.Total), inInt("enrol_first", efirst))
 		sz = sizes{
-			n:     []int{first, second},
-			enrol: []int{efirst, esecond},
+			k: 2,
+			v: [4]int{first, second, efirst, esecond},
 			eff: [2]float64{
 				tr.add("effective_first", "exposure_prevalence × analysable_total / design_effect", e*float64(a)/deff, in("exposure_prevalence", e), inInt("analysable_total", a), in("design_effect", deff)),
 				tr.add("effective_second", "(1 − exposure_prevalence) × analysable_total / design_effect", (1-e)*float64(a)/deff, in("exposure_prevalence", e), inInt("analysable_total", a), in("design_effect", deff)),
@@ -273,7 +296,7 @@ func sizesFromEnrolment(s *Spec, tr *trail) (sizes, error) {
 	case s.Pairing == "paired":
 		en := tr.addInt("enrol_first", "n, as given (pairs)", s.N, inInt("n", s.N))
 		a := tr.addInt("analysable_first", floorRule("first"), floorTol(float64(en)*(1-s.Attrition)), inInt("enrol_first", en), in("attrition", s.Attrition))
-		sz = sizes{n: []int{a}, enrol: []int{en}, eff: [2]float64{float64(a) / s.DesignEffect, float64(a) / s.DesignEffect}}
+		sz = oneGroup(a, en, s.DesignEffect)
 		recordEffective(s, tr, sz)
 	default:
 		if err := checkSizes(s, s.Ratio*float64(s.N)); err != nil {
@@ -288,11 +311,7 @@ func sizesFromEnrolment(s *Spec, tr *trail) (sizes, error) {
 		}
 		a1 := tr.addInt("analysable_first", floorRule("first"), floorTol(float64(e1)*(1-s.Attrition)), inInt("enrol_first", e1), in("attrition", s.Attrition))
 		a2 := tr.addInt("analysable_second", floorRule("second"), floorTol(float64(e2)*(1-s.Attrition)), inInt("enrol_second", e2), in("attrition", s.Attrition))
-		sz = sizes{
-			n:     []int{a1, a2},
-			enrol: []int{e1, e2},
-			eff:   [2]float64{float64(a1) / s.DesignEffect, float64(a2) / s.DesignEffect},
-		}
+		sz = twoGroups(a1, a2, e1, e2, s.DesignEffect)
 		recordEffective(s, tr, sz)
 	}
 	if !(sz.eff[0] >= float64(least(s)) && sz.eff[1] >= float64(least(s))) {
@@ -300,7 +319,7 @@ func sizesFromEnrolment(s *Spec, tr *trail) (sizes, error) {
 		if s.Design == "cross-sectional" {
 			key = "total"
 		}
-		return sz, &SpecError{File: s.File, Key: key, Msg: fmt.Sprintf("after attrition, design effect and allocation a group has fewer than %d analysable participants (%s); allowed: a larger %s", least(s), fmtSizes(sz.n), key)}
+		return sz, &SpecError{File: s.File, Key: key, Msg: fmt.Sprintf("after attrition, design effect and allocation a group has fewer than %d analysable participants (%s); allowed: a larger %s", least(s), fmtSizes(sz.n()), key)}
 	}
 	return sz, nil
 }
@@ -311,9 +330,9 @@ func recordEffective(s *Spec, tr *trail, sz sizes) {
 	if s.DesignEffect == 1 {
 		return
 	}
-	tr.add("effective_first", "analysable_first / design_effect", sz.eff[0], inInt("analysable_first", sz.n[0]), in("design_effect", s.DesignEffect))
-	if len(sz.n) == 2 {
-		tr.add("effective_second", "analysable_second / design_effect", sz.eff[1], inInt("analysable_second", sz.n[1]), in("design_effect", s.DesignEffect))
+	tr.add("effective_first", "analysable_first / design_effect", sz.eff[0], inInt("analysable_first", sz.n()[0]), in("design_effect", s.DesignEffect))
+	if len(sz.n()) == 2 {
+		tr.add("effective_second", "analysable_second / design_effect", sz.eff[1], inInt("analysable_second", sz.n()[1]), in("design_effect", s.DesignEffect))
 	}
 }
 
@@ -321,15 +340,15 @@ func recordEffective(s *Spec, tr *trail, sz sizes) {
 // sizes when the steps computed them, else the analysable ones.
 func sizeInputs(s *Spec, tr *trail, sz sizes) []Input {
 	if tr.has("effective_first") {
-		if len(sz.n) == 1 {
+		if len(sz.n()) == 1 {
 			return []Input{in("effective_first", sz.eff[0])}
 		}
 		return []Input{in("effective_first", sz.eff[0]), in("effective_second", sz.eff[1])}
 	}
-	if len(sz.n) == 1 {
-		return []Input{inInt("analysable_first", sz.n[0])}
+	if len(sz.n()) == 1 {
+		return []Input{inInt("analysable_first", sz.n()[0])}
 	}
-	return []Input{inInt("analysable_first", sz.n[0]), inInt("analysable_second", sz.n[1])}
+	return []Input{inInt("analysable_first", sz.n()[0]), inInt("analysable_second", sz.n()[1])}
 }
 
 func fmtSizes(n []int) string {
@@ -362,29 +381,37 @@ type solved struct {
 // cluster-level t test on k1 + k2 − 2 degrees of freedom (the search
 // starts at ceil(n* × design effect)). It records its steps on tr.
 func solveN(s *Spec, m *MethodInfo, e effects, tr *trail) (solved, error) {
-	calc := newCalculator(s, m, e)
-	nstar, err := calc.nStar(s.Power, tr)
+	var sv solved
+	err := solveNInto(&sv, s, m, e, tr)
+	return sv, err
+}
+
+// solveNInto is solveN into sv (no copy of the solution on the way).
+func solveNInto(sv *solved, s *Spec, m *MethodInfo, e effects, tr *trail) error {
+	sv.calc, sv.e = newCalculator(s, m, e), e
+	nstar, err := sv.calc.nStar(s.Power, tr)
 	if err != nil {
-		return solved{}, solveError(s, err)
+		return solveError(s, err)
 	}
+	sv.nstar = nstar
 	if s.Cluster == nil {
-		sz, err := sizesFromNStar(s, nstar, tr)
-		return solved{nstar, sz, calc, e}, err
+		sv.sz, err = sizesFromNStar(s, nstar, tr)
+		return err
 	}
 	f1, f2 := nstar*s.DesignEffect, s.Ratio*nstar*s.DesignEffect
 	if err := checkSizes(s, f1, f2, f1/(1-s.Attrition), f2/(1-s.Attrition)); err != nil {
-		return solved{}, err
+		return err
 	}
 	n1 := firstFromNStar(s, nstar, tr, "formula_first")
 	if s.Ratio*float64(n1) > MaxSize {
-		return solved{}, checkSizes(s, s.Ratio*float64(n1))
+		return checkSizes(s, s.Ratio*float64(n1))
 	}
 	// The smallest first-arm size, from the formula's upwards, whose
 	// clusters give the target power in a cluster-level t test.
 	at := func(n1 int) (sizes, effects, calculator) {
 		sz := clusterSizes(s, n1, nil)
 		ec := e
-		ec.clusterK = clustersFor(s, sz.enrol)
+		ec.clusterK = clustersFor(s, sz.enrol())
 		return sz, ec, newCalculator(s, m, ec)
 	}
 	powerAt := func(n1 int) float64 {
@@ -405,7 +432,7 @@ func solveN(s *Spec, m *MethodInfo, e effects, tr *trail) (solved, error) {
 		for step := 1; !ok(hi); step *= 2 {
 			lo, hi = hi, hi+step
 			if hi > MaxSize {
-				return solved{}, checkSizes(s, float64(hi))
+				return checkSizes(s, float64(hi))
 			}
 		}
 	}
@@ -424,9 +451,10 @@ func solveN(s *Spec, m *MethodInfo, e effects, tr *trail) (solved, error) {
 	n1 = tr.addInt("analysable_first", "the smallest first-arm size of at least cluster_minimum whose clusters (ceil(enrolment / cluster_size) per arm) reach the target power in a t test on cluster summaries with clusters_first + clusters_second − 2 degrees of freedom, the second arm being ceil(ratio × first); the search starts at formula_first, the individual-level answer", hi, ins...)
 	sz := clusterSizes(s, n1, tr)
 	ec := e
-	ec.clusterK = clustersFor(s, sz.enrol)
+	ec.clusterK = clustersFor(s, sz.enrol())
 	recordClusters(s, tr, sz, ec)
-	return solved{nstar, sz, newCalculator(s, m, ec), ec}, nil
+	sv.sz, sv.calc, sv.e = sz, newCalculator(s, m, ec), ec
+	return nil
 }
 
 // clustersFor returns the clusters per arm that an enrolment fills:
@@ -446,7 +474,7 @@ func recordClusters(s *Spec, tr *trail, sz sizes, e effects) {
 // recordClusterCounts records the clusters each arm's enrolment fills.
 func recordClusterCounts(s *Spec, tr *trail, sz sizes, e effects) {
 	for i, g := range []string{"first", "second"} {
-		tr.addInt("clusters_"+g, "ceil(enrol_"+g+" / cluster_size)", e.clusterK[i], inInt("enrol_"+g, sz.enrol[i]), in("cluster_size", s.Cluster.Size))
+		tr.addInt("clusters_"+g, "ceil(enrol_"+g+" / cluster_size)", e.clusterK[i], inInt("enrol_"+g, sz.enrol()[i]), in("cluster_size", s.Cluster.Size))
 	}
 }
 
@@ -454,11 +482,7 @@ func recordClusterCounts(s *Spec, tr *trail, sz sizes, e effects) {
 // participants in the first arm: the second ceil(ratio × n1).
 func clusterSizes(s *Spec, n1 int, tr *trail) sizes {
 	n2 := tr.addInt("analysable_second", "ceil(ratio × analysable_first)", ceilTol(s.Ratio*float64(n1)), in("ratio", s.Ratio), inInt("analysable_first", n1))
-	return sizes{
-		n:     []int{n1, n2},
-		enrol: []int{enrolFor(s, "enrol_first", n1, tr), enrolFor(s, "enrol_second", n2, tr)},
-		eff:   [2]float64{float64(n1) / s.DesignEffect, float64(n2) / s.DesignEffect},
-	}
+	return twoGroups(n1, n2, enrolFor(s, "enrol_first", n1, tr), enrolFor(s, "enrol_second", n2, tr), s.DesignEffect)
 }
 
 // atEnrolment builds the calculator for sizes given by the specification
@@ -466,12 +490,12 @@ func clusterSizes(s *Spec, n1 int, tr *trail) sizes {
 func atEnrolment(s *Spec, m *MethodInfo, e effects, tr *trail) (sizes, calculator, effects, error) {
 	sz, err := sizesFromEnrolment(s, tr)
 	if err != nil {
-		return sz, nil, e, err
+		return sz, calculator{}, e, err
 	}
 	if s.Cluster != nil {
-		e.clusterK = clustersFor(s, sz.enrol)
+		e.clusterK = clustersFor(s, sz.enrol())
 		if e.clusterK[0] < 2 || e.clusterK[1] < 2 {
-			return sz, nil, e, &SpecError{File: s.File, Key: "n", Msg: fmt.Sprintf("%s analysable participants make fewer than two clusters of %g in an arm; allowed: at least two clusters per arm", fmtSizes(sz.n), s.Cluster.Size)}
+			return sz, calculator{}, e, &SpecError{File: s.File, Key: "n", Msg: fmt.Sprintf("%s analysable participants make fewer than two clusters of %g in an arm; allowed: at least two clusters per arm", fmtSizes(sz.n()), s.Cluster.Size)}
 		}
 		recordClusterCounts(s, tr, sz, e)
 	}
@@ -514,17 +538,22 @@ func recordEffects(s *Spec, tr *trail, e effects) {
 }
 
 // recordPower records the totals and the power at the rounded sizes.
-func recordPower(s *Spec, tr *trail, sv solved, what string) float64 {
+func recordPower(s *Spec, tr *trail, sv *solved, what string) float64 {
 	sz := sv.sz
+	if tr == nil {
+		// Nothing to record (Quick): the same power, without building the
+		// steps' inputs.
+		return sv.calc.power(sz.eff[0], sz.eff[1])
+	}
 	if s.Solve == "n" {
 		if s.Cluster == nil {
 			recordEffective(s, tr, sz)
 		}
-		recordTotals(s, tr, "analysable", sz.n)
-		recordTotals(s, tr, "enrol", sz.enrol)
+		recordTotals(s, tr, "analysable", sz.n())
+		recordTotals(s, tr, "enrol", sz.enrol())
 	}
 	ins := sizeInputs(s, tr, sz)
-	if sc, ok := sv.calc.(survivalCalc); ok {
+	if sc, ok := sv.calc.survival(); ok {
 		p1, p2 := sc.probabilities()
 		if s.Solve != "n" {
 			sc.recordProbabilities(tr, p1, p2)
@@ -562,6 +591,71 @@ func recordTotals(s *Spec, tr *trail, what string, n []int) {
 	}
 }
 
+// solveCore computes the figures of a two-group answer that Plan and Quick
+// share (one truth: the sizes, the unrounded n*, the achieved power or the
+// detectable effect, and the pairs, events and clusters), recording its
+// steps on tr (nil: none, as Quick asks). It puts the main method's
+// solution in main and returns the planned effects (before any clusters),
+// from which Plan adds the alternatives, notes and warnings.
+func solveCore(s *Spec, m *MethodInfo, ans *Answer, tr *trail, main *solved) (effects, error) {
+	e := plannedEffects(s)
+	recordEffects(s, tr, e)
+	switch s.Solve {
+	case "n":
+		if err := solveNInto(main, s, m, e, tr); err != nil {
+			return e, err
+		}
+		ans.NStar = main.nstar
+		fillSizes(s, ans, &main.sz)
+		setPower(ans, recordPower(s, tr, main, "achieved_power"))
+	default:
+		sz, calc, e2, err := atEnrolment(s, m, e, tr)
+		if err != nil {
+			return e, err
+		}
+		*main = solved{sz: sz, calc: calc, e: e2}
+		fillSizes(s, ans, &sz)
+		if s.Solve == "power" {
+			setPower(ans, recordPower(s, tr, main, "power"))
+		} else {
+			ans.Detectable = detectable(s, m, e2, sz, tr)
+		}
+	}
+	designFigures(s, ans, main)
+	return e, nil
+}
+
+// setPower puts the achieved power in the answer: in the room
+// AchievedPower points to, when it does, or else in a value of its own.
+func setPower(ans *Answer, p float64) {
+	if ans.AchievedPower == nil {
+		// new here, not &p: p itself would then be moved to the heap at
+		// every call.
+		ans.AchievedPower = new(float64)
+	}
+	*ans.AchievedPower = p
+}
+
+// designFigures fills the figures of the answer that belong to a design:
+// the pairs of a paired design, the events a time-to-event plan needs
+// (solving n) and the clusters per arm of a cluster design.
+func designFigures(s *Spec, ans *Answer, sv *solved) {
+	if s.Pairing == "paired" {
+		ans.Pairs = ans.N[0]
+	}
+	if sc, ok := sv.calc.survival(); ok && s.Outcome == "time-to-event" && s.Solve == "n" {
+		if d, err := sc.events(s.Power); err == nil {
+			ans.Events = ceilTol(d)
+		}
+	}
+	if s.Cluster != nil {
+		// Clusters to recruit: enough whole clusters for the enrolment, as
+		// in the cluster-level analysis.
+		k := clustersFor(s, ans.Enrol)
+		ans.Clusters = []int{k[0], k[1]}
+	}
+}
+
 func planComparison(s *Spec, res *Result, m *MethodInfo) error {
 	others := []*MethodInfo{}
 	for i := range Methods {
@@ -580,19 +674,14 @@ func planComparison(s *Spec, res *Result, m *MethodInfo) error {
 	}
 	tr := &trail{}
 	defer func() { res.Steps = tr.steps }()
-	e := plannedEffects(s)
-	recordEffects(s, tr, e)
 	ans := &res.Result
 	var main solved
+	e, err := solveCore(s, m, ans, tr, &main)
+	if err != nil {
+		return err
+	}
 	switch s.Solve {
 	case "n":
-		var err error
-		if main, err = solveN(s, m, e, tr); err != nil {
-			return err
-		}
-		ans.NStar = main.nstar
-		fillSizes(s, ans, main.sz)
-		ans.AchievedPower = ptr(recordPower(s, tr, main, "achieved_power"))
 		// Other methods' sizes, when one differs from the chosen method's by
 		// more than one participant in a group.
 		var differ []string
@@ -603,13 +692,13 @@ func planComparison(s *Spec, res *Result, m *MethodInfo) error {
 			}
 			a := Alternative{
 				Method: o.ID, Name: o.Name, Citation: o.Citation, Short: o.Short,
-				N: alt.sz.n, Total: totalOf(s, alt.sz.n), EnrolTotal: totalOf(s, alt.sz.enrol),
+				N: slices.Clone(alt.sz.n()), Total: totalOf(s, alt.sz.n()), EnrolTotal: totalOf(s, alt.sz.enrol()),
 				AchievedPower: ptr(alt.calc.power(alt.sz.eff[0], alt.sz.eff[1])),
 			}
 			res.Alternatives = append(res.Alternatives, a)
-			for i := range alt.sz.n {
-				if abs(alt.sz.n[i]-main.sz.n[i]) > 1 {
-					differ = append(differ, fmt.Sprintf("%s gives %s", o.Name, fmtSizes(alt.sz.n)))
+			for i := range alt.sz.n() {
+				if abs(alt.sz.n()[i]-main.sz.n()[i]) > 1 {
+					differ = append(differ, fmt.Sprintf("%s gives %s", o.Name, fmtSizes(alt.sz.n())))
 					break
 				}
 			}
@@ -617,10 +706,10 @@ func planComparison(s *Spec, res *Result, m *MethodInfo) error {
 		if len(differ) > 0 && m.ID != "exact" {
 			res.Notes = append(res.Notes, fmt.Sprintf(
 				"The methods differ by more than one participant in a group: %s gives %s %s, while %s.",
-				m.Name, fmtSizes(main.sz.n), sizesWhat(s), andList(differ)))
+				m.Name, fmtSizes(main.sz.n()), sizesWhat(s), andList(differ)))
 		}
 		if s.Outcome == "continuous" && m.means == power.Z && s.Cluster == nil {
-			tc := meansCalc{s: s, m: power.T, id: "t", mc: meanComparison(s, e)}
+			tc := meansCalc{kind: calcMeans, s: s, method: int(power.T), id: "t", mc: meanComparison(s, e)}
 			if tp := tc.power(main.sz.eff[0], main.sz.eff[1]); tp < s.Power {
 				res.Warnings = append(res.Warnings, fmt.Sprintf("At these sizes %s, the analysis planned, has a power of %s, below the %s target: the normal approximation (method z) ignores the uncertainty of the estimated standard deviation; method t gives the size the t test needs.", TestName(s.Test), pct1(tp), pct1(s.Power)))
 			}
@@ -631,23 +720,13 @@ func planComparison(s *Spec, res *Result, m *MethodInfo) error {
 			plain.p1, plain.p2, plain.diff, plain.hr = s.P1, s.P2, s.MeanDiff, s.HazardRatio
 			plain.na, plain.c, plain.diluted = 0, 0, false
 			if u, err := solveN(s, m, plain, nil); err == nil {
-				ans.UndilutedN = u.sz.n
+				ans.UndilutedN = slices.Clone(u.sz.n())
 			}
 		}
 	case "power", "effect":
-		sz, calc, e2, err := atEnrolment(s, m, e, tr)
-		if err != nil {
-			return err
-		}
-		main = solved{sz: sz, calc: calc, e: e2}
-		fillSizes(s, ans, sz)
-		if s.Solve == "power" {
-			ans.AchievedPower = ptr(recordPower(s, tr, main, "power"))
-			if *ans.AchievedPower < 0.8 {
-				res.Warnings = append(res.Warnings, fmt.Sprintf("The power is %.1f%%, below the customary 80%%: the study may well miss an effect of this size.", 100**ans.AchievedPower))
-			}
-		} else {
-			ans.Detectable = detectable(s, m, e2, sz, tr)
+		sz := main.sz
+		if s.Solve == "power" && *ans.AchievedPower < 0.8 {
+			res.Warnings = append(res.Warnings, fmt.Sprintf("The power is %.1f%%, below the customary 80%%: the study may well miss an effect of this size.", 100**ans.AchievedPower))
 		}
 		for _, o := range others {
 			_, oc, oe, err := atEnrolment(s, o, e, nil)
@@ -685,7 +764,7 @@ func planComparison(s *Spec, res *Result, m *MethodInfo) error {
 			ans.DilutedEffect = dilutedEffect(s, main.e)
 		}
 	}
-	describeDesign(s, res, main)
+	describeDesign(s, res, &main)
 	if s.Outcome == "binary" && s.Solve != "effect" {
 		smallCells(s, res, main.sz)
 	}
@@ -760,32 +839,21 @@ func dilutedEffect(s *Spec, e effects) *Effect {
 }
 
 // describeDesign fills the design-specific parts of the answer.
-func describeDesign(s *Spec, res *Result, sv solved) {
+func describeDesign(s *Spec, res *Result, sv *solved) {
 	ans := &res.Result
-	if s.Pairing == "paired" {
-		ans.Pairs = ans.N[0]
-	}
 	if s.Outcome == "time-to-event" {
 		ans.Duration = ptr(s.Accrual + s.FollowUp)
 		if s.Ratio != 1 && s.Solve != "effect" && s.Hypothesis == "superiority" {
 			res.Warnings = append(res.Warnings, fmt.Sprintf("With unequal allocation the events formulas are rougher: simulation of the log-rank test has found %s a few points off the true power (Schoenfeld's too high and Freedman's too low when the larger arm is the control arm, the other way round otherwise); check the %s power with enough simulate.", MethodByID(s.Method).Name, pct1(*ans.AchievedPower)))
 		}
-		if sc, ok := sv.calc.(survivalCalc); ok && sv.sz.n != nil && s.Solve != "effect" {
+		if sc, ok := sv.calc.survival(); ok && sv.sz.k > 0 && s.Solve != "effect" {
 			ans.ExpectedEvents = ptr(sc.expectedEvents(sv.sz.eff[0], sv.sz.eff[1]))
-			if s.Solve == "n" {
-				if d, err := sc.events(s.Power); err == nil {
-					ans.Events = ceilTol(d)
-				}
-			}
 		}
 	}
 	if s.Cluster != nil {
 		ans.DesignEffect = ptr(s.DesignEffect)
-		// Clusters to recruit: enough whole clusters for the enrolment, as
-		// in the cluster-level analysis.
 		m := s.Cluster.Size
-		k := clustersFor(s, ans.Enrol)
-		ans.Clusters = []int{k[0], k[1]}
+		k := ans.Clusters
 		ans.WholeClusters = []int{ceilTol(float64(k[0]) * m), ceilTol(float64(k[1]) * m)}
 		if k[0] < 6 || k[1] < 6 {
 			res.Warnings = append(res.Warnings, fmt.Sprintf("Only %d and %d clusters per arm: with fewer than about 6 clusters per arm the cluster-level analysis is fragile and the ICC poorly estimated.", k[0], k[1]))
@@ -800,9 +868,11 @@ func describeDesign(s *Spec, res *Result, sv solved) {
 // pct1 formats a probability as a percentage with one decimal.
 func pct1(p float64) string { return strconv.FormatFloat(100*p, 'f', 1, 64) + "%" }
 
-func fillSizes(s *Spec, ans *Answer, sz sizes) {
-	ans.N, ans.Total = sz.n, totalOf(s, sz.n)
-	ans.Enrol, ans.EnrolTotal = sz.enrol, totalOf(s, sz.enrol)
+// fillSizes puts the sizes in the answer: copies, in the room N and Enrol
+// hold (their capacity), or else in slices of their own.
+func fillSizes(s *Spec, ans *Answer, sz *sizes) {
+	ans.N, ans.Total = append(ans.N[:0], sz.n()...), totalOf(s, sz.n())
+	ans.Enrol, ans.EnrolTotal = append(ans.Enrol[:0], sz.enrol()...), totalOf(s, sz.enrol())
 }
 
 // totalOf sums the groups, over every arm of a trial with several arms: each
@@ -927,12 +997,46 @@ func commonNotes(s *Spec, res *Result) {
 
 // planPrecision sizes a survey that estimates one prevalence.
 func planPrecision(s *Spec, res *Result) error {
-	pr := power.Precision{P: s.ExpectedPrevalence, Confidence: s.Confidence,
-		DesignEffect: s.DesignEffect, Population: float64(s.Population)}
 	ans := &res.Result
 	tr := &trail{}
 	defer func() { res.Steps = tr.steps }()
-	z := power.ZAlpha(1-s.Confidence, 2)
+	if err := precisionCore(s, ans, tr); err != nil {
+		return err
+	}
+	p := s.ExpectedPrevalence
+	switch s.Solve {
+	case "n":
+		if s.Population > 0 && ans.EnrolTotal > s.Population {
+			res.Warnings = append(res.Warnings, fmt.Sprintf("The enrolment of %d exceeds the population of %d: survey everyone and report the achieved margin.", ans.EnrolTotal, s.Population))
+		}
+	case "effect":
+		if *ans.Margin >= 0.5 {
+			res.Warnings = append(res.Warnings, "The achievable margin is wider than ±50 percentage points: this survey cannot estimate the prevalence usefully.")
+		}
+	}
+	d := *ans.Margin
+	if d >= p || d >= 1-p {
+		res.Warnings = append(res.Warnings, fmt.Sprintf("The margin (%.3g) is not smaller than the expected prevalence or its complement: the Wald interval would cross 0 or 1; an exact (Clopper-Pearson) or Wilson interval suits better.", d))
+	}
+	if eff := float64(ans.Total) / s.DesignEffect; eff*math.Min(p, 1-p) < 10 {
+		res.Warnings = append(res.Warnings, "Fewer than 10 expected cases (or non-cases) among the effective respondents: the Wald interval is unreliable here.")
+	}
+	if s.DesignEffect > 1 {
+		res.Notes = append(res.Notes, fmt.Sprintf("The design effect of %.4g multiplies the simple-random-sampling size.", s.DesignEffect))
+	}
+	return nil
+}
+
+// precisionCore computes the figures of a precision survey that Plan and
+// Quick share: the sizes and n* (solving n) or the margin (solving
+// effect), recording its steps on tr (nil: none).
+func precisionCore(s *Spec, ans *Answer, tr *trail) error {
+	pr := power.Precision{P: s.ExpectedPrevalence, Confidence: s.Confidence,
+		DesignEffect: s.DesignEffect, Population: float64(s.Population)}
+	z := 0.0
+	if tr != nil {
+		z = power.ZAlpha(1-s.Confidence, 2)
+	}
 	p := s.ExpectedPrevalence
 	switch s.Solve {
 	case "n":
@@ -954,20 +1058,17 @@ func planPrecision(s *Spec, res *Result) error {
 		}
 		a := tr.addInt("analysable_first", "ceil("+next+"): the respondents needed", ceilTol(n), in(next, n))
 		ans.N0, ans.NStar = n0, n
-		ans.N, ans.Total = []int{a}, a
-		ans.Enrol = []int{tr.addInt("enrol_first", "ceil(analysable_first / (1 − attrition)): the people to invite, allowing for non-response", ceilTol(float64(a)/(1-s.Attrition)), inInt("analysable_first", a), in("attrition", s.Attrition))}
+		ans.N, ans.Total = append(ans.N[:0], a), a
+		ans.Enrol = append(ans.Enrol[:0], tr.addInt("enrol_first", "ceil(analysable_first / (1 − attrition)): the people to invite, allowing for non-response", ceilTol(float64(a)/(1-s.Attrition)), inInt("analysable_first", a), in("attrition", s.Attrition)))
 		ans.EnrolTotal = ans.Enrol[0]
 		ans.Margin = ptr(s.Margin)
-		if s.Population > 0 && ans.EnrolTotal > s.Population {
-			res.Warnings = append(res.Warnings, fmt.Sprintf("The enrolment of %d exceeds the population of %d: survey everyone and report the achieved margin.", ans.EnrolTotal, s.Population))
-		}
 	case "effect":
 		a := tr.addInt("analysable_first", "floor(total × (1 − attrition)): the respondents expected", floorTol(float64(s.Total)*(1-s.Attrition)), inInt("total", s.Total), in("attrition", s.Attrition))
 		if a < 1 {
 			return &SpecError{File: s.File, Key: "total", Msg: "after non-response no respondent is left; allowed: a larger total"}
 		}
-		ans.N, ans.Total = []int{a}, a
-		ans.Enrol, ans.EnrolTotal = []int{s.Total}, s.Total
+		ans.N, ans.Total = append(ans.N[:0], a), a
+		ans.Enrol, ans.EnrolTotal = append(ans.Enrol[:0], s.Total), s.Total
 		tr.add("z", "the standard normal quantile at (1 + confidence) / 2", z, in("confidence", s.Confidence))
 		next := "analysable_first"
 		nv := float64(a)
@@ -986,19 +1087,6 @@ func planPrecision(s *Spec, res *Result) error {
 			rule = "0: every member of the population responds (a census)"
 		}
 		ans.Margin = ptr(tr.add("margin", rule, power.PrecisionMargin(pr, float64(a)), in("z", z), in("expected_prevalence", p), in(next, nv)))
-		if *ans.Margin >= 0.5 {
-			res.Warnings = append(res.Warnings, "The achievable margin is wider than ±50 percentage points: this survey cannot estimate the prevalence usefully.")
-		}
-	}
-	d := *ans.Margin
-	if d >= p || d >= 1-p {
-		res.Warnings = append(res.Warnings, fmt.Sprintf("The margin (%.3g) is not smaller than the expected prevalence or its complement: the Wald interval would cross 0 or 1; an exact (Clopper-Pearson) or Wilson interval suits better.", d))
-	}
-	if eff := float64(ans.Total) / s.DesignEffect; eff*math.Min(p, 1-p) < 10 {
-		res.Warnings = append(res.Warnings, "Fewer than 10 expected cases (or non-cases) among the effective respondents: the Wald interval is unreliable here.")
-	}
-	if s.DesignEffect > 1 {
-		res.Notes = append(res.Notes, fmt.Sprintf("The design effect of %.4g multiplies the simple-random-sampling size.", s.DesignEffect))
 	}
 	return nil
 }

@@ -68,7 +68,8 @@ func simModel(s *Spec, res *Result, sizes [2]int, null bool) (simSetup, error) {
 	if s.Pairing == "paired" {
 		eff[1] = eff[0]
 	}
-	st.closed = newCalculator(s, m, ec).power(eff[0], eff[1])
+	c := newCalculator(s, m, ec)
+	st.closed = c.power(eff[0], eff[1])
 	if test, ok := power.ParseBinaryTest(s.Test); ok && res.Method == "exact" && exactFits(s) == nil {
 		// The method's own power is exact: compare with that.
 		dir := 1

@@ -339,25 +339,16 @@ func (r *reader) keep(err *SpecError) bool {
 // keys belong then is unknowable, so only keys no specification knows are
 // reported besides).
 func Parse(file string, data []byte, sets []string) (*Spec, error) {
-	root, err := readDoc(file, data)
+	r, err := readSpec(file, data, sets)
+	if err != nil {
+		return nil, err
+	}
+	spec, err := r.finish(sets)
 	if err != nil {
 		return nil, err
 	}
 	sum := sha256.Sum256(data)
-	r := newReader(file)
-	r.collect(root, file)
-	for _, s := range sets {
-		r.applySet(s)
-	}
-	spec := r.build()
-	r.dropSupplied()
-	if err := r.errs.result(sets); err != nil {
-		return nil, err
-	}
-	spec.File = file
-	spec.Overridden = r.overridden(spec.Sources)
 	spec.SHA256 = hex.EncodeToString(sum[:])
-	spec.Overrides = append([]string(nil), sets...)
 	return spec, nil
 }
 
@@ -618,14 +609,7 @@ func (r *reader) applySet(s string) {
 		r.fail(&SpecError{File: origin, Key: head, Msg: "has no nested keys; allowed dotted keys: sources.KEY and cluster.KEY"})
 		return
 	}
-	if r.nested[head] == nil {
-		r.nested[head] = map[string]*entry{}
-		if _, ok := r.entries[head]; !ok {
-			e := &entry{key: head, node: &yaml.Node{Kind: yaml.MappingNode}, file: origin, keyPos: len(r.order), set: true}
-			r.order = append(r.order, e)
-			r.entries[head] = e
-		}
-	}
+	r.ensureNested(head, origin, true)
 	e := &entry{key: clip(key), node: node, file: origin, set: true}
 	if err := r.checkNested(head, rest, e); err != nil {
 		r.refuse(err)
@@ -633,6 +617,22 @@ func (r *reader) applySet(s string) {
 	}
 	r.noteSet(key, r.nested[head][rest])
 	r.nested[head][rest] = e
+}
+
+// ensureNested makes room for the keys of the map head (cluster,
+// simulate, sources) when the specification has none: an empty map, and
+// the map's own entry, after the others, as given in file (set for a
+// --set override).
+func (r *reader) ensureNested(head, file string, set bool) {
+	if r.nested[head] != nil {
+		return
+	}
+	r.nested[head] = map[string]*entry{}
+	if _, ok := r.entries[head]; !ok {
+		e := &entry{key: head, node: &yaml.Node{Kind: yaml.MappingNode}, file: file, keyPos: len(r.order), set: set}
+		r.order = append(r.order, e)
+		r.entries[head] = e
+	}
 }
 
 // noteSet records that --set gave key, and the file's entry it replaces.

@@ -85,8 +85,8 @@ func (r *reader) build() *Spec {
 	}
 
 	// inflation
-	s.Attrition, _ = r.rangeNum("attrition", 0, func(x float64) bool { return x >= 0 && x < 1 })
-	s.DesignEffect, _ = r.rangeNum("design_effect", 1, func(x float64) bool { return x >= 1 && x <= 1000 })
+	s.Attrition, _ = r.rangeNum("attrition", 0, inFraction0)
+	s.DesignEffect, _ = r.rangeNum("design_effect", 1, inDesignEffect)
 
 	if precision {
 		r.buildPrecision(s)
@@ -501,7 +501,7 @@ func (r *reader) buildPrecision(s *Spec) {
 		s.Method = "wald"
 	}
 	s.ExpectedPrevalence, _ = r.probability("expected_prevalence", "the prevalence you expect to estimate")
-	s.Confidence, _ = r.rangeNum("confidence", 0.95, func(x float64) bool { return x >= 0.5 && x < 1 })
+	s.Confidence, _ = r.rangeNum("confidence", 0.95, inConfidence)
 	pop, pe, err := r.whole("population")
 	popOK := r.keep(err)
 	if popOK && pe != nil && pop < 2 {
@@ -513,7 +513,6 @@ func (r *reader) buildPrecision(s *Spec) {
 	r.marginKind = "fraction"
 	switch s.Solve {
 	case "n":
-		inMargin := func(x float64) bool { return x > 0 && x < 0.5 }
 		m, me, err := r.number("margin")
 		switch {
 		case !r.keep(err):
@@ -521,8 +520,8 @@ func (r *reader) buildPrecision(s *Spec) {
 			if !r.solveBad {
 				r.missing("margin", "required when solving n", "the half-width of the confidence interval, a number in (0, 0.5)")
 			}
-		case !inMargin(m):
-			r.refuse(r.rangeErr(me, m, "a number in (0, 0.5)", inMargin))
+		case !inSurveyMargin(m):
+			r.refuse(r.rangeErr(me, m, "a number in (0, 0.5)", inSurveyMargin))
 		default:
 			s.Margin = m
 		}
@@ -609,31 +608,17 @@ func (r *reader) size(s *Spec, key, why, what string) bool {
 // problem and returns false when the effect cannot be used.
 func (r *reader) effectToP1(s *Spec, e *entry, p2OK bool) bool {
 	x, p2 := s.EffectValue, s.P2
-	var p1 float64
-	switch scaleOf(s.EffectKey) {
-	case ScaleRatio, ScaleOdds:
-		if !inRatio(x) {
+	p1, ok := effectP1(s.EffectKey, x, p2)
+	if !ok {
+		switch scaleOf(s.EffectKey) {
+		case ScaleRatio, ScaleOdds:
 			r.refuse(r.rangeErr(e, x, allowedRatio, inRatio))
-			return false
-		}
-		if scaleOf(s.EffectKey) == ScaleRatio {
-			p1 = x * p2
-		} else {
-			p1 = x * p2 / (1 + p2*(x-1))
-		}
-	case ScaleDifference:
-		in := func(x float64) bool { return x > -1 && x < 1 }
-		if !in(x) {
-			r.refuse(r.rangeErr(e, x, "a number in (-1, 1)", in))
-			return false
-		}
-		p1 = p2 + x
-	case ScaleRisk:
-		if !inRisk(x) {
+		case ScaleDifference:
+			r.refuse(r.rangeErr(e, x, "a number in (-1, 1)", inOpen1))
+		default:
 			r.refuse(r.rangeErr(e, x, allowedRisk, inRisk))
-			return false
 		}
-		p1 = x
+		return false
 	}
 	if !p2OK {
 		return false
@@ -664,6 +649,29 @@ func (r *reader) effectToP1(s *Spec, e *entry, p2OK bool) bool {
 	}
 	s.P1 = p1
 	return true
+}
+
+// effectP1 converts the effect x, stated by key, into the first group's
+// risk against the second group's p2; ok is false when x is outside the
+// range of its scale (a ratio from 1/MaxRatio to MaxRatio, a difference in
+// (−1, 1), a risk within the named limits).
+//
+//	ratio: p1 = x p2;  odds ratio: p1 = x p2 / (1 + p2 (x − 1));
+//	difference: p1 = p2 + x;  risk: p1 = x
+func effectP1(key string, x, p2 float64) (p1 float64, ok bool) {
+	switch sc := scaleOf(key); sc {
+	case ScaleRatio, ScaleOdds:
+		if !inRatio(x) {
+			return 0, false
+		}
+		if sc == ScaleRatio {
+			return x * p2, true
+		}
+		return x * p2 / (1 + p2*(x-1)), true
+	case ScaleDifference:
+		return p2 + x, inOpen1(x)
+	}
+	return x, inRisk(x)
 }
 
 // Scale is the scale on which an effect is stated.

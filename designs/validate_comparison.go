@@ -5,8 +5,6 @@ import (
 	"math"
 	"strings"
 
-	"enough/power"
-
 	"gopkg.in/yaml.v3"
 )
 
@@ -86,7 +84,7 @@ func (r *reader) buildComparison(s *Spec) {
 	}
 	var alphaOK bool
 	// Below power.MinAlpha the engine's critical values are not checked.
-	s.Alpha, alphaOK = r.rangeNum("alpha", defAlpha, func(x float64) bool { return x >= power.MinAlpha && x <= 0.5 })
+	s.Alpha, alphaOK = r.rangeNum("alpha", defAlpha, inAlpha)
 	if alphaOK {
 		r.alpha = s.Alpha
 	}
@@ -294,9 +292,9 @@ func (r *reader) buildTrial(s *Spec) {
 			}
 			good = false
 		}
-		num("size", func(x float64) bool { return x >= 2 && x <= 1e6 }, true, &c.Size)
-		num("icc", func(x float64) bool { return x >= 0 && x < 1 }, true, &c.ICC)
-		num("size_cv", func(x float64) bool { return x >= 0 && x <= 10 }, false, &c.SizeCV)
+		num("size", inClusterSize, true, &c.Size)
+		num("icc", inFraction0, true, &c.ICC)
+		num("size_cv", inSizeCV, false, &c.SizeCV)
 		if good {
 			s.Cluster = c
 			s.DesignEffect = c.DesignEffect()
@@ -309,9 +307,8 @@ func (r *reader) buildTrial(s *Spec) {
 	}
 
 	// adherence
-	in := func(x float64) bool { return x >= 0 && x < 1 }
-	na, _, naOK := r.optNum("non_adherence", 0, in)
-	co, coe, coOK := r.optNum("contamination", 0, in)
+	na, _, naOK := r.optNum("non_adherence", 0, inFraction0)
+	co, coe, coOK := r.optNum("contamination", 0, inFraction0)
 	s.NonAdherence, s.Contamination = na, co
 	if naOK && coOK && na+co >= 1 {
 		r.refuse(r.errAt(coe, "%g with non_adherence %g leaves no difference between the arms; allowed: non_adherence + contamination below 1", co, na))
@@ -447,31 +444,7 @@ func (r *reader) buildDirection(s *Spec) {
 		return
 	}
 	given := map[string]int{"first-higher": 1, "first-lower": -1}[dv]
-	implied := 0
-	sign := func(x float64) int {
-		switch {
-		case x > 1e-12:
-			return 1
-		case x < -1e-12:
-			return -1
-		}
-		return 0
-	}
-	switch s.Outcome {
-	case "continuous":
-		implied = sign(s.MeanDiff)
-	case "time-to-event":
-		implied = sign(s.HazardRatio - 1)
-	default:
-		switch scaleOf(s.EffectKey) {
-		case ScaleRatio, ScaleOdds:
-			implied = sign(s.EffectValue - 1)
-		case ScaleDifference:
-			implied = sign(s.EffectValue)
-		default:
-			implied = sign(s.EffectValue - s.P2)
-		}
-	}
+	implied := impliedDirection(s)
 	word := map[int]string{1: "first-higher", -1: "first-lower"}
 	effect := fmtFraction(s.EffectValue)
 	if e := r.get(s.EffectKey); e != nil {
@@ -490,6 +463,34 @@ func (r *reader) buildDirection(s *Spec) {
 	default:
 		s.Direction = implied
 	}
+}
+
+// impliedDirection is the side the effect puts the first group: +1 when
+// its risk, mean or hazard is higher than the second's, −1 when lower, 0
+// when the effect states no difference (within 1e-12).
+func impliedDirection(s *Spec) int {
+	sign := func(x float64) int {
+		switch {
+		case x > 1e-12:
+			return 1
+		case x < -1e-12:
+			return -1
+		}
+		return 0
+	}
+	switch s.Outcome {
+	case "continuous":
+		return sign(s.MeanDiff)
+	case "time-to-event":
+		return sign(s.HazardRatio - 1)
+	}
+	switch scaleOf(s.EffectKey) {
+	case ScaleRatio, ScaleOdds:
+		return sign(s.EffectValue - 1)
+	case ScaleDifference:
+		return sign(s.EffectValue)
+	}
+	return sign(s.EffectValue - s.P2)
 }
 
 // buildBinary reads the reference risk and the effect of a binary outcome.
@@ -515,7 +516,7 @@ func (r *reader) buildBinary(s *Spec) {
 		// Non-inferiority and equivalence: no true difference by default.
 		s.P1 = s.P2
 		if p2OK && marginOK {
-			r.effectOK = r.checkMarginSide(s, nil, r.marginEffect(s))
+			r.effectOK = r.checkMarginSide(s, nil, marginEffect(s))
 		}
 		return
 	}
@@ -527,7 +528,7 @@ func (r *reader) buildBinary(s *Spec) {
 	if !r.effectToP1(s, effect, p2OK) {
 		return
 	}
-	r.effectOK = marginOK && r.checkMarginSide(s, effect, r.marginEffect(s))
+	r.effectOK = marginOK && r.checkMarginSide(s, effect, marginEffect(s))
 }
 
 // checkNullRisk refuses a margin that puts the null hypothesis outside the
@@ -537,33 +538,47 @@ func (r *reader) checkNullRisk(s *Spec) bool {
 	if s.Hypothesis == "superiority" {
 		return true
 	}
-	p2, m := s.P2, s.Margin
-	var nulls []float64
-	switch {
-	case s.MarginScale == "ratio" && s.Hypothesis == "equivalence":
-		nulls = []float64{p2 / m, p2 * m}
-	case s.MarginScale == "ratio":
-		nulls = []float64{p2 * m}
-	case s.Hypothesis == "equivalence":
-		nulls = []float64{p2 - m, p2 + m}
-	case s.HigherIsBetter:
-		nulls = []float64{p2 - m}
-	default:
-		nulls = []float64{p2 + m}
-	}
-	for _, p := range nulls {
-		if !in01(p) {
-			r.refuse(r.errAt(r.get("margin"), "%g with %s %g puts the null hypothesis at a risk of %.4g in the %s, outside (0, 1): the test would have nothing to reject; allowed: a margin that keeps that risk strictly between 0 and 1",
-				m, s.ReferenceKey, p2, p, orDefault(s.FirstGroup, roles[s.Design].first)))
-			return false
-		}
+	p, bad := nullRiskOutside(s)
+	if bad {
+		r.refuse(r.errAt(r.get("margin"), "%g with %s %g puts the null hypothesis at a risk of %.4g in the %s, outside (0, 1): the test would have nothing to reject; allowed: a margin that keeps that risk strictly between 0 and 1",
+			s.Margin, s.ReferenceKey, s.P2, p, orDefault(s.FirstGroup, roles[s.Design].first)))
+		return false
 	}
 	return true
 }
 
+// nullRiskOutside returns the first group's risk under the null
+// hypothesis (at the margin) that lies outside (0, 1), and whether there
+// is one: with an equivalence margin there are two null risks, one each
+// side.
+func nullRiskOutside(s *Spec) (float64, bool) {
+	p2, m := s.P2, s.Margin
+	var a, b float64
+	two := false
+	switch {
+	case s.MarginScale == "ratio" && s.Hypothesis == "equivalence":
+		a, b, two = p2/m, p2*m, true
+	case s.MarginScale == "ratio":
+		a = p2 * m
+	case s.Hypothesis == "equivalence":
+		a, b, two = p2-m, p2+m, true
+	case s.HigherIsBetter:
+		a = p2 - m
+	default:
+		a = p2 + m
+	}
+	switch {
+	case !in01(a):
+		return a, true
+	case two && !in01(b):
+		return b, true
+	}
+	return 0, false
+}
+
 // marginEffect is the true effect of a binary outcome on the margin's
 // scale.
-func (r *reader) marginEffect(s *Spec) float64 {
+func marginEffect(s *Spec) float64 {
 	if s.MarginScale == "ratio" {
 		return s.P1 / s.P2
 	}
@@ -619,12 +634,33 @@ func (r *reader) checkMarginSide(s *Spec, e *entry, diff float64) bool {
 		}
 		return false
 	}
+	if marginSideOK(s, diff) {
+		return true
+	}
+	what := "difference"
+	if s.MarginScale == "ratio" {
+		what = "ratio"
+	}
+	if s.Hypothesis == "non-inferiority" {
+		return where("the true %s (%.4g) is at or beyond the non-inferiority margin (%g, %s): no sample size can show non-inferiority; allowed: a true %s on the acceptable side of the margin", what, diff, s.Margin, betterWord(s.HigherIsBetter), what)
+	}
+	bounds := fmt.Sprintf("±%g", s.Margin)
+	if s.MarginScale == "ratio" {
+		bounds = fmt.Sprintf("(%.4g, %g)", 1/s.Margin, s.Margin)
+	}
+	return where("the true %s (%.4g) lies outside the equivalence margin %s: no sample size can show equivalence; allowed: a true %s inside the margin", what, diff, bounds, what)
+}
+
+// marginSideOK says whether the true effect diff (a difference, or on the
+// ratio scale a ratio) lies on the side of the margin where
+// non-inferiority, or equivalence, can be shown; superiority always can.
+func marginSideOK(s *Spec, diff float64) bool {
 	// Decimal inputs miss the margin by rounding noise (0.8 − 0.88 is
 	// −0.07999999999999996): an effect that close counts as at it.
 	const slack = 1e-9
-	x, m, what := diff, s.Margin, "difference"
+	x, m := diff, s.Margin
 	if s.MarginScale == "ratio" {
-		x, m, what = math.Log(diff), math.Log(s.Margin), "ratio"
+		x, m = math.Log(diff), math.Log(s.Margin)
 	}
 	switch s.Hypothesis {
 	case "non-inferiority":
@@ -632,17 +668,9 @@ func (r *reader) checkMarginSide(s *Spec, e *entry, diff float64) bool {
 		if s.MarginScale != "ratio" && s.HigherIsBetter {
 			bound = -m
 		}
-		if (s.HigherIsBetter && x <= bound+slack) || (!s.HigherIsBetter && x >= bound-slack) {
-			return where("the true %s (%.4g) is at or beyond the non-inferiority margin (%g, %s): no sample size can show non-inferiority; allowed: a true %s on the acceptable side of the margin", what, diff, s.Margin, betterWord(s.HigherIsBetter), what)
-		}
+		return !((s.HigherIsBetter && x <= bound+slack) || (!s.HigherIsBetter && x >= bound-slack))
 	case "equivalence":
-		if math.Abs(x) >= math.Abs(m)-slack {
-			bounds := fmt.Sprintf("±%g", s.Margin)
-			if s.MarginScale == "ratio" {
-				bounds = fmt.Sprintf("(%.4g, %g)", 1/s.Margin, s.Margin)
-			}
-			return where("the true %s (%.4g) lies outside the equivalence margin %s: no sample size can show equivalence; allowed: a true %s inside the margin", what, diff, bounds, what)
-		}
+		return !(math.Abs(x) >= math.Abs(m)-slack)
 	}
 	return true
 }
@@ -705,11 +733,10 @@ func (r *reader) buildContinuous(s *Spec) {
 		r.effectOK = r.checkMarginSide(s, effectEntry, s.MeanDiff)
 	}
 
-	pos := func(x float64) bool { return x > 0 && !math.IsInf(x, 0) }
 	if s.Pairing != "" {
-		sdd, sdde, sddOK := r.optNum("sd_difference", 0, pos)
-		sd, sde, sdOK := r.optNum("sd", 0, pos)
-		rho, rhoe, rhoOK := r.optNum("within_correlation", 0, func(x float64) bool { return x > -1 && x < 1 })
+		sdd, sdde, sddOK := r.optNum("sd_difference", 0, inPositive)
+		sd, sde, sdOK := r.optNum("sd", 0, inPositive)
+		rho, rhoe, rhoOK := r.optNum("within_correlation", 0, inOpen1)
 		switch {
 		case sdde != nil && (sde != nil || rhoe != nil):
 			other := sde
@@ -736,9 +763,9 @@ func (r *reader) buildContinuous(s *Spec) {
 		return
 	}
 
-	sd, sde, sdOK := r.optNum("sd", 0, pos)
-	sd1, sd1e, sd1OK := r.optNum("sd_first", 0, pos)
-	sd2, sd2e, sd2OK := r.optNum("sd_second", 0, pos)
+	sd, sde, sdOK := r.optNum("sd", 0, inPositive)
+	sd1, sd1e, sd1OK := r.optNum("sd_first", 0, inPositive)
+	sd2, sd2e, sd2OK := r.optNum("sd_second", 0, inPositive)
 	switch {
 	case sde != nil && (sd1e != nil || sd2e != nil):
 		other := sd1e
@@ -764,7 +791,7 @@ func (r *reader) buildContinuous(s *Spec) {
 		r.missing("sd", "", "the standard deviation of the outcome, above 0 (or sd_first and sd_second)")
 	}
 	s.RawSD1, s.RawSD2 = s.SD1, s.SD2
-	rho, _, _ := r.optNum("baseline_correlation", 0, func(x float64) bool { return x >= 0 && x < 1 })
+	rho, _, _ := r.optNum("baseline_correlation", 0, inFraction0)
 	s.BaselineCorrelation = rho
 	if rho > 0 {
 		f := math.Sqrt(1 - rho*rho)
@@ -787,7 +814,8 @@ func (r *reader) checkStandardized(s *Spec, effectEntry *entry, known bool) {
 		sdWhat = "the standard deviation after adjustment for the baseline"
 	}
 	check := func(e *entry, what, noun string, x float64) {
-		if d := math.Abs(x) / sd; !(d <= MaxStandardized) {
+		if !withinStandardized(s, x) {
+			d := math.Abs(x) / sd
 			r.refuse(r.errAt(e, "%s, %.3g times %s (%.4g); allowed: a %s of at most %d standard deviations", what, d, sdWhat, sd, noun, MaxStandardized))
 		}
 	}
@@ -801,6 +829,15 @@ func (r *reader) checkStandardized(s *Spec, effectEntry *entry, known bool) {
 	if me := r.get("margin"); s.Hypothesis != "superiority" && s.Margin > 0 && me != nil {
 		check(me, show(me.node)+" is a margin of means", "margin", s.Margin)
 	}
+}
+
+// withinStandardized says whether x, a difference of means or a margin, is
+// at most MaxStandardized standard deviations (the smaller of the two
+// groups' after any adjustment for the baseline); always, when the
+// standard deviations are not known.
+func withinStandardized(s *Spec, x float64) bool {
+	sd := math.Min(s.SD1, s.SD2)
+	return !(sd > 0) || math.Abs(x)/sd <= MaxStandardized
 }
 
 // buildSurvival reads the hazard ratio, the control arm's survival and the
@@ -871,7 +908,7 @@ func (r *reader) buildSurvival(s *Spec) {
 	default:
 		s.FollowUp = fu
 	}
-	s.Dropout, _ = r.rangeNum("dropout", 0, func(x float64) bool { return x >= 0 && x < 1 })
+	s.Dropout, _ = r.rangeNum("dropout", 0, inFraction0)
 	tu, _, err := r.text("time_unit")
 	if r.keep(err) {
 		s.TimeUnit = tu

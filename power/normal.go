@@ -1,6 +1,10 @@
 package power
 
-import "gonum.org/v1/gonum/stat/distuv"
+import (
+	"sync/atomic"
+
+	"gonum.org/v1/gonum/stat/distuv"
+)
 
 // ZAlpha returns the standard normal critical value for a test at level
 // alpha with the given number of sides (1 or 2):
@@ -21,7 +25,7 @@ func ZAlpha(alpha float64, sides int) float64 {
 		panic("power: sides must be 1 or 2")
 	}
 	// The upper quantile as minus the lower one keeps tiny alphas exact.
-	return -distuv.UnitNormal.Quantile(alpha / float64(sides))
+	return -alphaQuantile.of(alpha / float64(sides))
 }
 
 // ZPower returns Φ⁻¹(power), the normal deviate for the target power.
@@ -30,7 +34,27 @@ func ZPower(power float64) float64 {
 	if !(power > 0 && power < 1) {
 		panic("power: power out of range")
 	}
-	return distuv.UnitNormal.Quantile(power)
+	return powerQuantile.of(power)
+}
+
+// normalMemo remembers the last standard normal quantile computed, so
+// that a sweep whose alpha and power do not vary (enough sweep) computes
+// each once rather than at every point. It is safe for concurrent use,
+// and gives exactly the quantile computed: it only saves the computing.
+type normalMemo struct{ last atomic.Pointer[[2]float64] }
+
+// The memos of the level's quantile and the power's, kept apart so that
+// each stays put while the other varies.
+var alphaQuantile, powerQuantile normalMemo
+
+// of returns Φ⁻¹(p).
+func (m *normalMemo) of(p float64) float64 {
+	if last := m.last.Load(); last != nil && last[0] == p {
+		return last[1]
+	}
+	z := distuv.UnitNormal.Quantile(p)
+	m.last.Store(&[2]float64{p, z})
+	return z
 }
 
 // normCDF is Φ, the standard normal distribution function.

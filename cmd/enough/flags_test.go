@@ -199,7 +199,7 @@ func TestArguments(t *testing.T) {
 		{[]string{"new"}, "new: name a design; allowed: cohort, case-control, trial or cross-sectional (for example enough new trial > study.yaml)"},
 		{[]string{"new", "trial", "cohort"}, "new: 2 designs given (trial, cohort); allowed: one design: cohort, case-control, trial or cross-sectional"},
 		{[]string{"methods", "all"}, "methods: takes no argument, given all; allowed: enough methods [-f markdown|text|json]"},
-		{[]string{"frobnicate"}, "frobnicate: unknown command; allowed: plan, simulate, review, new or methods (enough --help describes them)"},
+		{[]string{"frobnicate"}, "frobnicate: unknown command; allowed: plan, simulate, review, sweep, merge, new or methods (enough --help describes them)"},
 		{[]string{"plna"}, "plna: unknown command; did you mean plan?"},
 	} {
 		var out, errOut strings.Builder

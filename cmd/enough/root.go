@@ -18,8 +18,9 @@ import (
 
 // Exit statuses of enough: one table, documented in README.md ("Exit
 // status") and in the root command's help, which every command follows.
-// Statuses 3 to 5 are the verdicts of `enough review`; 6 is reserved for a
-// sweep still to come. No command may give them another meaning.
+// Statuses 3 to 5 are the verdicts of `enough review`; 6 is that of
+// `enough sweep` and `enough merge`. No command may give them another
+// meaning.
 const (
 	ExitOK              = 0   // success
 	ExitFailure         = 1   // a failure that is not the input's: I/O, an internal error, a plan that cannot be computed
@@ -47,8 +48,8 @@ const exitTable = `Exit status:
        replicates done, marked partial
   143  terminated (SIGTERM); a simulation's output holds the replicates
        done, marked partial
-Statuses 3 to 5 are the verdicts of enough review; 6 is reserved for the
-sweep command to come.`
+Statuses 3 to 5 are the verdicts of enough review; 6 is that of enough
+sweep and enough merge.`
 
 // IO holds the streams of a command.
 type IO struct {
@@ -70,7 +71,7 @@ func (e *inputError) Error() string {
 }
 
 // commands names the documented commands, for the message on an unknown one.
-var commands = []string{"plan", "simulate", "review", "new", "methods"}
+var commands = []string{"plan", "simulate", "review", "sweep", "merge", "new", "methods"}
 
 // NewRootCmd builds the root command with all verbs.
 func NewRootCmd(streams *IO) *cobra.Command {
@@ -94,7 +95,8 @@ Errors are written to standard error, one line each ("enough: ..."); with
 	root.SetOut(streams.Out)
 	root.SetErr(streams.ErrOut)
 	root.SetFlagErrorFunc(flagProblem)
-	root.AddCommand(NewCmdPlan(streams, nil), NewCmdSimulate(streams), NewCmdReview(streams, nil), NewCmdNew(streams), NewCmdMethods(streams))
+	root.AddCommand(NewCmdPlan(streams, nil), NewCmdSimulate(streams), NewCmdReview(streams, nil),
+		NewCmdSweep(streams), NewCmdMerge(streams), NewCmdNew(streams), NewCmdMethods(streams))
 	return root
 }
 
