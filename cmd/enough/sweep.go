@@ -176,6 +176,13 @@ func sweepRun(opts *SweepOptions) error {
 		bar = &pointsBar{w: opts.IO.ErrOut}
 		o.Progress = bar.set
 	}
+	if format == "csv" && !opts.ShardGiven && !o.Simulate {
+		// Written block by block as the grid is solved: a large sweep
+		// holds one block of answers, not all of them.
+		err := sweepCSVStream(opts, base, grid, o)
+		bar.finish()
+		return err
+	}
 	rows, err := sweep.Run(context.Background(), base, grid, o)
 	bar.finish()
 	if err != nil {
@@ -198,6 +205,34 @@ func sweepRun(opts *SweepOptions) error {
 		return err
 	}
 	return incomplete(opts.IO.ErrOut, t)
+}
+
+// sweepCSVStream runs a sweep written as CSV block by block (see
+// sweep.Options.Emit); the bytes are those of the whole table at once.
+func sweepCSVStream(opts *SweepOptions, base *designs.Base, grid sweep.Grid, o sweep.Options) error {
+	spec := base.Spec()
+	h := sweep.NewHeader(spec, grid, opts.Vary, o)
+	var buf bytes.Buffer
+	// About a dozen bytes a cell: grown once, not doubled and copied.
+	buf.Grow(min(grid.Size(), 1<<20) * len(h.Columns) * 12)
+	w, err := report.NewSweepCSV(&buf, &h)
+	if err != nil {
+		return err
+	}
+	failed, total := 0, 0
+	o.Emit = func(rows []sweep.Row) error {
+		t := sweep.NewTable(h, grid, rows, pointError)
+		failed += t.Failed()
+		total += len(t.Records)
+		return w.Write(t)
+	}
+	if _, err := sweep.Run(context.Background(), base, grid, o); err != nil {
+		return sweepProblem(err, spec.File)
+	}
+	if err := emit(opts.IO.Out, opts.Output, buf.Bytes()); err != nil {
+		return err
+	}
+	return incompleteCount(opts.IO.ErrOut, failed, total)
 }
 
 // sweepGrid reads the --vary arguments into a grid: each a key the
@@ -344,12 +379,16 @@ func pointError(err error) json.RawMessage {
 // incomplete ends a sweep or a merge whose table has points that could not
 // be planned: a note on standard error and exit status 6.
 func incomplete(w io.Writer, t *sweep.Table) error {
-	failed := t.Failed()
+	return incompleteCount(w, t.Failed(), len(t.Records))
+}
+
+// incompleteCount is incomplete for failed of total points.
+func incompleteCount(w io.Writer, failed, total int) error {
 	if failed == 0 {
 		return nil
 	}
 	fmt.Fprintf(w, "enough: note: %d of %d points could not be planned; the error column says why (exit status %d)\n",
-		failed, len(t.Records), ExitSweepIncomplete)
+		failed, total, ExitSweepIncomplete)
 	return &verdictStatus{verdict: "sweep incomplete", code: ExitSweepIncomplete}
 }
 

@@ -5,8 +5,10 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"runtime"
 	"strconv"
 	"strings"
+	"sync"
 	"unicode"
 	"unicode/utf8"
 
@@ -62,16 +64,82 @@ func WriteSweep(w io.Writer, t *sweep.Table, format string) error {
 // sweepCSV writes the header row and one row per point, quoting a field
 // as encoding/csv does (RFC 4180, lines ended by \n).
 func sweepCSV(w io.Writer, t *sweep.Table, l *sweep.Layout) error {
+	c, err := newSweepCSV(w, &t.Header, l)
+	if err != nil {
+		return err
+	}
+	return c.Write(t)
+}
+
+// SweepCSV writes a sweep as CSV table by table, as the blocks of a large
+// sweep are solved (sweep.Options.Emit): the header row once, then the
+// rows of each table in turn; the bytes are those WriteSweep writes for the
+// whole sweep at once.
+type SweepCSV struct {
+	w    io.Writer
+	l    *sweep.Layout
+	bufs [][]byte
+}
+
+// NewSweepCSV writes the header row of a sweep with header h.
+func NewSweepCSV(w io.Writer, h *sweep.Header) (*SweepCSV, error) {
+	l, err := sweep.NewLayout(h)
+	if err != nil {
+		return nil, err
+	}
+	return newSweepCSV(w, h, l)
+}
+
+func newSweepCSV(w io.Writer, h *sweep.Header, l *sweep.Layout) (*SweepCSV, error) {
 	var b []byte
-	for c, name := range t.Header.Columns {
+	for c, name := range h.Columns {
 		if c > 0 {
 			b = append(b, ',')
 		}
 		b = appendCSVField(b, name)
 	}
 	b = append(b, '\n')
-	for i := range t.Records {
-		r := &t.Records[i]
+	if _, err := w.Write(b); err != nil {
+		return nil, err
+	}
+	return &SweepCSV{w: w, l: l, bufs: make([][]byte, runtime.GOMAXPROCS(0))}, nil
+}
+
+// Write writes the rows of t. Rows are formatted in chunks on every core
+// and written in order: the bytes are those of one row after the other,
+// whatever the cores.
+func (c *SweepCSV) Write(t *sweep.Table) error {
+	const chunk = 2048
+	workers := len(c.bufs)
+	for start := 0; start < len(t.Records); start += workers * chunk {
+		var wg sync.WaitGroup
+		for k := range workers {
+			lo := start + k*chunk
+			hi := min(lo+chunk, len(t.Records))
+			c.bufs[k] = c.bufs[k][:0]
+			if lo >= hi {
+				continue
+			}
+			wg.Add(1)
+			go func() {
+				defer wg.Done()
+				c.bufs[k] = appendCSVRows(c.bufs[k], t.Records[lo:hi], c.l)
+			}()
+		}
+		wg.Wait()
+		for _, buf := range c.bufs {
+			if _, err := c.w.Write(buf); err != nil {
+				return err
+			}
+		}
+	}
+	return nil
+}
+
+// appendCSVRows appends the CSV lines of records.
+func appendCSVRows(b []byte, records []sweep.Record, l *sweep.Layout) []byte {
+	for i := range records {
+		r := &records[i]
 		for c := range l.Width() {
 			if c > 0 {
 				b = append(b, ',')
@@ -89,15 +157,8 @@ func sweepCSV(w io.Writer, t *sweep.Table, l *sweep.Layout) error {
 			}
 		}
 		b = append(b, '\n')
-		if len(b) >= 1<<15 {
-			if _, err := w.Write(b); err != nil {
-				return err
-			}
-			b = b[:0]
-		}
 	}
-	_, err := w.Write(b)
-	return err
+	return b
 }
 
 // appendCSVField appends a field, quoted when encoding/csv's Writer would

@@ -106,3 +106,30 @@ func TestSig4(t *testing.T) {
 		}
 	}
 }
+
+// TestSweepCSVByTables: a sweep written table by table (SweepCSV, as large
+// sweeps are streamed), in one record per table or all at once, gives the
+// bytes WriteSweep writes for the whole table.
+func TestSweepCSVByTables(t *testing.T) {
+	whole := inventedSweep()
+	var want bytes.Buffer
+	if err := WriteSweep(&want, whole, "csv"); err != nil {
+		t.Fatal(err)
+	}
+	for _, size := range []int{1, 2, 3} {
+		var got bytes.Buffer
+		c, err := NewSweepCSV(&got, &whole.Header)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for lo := 0; lo < len(whole.Records); lo += size {
+			part := &sweep.Table{Header: whole.Header, Records: whole.Records[lo:min(lo+size, len(whole.Records))]}
+			if err := c.Write(part); err != nil {
+				t.Fatal(err)
+			}
+		}
+		if got.String() != want.String() {
+			t.Errorf("tables of %d records:\n%s\nwant\n%s", size, got.String(), want.String())
+		}
+	}
+}

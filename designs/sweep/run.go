@@ -103,46 +103,100 @@ func Run(ctx context.Context, b *designs.Base, g Grid, o Options) ([]Row, error)
 	if first < size {
 		count = (size - first + stride - 1) / stride
 	}
-	rows := make([]Row, count)
-	done := make([]bool, count)
+	if o.Emit == nil {
+		return runBlock(ctx, b, g, o, keys, first, stride, 0, count, count, nil)
+	}
+	// Block by block, the rows' memory reused: only a block is held.
+	var scratch *blockMemory
+	for from := 0; from < count; from += EmitBlock {
+		to := min(from+EmitBlock, count)
+		if scratch == nil {
+			scratch = &blockMemory{}
+		}
+		rows, err := runBlock(ctx, b, g, o, keys, first, stride, from, to, count, scratch)
+		if len(rows) > 0 {
+			if eerr := o.Emit(rows); eerr != nil {
+				return nil, eerr
+			}
+		}
+		if err != nil {
+			return nil, err
+		}
+	}
+	return nil, nil
+}
+
+// blockMemory is the memory of one block's rows, reused block to block.
+type blockMemory struct {
+	rows   []Row
+	done   []bool
+	points []float64
+	rooms  []room
+}
+
+// runBlock solves the points j in [from, to) of the shard (of count
+// points: point j is grid index first + j × stride) and returns their rows
+// in order; mem, when set, holds memory to reuse.
+func runBlock(ctx context.Context, b *designs.Base, g Grid, o Options, keys []string, first, stride, from, to, count int, mem *blockMemory) ([]Row, error) {
+	n := to - from
 	axes := len(g.Axes)
-	points := make([]float64, count*axes)
+	var rows []Row
+	var done []bool
+	var points []float64
+	var rooms []room
 	plan := o.Full || o.Alternatives || o.Simulate
+	if mem != nil {
+		if cap(mem.rows) < n {
+			mem.rows, mem.done, mem.points = make([]Row, n), make([]bool, n), make([]float64, n*axes)
+			if !plan {
+				mem.rooms = make([]room, n)
+			}
+		}
+		rows, done, points = mem.rows[:n], mem.done[:n], mem.points[:n*axes]
+		clear(rows)
+		clear(done)
+		if !plan {
+			rooms = mem.rooms[:n]
+			clear(rooms)
+		}
+	} else {
+		rows, done, points = make([]Row, n), make([]bool, n), make([]float64, n*axes)
+	}
 	workers := o.Workers
 	if workers == 0 {
 		workers = runtime.NumCPU()
 	}
-	workers = max(1, min(workers, count))
+	workers = max(1, min(workers, n))
 	chunk := 1
 	if !plan {
 		// Long enough to make the shared counter cheap, short enough to
 		// share the points evenly and to stop soon.
-		chunk = max(1, min(256, count/(8*workers)))
+		chunk = max(1, min(256, n/(8*workers)))
 	} else if !o.Simulate {
-		chunk = max(1, min(16, count/(8*workers)))
+		chunk = max(1, min(16, n/(8*workers)))
 	}
 	var (
 		next     atomic.Int64
 		mu       sync.Mutex
-		finished int
+		finished = from // the points of the blocks before this one
 		wg       sync.WaitGroup
 	)
-	report := func(n int) {
-		if o.Progress == nil || n == 0 {
+	report := func(k int) {
+		if o.Progress == nil || k == 0 {
 			return
 		}
 		mu.Lock()
-		finished += n
+		finished += k
 		o.Progress(finished, count)
 		mu.Unlock()
 	}
-	// solve solves point j of the shard; a is the room for its answer
-	// (Quick).
-	solve := func(sc *designs.Scratch, j int, a *room) bool {
-		i := first + j*stride
-		row := &rows[j]
+	// solve solves point from + k of the shard into rows[k]; a is the
+	// room for its answer (Quick).
+	solve := func(sc *designs.Scratch, k int, a *room) bool {
+		i := first + (from+k)*stride
+		row := &rows[k]
 		row.Index = i
-		row.Point = g.valuesInto(i, points[j*axes:(j+1)*axes:(j+1)*axes])
+		row.Point = g.valuesInto(i, points[k*axes:(k+1)*axes:(k+1)*axes])
 		if !plan {
 			s, err := b.AtScratch(sc, keys, row.Point)
 			if err == nil {
@@ -198,23 +252,26 @@ func Run(ctx context.Context, b *designs.Base, g Grid, o Options) ([]Row, error)
 			defer wg.Done()
 			var sc designs.Scratch
 			for ctx.Err() == nil {
-				from := int(next.Add(int64(chunk))) - chunk
-				if from >= count {
+				lo := int(next.Add(int64(chunk))) - chunk
+				if lo >= n {
 					return
 				}
-				to := min(from+chunk, count)
-				var rooms []room
-				if !plan {
+				hi := min(lo+chunk, n)
+				var own []room
+				switch {
+				case rooms != nil:
+					own = rooms[lo:hi]
+				case !plan:
 					// The chunk's answers, allocated together and filled at
 					// once, while their memory is in the cache; the points
 					// themselves allocate nothing.
-					rooms = make([]room, to-from)
+					own = make([]room, hi-lo)
 				}
-				n := 0
-				for j := from; j < to; j++ {
+				k := 0
+				for j := lo; j < hi; j++ {
 					var a *room
-					if rooms != nil {
-						a = &rooms[j-from]
+					if own != nil {
+						a = &own[j-lo]
 					}
 					// A quick chunk is short: the context is asked once a
 					// chunk (asking takes a lock), a planned point at each.
@@ -222,9 +279,9 @@ func Run(ctx context.Context, b *designs.Base, g Grid, o Options) ([]Row, error)
 						break
 					}
 					done[j] = true
-					n++
+					k++
 				}
-				report(n)
+				report(k)
 			}
 		}()
 	}
@@ -236,7 +293,7 @@ func Run(ctx context.Context, b *designs.Base, g Grid, o Options) ([]Row, error)
 				kept = append(kept, rows[j])
 			}
 		}
-		if len(kept) < count {
+		if len(kept) < n {
 			return kept, err
 		}
 	}

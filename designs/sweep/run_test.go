@@ -488,3 +488,36 @@ func TestRunSimulateSeeds(t *testing.T) {
 		}
 	}
 }
+
+// TestRunEmit: rows emitted block by block (Options.Emit), the memory of
+// each block reused for the next, are the rows of the whole run, in order,
+// over more than one block and with a shard.
+func TestRunEmit(t *testing.T) {
+	b := newBase(t, trialSpec)
+	g := grid(t, "control_risk=0.02:0.98:0.01", "risk_ratio=0.4:1.6:0.01", "attrition=0,0.2")
+	if g.Size() <= 2*EmitBlock {
+		t.Fatalf("%d points: the grid does not span three blocks", g.Size())
+	}
+	for _, o := range []Options{{Workers: 2}, {Workers: 3, Shard: 2, Shards: 3}} {
+		var want []string
+		for _, r := range run(t, b, g, o) {
+			want = append(want, rowText(r))
+		}
+		var got []string
+		blocks := 0
+		o.Emit = func(rows []Row) error {
+			blocks++
+			for _, r := range rows {
+				got = append(got, rowText(r))
+			}
+			return nil
+		}
+		rows, err := Run(context.Background(), b, g, o)
+		if err != nil || rows != nil {
+			t.Fatalf("Run with Emit: %d rows, %v; want none and no error", len(rows), err)
+		}
+		if blocks != (len(want)+EmitBlock-1)/EmitBlock || !reflect.DeepEqual(got, want) {
+			t.Errorf("shard %d/%d: %d blocks emitted %d rows that differ from the %d of one run", o.Shard, o.Shards, blocks, len(got), len(want))
+		}
+	}
+}

@@ -70,7 +70,16 @@ type Options struct {
 	MaxPoints int
 	// Progress, when set, is told the points done.
 	Progress func(done, total int)
+	// Emit, when set, receives the rows block by block, in grid order, and
+	// Run returns no rows: the memory of a block's rows and answers is
+	// reused for the next, so a large grid is written as it is solved.
+	// The rows passed are valid only until Emit returns.
+	Emit func(rows []Row) error
 }
+
+// EmitBlock is the number of points Run solves between calls of
+// Options.Emit.
+const EmitBlock = 8192
 
 // DefaultMaxPoints is the largest grid swept unless --max-points says
 // otherwise.
