@@ -1009,6 +1009,15 @@ func deriveSurvey(s *Spec, v *numbers, present keySet) bool {
 // source of every point's error.
 func (b *Base) rebuild(keys []string, values []float64) (*Spec, error) {
 	r := b.raw.clone()
+	for _, k := range keys {
+		// A varied key takes the place of the keys that state the same
+		// thing another way (risk_ratio for intervention_risk).
+		for _, d := range displaced(b.spec, k) {
+			if !slices.Contains(keys, d) {
+				r.applyEdit(Delete(d))
+			}
+		}
+	}
 	for i, k := range keys {
 		r.setNumber(k, values[i])
 	}
@@ -1073,4 +1082,38 @@ func (r *reader) setNumber(key string, x float64) {
 		e.file, e.line = prev.file, prev.line
 	}
 	r.nested[head][sub] = e
+}
+
+// displaced returns the keys a varied key takes the place of: those that
+// state the same assumption another way, of which a specification gives
+// one (the effect keys of a binary outcome; mean_difference or the two
+// means; sd or sd_first and sd_second; sd_difference or sd with
+// within_correlation; control_median or control_survival with time; ratio
+// or n_second).
+func displaced(s *Spec, key string) []string {
+	ro := roles[s.Design]
+	switch {
+	case s.Outcome == "binary" && slices.Contains(ro.effects, key):
+		return slices.DeleteFunc(slices.Clone(ro.effects), func(k string) bool { return k == key })
+	}
+	groups := [][2][]string{
+		{{"mean_difference"}, {ro.means[0], ro.means[1]}},
+		{{"sd_difference"}, {"sd", "within_correlation"}},
+		{{"sd"}, {"sd_first", "sd_second"}},
+		{{"control_median"}, {"control_survival", "time"}},
+		{{"ratio"}, {"n_second"}},
+	}
+	var out []string
+	for _, g := range groups {
+		switch {
+		case slices.Contains(g[0], key):
+			out = append(out, g[1]...)
+		case slices.Contains(g[1], key):
+			out = append(out, g[0]...)
+		}
+	}
+	if s.Pairing == "" && key == "sd" {
+		return []string{"sd_first", "sd_second"}
+	}
+	return slices.DeleteFunc(out, func(k string) bool { return k == "" })
 }

@@ -249,8 +249,9 @@ func FuzzAt(f *testing.F) {
 	})
 }
 
-// TestAtServesOtherKeys: a key the fast path does not serve (sides, a
-// second effect key) is rebuilt, with the reader's answer.
+// TestAtServesOtherKeys: a key the fast path does not serve (sides, arms)
+// is rebuilt, with the reader's answer. (A second effect key takes the
+// place of the first: TestAtDisplaces.)
 func TestAtServesOtherKeys(t *testing.T) {
 	b, data := demoBase(t)
 	for _, tc := range []struct {
@@ -260,7 +261,6 @@ func TestAtServesOtherKeys(t *testing.T) {
 	}{
 		{"sides", 1, ""},
 		{"sides", 3, "sides: 3 is not allowed; allowed: 1 or 2"},
-		{"odds_ratio", 0.7, "a second effect key besides"},
 		{"arms", 3, ""},
 		{"risk_ratio", math.NaN(), "risk_ratio: .nan is not a finite number"},
 	} {
@@ -401,5 +401,35 @@ func TestScratchReuse(t *testing.T) {
 	}
 	if points < 1000 {
 		t.Fatalf("only %d points", points)
+	}
+}
+
+// TestAtDisplaces: a varied key takes the place of the keys that state the
+// same assumption another way, as if the file had given it instead.
+func TestAtDisplaces(t *testing.T) {
+	for _, c := range []struct{ spec, key, instead string }{
+		{"version: 1\ndesign: trial\ncontrol_risk: 0.3\nintervention_risk: 0.21\npower: 0.8\nsources:\n  intervention_risk: a pilot\n", "risk_ratio", "version: 1\ndesign: trial\ncontrol_risk: 0.3\nrisk_ratio: 0.6\npower: 0.8\n"},
+		{"version: 1\ndesign: trial\noutcome: continuous\nintervention_mean: 12\ncontrol_mean: 10\nsd: 4\npower: 0.8\n", "mean_difference", "version: 1\ndesign: trial\noutcome: continuous\nmean_difference: 0.6\nsd: 4\npower: 0.8\n"},
+		{"version: 1\ndesign: trial\noutcome: continuous\nmean_difference: 2\nsd_first: 4\nsd_second: 5\npower: 0.8\n", "sd", "version: 1\ndesign: trial\noutcome: continuous\nmean_difference: 2\nsd: 0.6\npower: 0.8\n"},
+		{"version: 1\ndesign: trial\ncontrol_risk: 0.3\nrisk_ratio: 0.7\nsolve: power\nn: 200\nn_second: 300\n", "ratio", "version: 1\ndesign: trial\ncontrol_risk: 0.3\nrisk_ratio: 0.7\nsolve: power\nn: 200\nratio: 0.6\n"},
+	} {
+		b, err := NewBase("s.yaml", []byte(c.spec), nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got, err := b.At([]string{c.key}, []float64{0.6})
+		if err != nil {
+			t.Errorf("%s: %v", c.key, err)
+			continue
+		}
+		want, err := Parse("s.yaml", []byte(c.instead), nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		g, _ := Plan(got)
+		w, _ := Plan(want)
+		if !reflect.DeepEqual(g.Result.N, w.Result.N) || got.EffectKey != want.EffectKey {
+			t.Errorf("%s: n %v (%s); want %v (%s)", c.key, g.Result.N, got.EffectKey, w.Result.N, want.EffectKey)
+		}
 	}
 }
