@@ -453,6 +453,17 @@ func (b *Base) CheckKey(key string) error {
 		return fail("is the version of the specification's format, not an assumption; allowed: a numeric key of the plan, such as %s", orList(exampleKeys(numeric)))
 	case info.kind != kindNumber && info.kind != kindWhole && !nested:
 		return fail("is not a number (%s); allowed: a numeric key, such as %s", info.allowed, orList(exampleKeys(numeric)))
+	case head == "simulate" && b.spec.Simulate == nil:
+		return fail("does not apply: the specification has no simulate block; allowed: add a simulate: block to the specification, then vary its keys")
+	}
+	// A key this solve ignores would give the same row at every value.
+	for _, why := range b.spec.Ignored {
+		if strings.HasPrefix(why, head+" is ignored") {
+			return fail("does not change the plan: %s; allowed: a key the plan uses, such as %s", why, orList(exampleKeys(numeric)))
+		}
+	}
+	if ignored := map[string]string{"n": "n", "n_second": "n", "total": "n", "power": "power"}[head]; ignored != "" && b.spec.Solve == ignored && !nested {
+		return fail("does not change the plan: %s is what the plan solves, or is ignored when solving %s; allowed: solve: power or effect to vary the sizes (solve: n or effect to vary power)", head, ignored)
 	}
 	return nil
 }

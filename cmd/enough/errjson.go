@@ -170,7 +170,7 @@ func writtenValue(se *designs.SpecError, src *sourced) (string, bool) {
 	var v string
 	var ok bool
 	switch {
-	case strings.HasPrefix(se.File, "--set "):
+	case strings.HasPrefix(se.File, "--set "), strings.HasPrefix(se.File, "--vary "):
 		_, v, ok = strings.Cut(se.File, "=")
 	case src != nil && se.File == src.file && se.Line > 0 && se.Key != "":
 		v, ok = valueOnLine(src.data, se.Line, se.Key)

@@ -229,9 +229,9 @@ func exitCode(err error) int {
 	switch {
 	case errors.As(err, &vs):
 		return vs.code
-	case errors.Is(err, errInterrupted):
+	case errors.Is(err, errInterrupted), errors.Is(err, errSweepInterrupted):
 		return ExitInterrupted
-	case errors.Is(err, errTerminated):
+	case errors.Is(err, errTerminated), errors.Is(err, errSweepTerminated):
 		return ExitTerminated
 	case errors.As(err, &se), errors.As(err, &ie), errors.As(err, &fe), errors.As(err, &de):
 		return ExitInput

@@ -25,6 +25,10 @@ import (
 var (
 	errInterrupted = errors.New("interrupted: the simulation stopped early; the output holds the replicates done, marked partial")
 	errTerminated  = errors.New("terminated (SIGTERM): the simulation stopped early; the output holds the replicates done, marked partial")
+	// A sweep stopped by a signal writes nothing: a part of a grid is no
+	// table (shard it with --shard to keep parts of a long sweep).
+	errSweepInterrupted = errors.New("interrupted: the sweep stopped early; nothing was written (shard a long sweep with --shard I/K to keep its parts)")
+	errSweepTerminated  = errors.New("terminated (SIGTERM): the sweep stopped early; nothing was written (shard a long sweep with --shard I/K to keep its parts)")
 )
 
 // NewCmdSimulate builds `enough simulate`.

@@ -12,6 +12,7 @@ import (
 	"strconv"
 	"strings"
 	"sync"
+	"syscall"
 	"time"
 
 	"github.com/schollz/progressbar/v3"
@@ -176,17 +177,28 @@ func sweepRun(opts *SweepOptions) error {
 		bar = &pointsBar{w: opts.IO.ErrOut}
 		o.Progress = bar.set
 	}
+	ctx, caught, stop := stopOnSignal()
+	defer stop()
+	stopped := func(err error) error {
+		if ctx.Err() == nil || !errors.Is(err, context.Canceled) {
+			return err
+		}
+		if caught() == syscall.SIGTERM {
+			return errSweepTerminated
+		}
+		return errSweepInterrupted
+	}
 	if format == "csv" && !opts.ShardGiven && !o.Simulate {
 		// Written block by block as the grid is solved: a large sweep
 		// holds one block of answers, not all of them.
-		err := sweepCSVStream(opts, base, grid, o)
+		err := sweepCSVStream(ctx, opts, base, grid, o)
 		bar.finish()
-		return err
+		return stopped(err)
 	}
-	rows, err := sweep.Run(context.Background(), base, grid, o)
+	rows, err := sweep.Run(ctx, base, grid, o)
 	bar.finish()
 	if err != nil {
-		return sweepProblem(err, spec.File)
+		return stopped(sweepProblem(err, spec.File))
 	}
 	if err := allRefused(rows); err != nil {
 		return sweepProblem(err, spec.File)
@@ -209,7 +221,7 @@ func sweepRun(opts *SweepOptions) error {
 
 // sweepCSVStream runs a sweep written as CSV block by block (see
 // sweep.Options.Emit); the bytes are those of the whole table at once.
-func sweepCSVStream(opts *SweepOptions, base *designs.Base, grid sweep.Grid, o sweep.Options) error {
+func sweepCSVStream(ctx context.Context, opts *SweepOptions, base *designs.Base, grid sweep.Grid, o sweep.Options) error {
 	spec := base.Spec()
 	h := sweep.NewHeader(spec, grid, opts.Vary, o)
 	var buf bytes.Buffer
@@ -226,7 +238,7 @@ func sweepCSVStream(opts *SweepOptions, base *designs.Base, grid sweep.Grid, o s
 		total += len(t.Records)
 		return w.Write(t)
 	}
-	if _, err := sweep.Run(context.Background(), base, grid, o); err != nil {
+	if _, err := sweep.Run(ctx, base, grid, o); err != nil {
 		return sweepProblem(err, spec.File)
 	}
 	if err := emit(opts.IO.Out, opts.Output, buf.Bytes()); err != nil {
@@ -387,8 +399,12 @@ func incompleteCount(w io.Writer, failed, total int) error {
 	if failed == 0 {
 		return nil
 	}
-	fmt.Fprintf(w, "enough: note: %d of %d points could not be planned; the error column says why (exit status %d)\n",
-		failed, total, ExitSweepIncomplete)
+	what := fmt.Sprintf("%d of %d points", failed, total)
+	if total == 1 {
+		what = "the only point"
+	}
+	fmt.Fprintf(w, "enough: note: %s could not be planned; the error column says why (exit status %d)\n",
+		what, ExitSweepIncomplete)
 	return &verdictStatus{verdict: "sweep incomplete", code: ExitSweepIncomplete}
 }
 

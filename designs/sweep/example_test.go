@@ -54,5 +54,5 @@ method: fleiss
 	// risk_ratio 0.5: n per group [435 435], power 0.801
 	// risk_ratio 0.6: n per group [721 721], power 0.800
 	// risk_ratio 0.7: n per group [1356 1356], power 0.800
-	// risk_ratio 12: reminders.yaml:5: risk_ratio: 12 with control_risk 0.1 gives a risk of 1.2 in the intervention arm; allowed: an effect that keeps the risk from 1e-9 to 1 − 1e-9
+	// risk_ratio 12: --vary risk_ratio=12: risk_ratio: 12 with control_risk 0.1 gives a risk of 1.2 in the intervention arm; allowed: an effect that keeps the risk from 1e-9 to 1 − 1e-9
 }

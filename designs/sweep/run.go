@@ -6,8 +6,11 @@ import (
 	"fmt"
 	"math"
 	"runtime"
+	"slices"
+	"strings"
 	"sync"
 	"sync/atomic"
+	"time"
 
 	"enough/designs"
 )
@@ -76,6 +79,17 @@ func Run(ctx context.Context, b *designs.Base, g Grid, o Options) ([]Row, error)
 		}
 		keys[k] = a.Key
 	}
+	if b.Spec().Cluster == nil {
+		// Cluster keys on an individually randomised plan: both the size
+		// and the ICC make it a cluster trial; one alone leaves the other
+		// missing at every point.
+		size, icc := slices.Contains(keys, "cluster.size"), slices.Contains(keys, "cluster.icc")
+		for _, k := range keys {
+			if strings.HasPrefix(k, "cluster.") && !(size && icc) {
+				return nil, &GridError{Msg: fmt.Sprintf("--vary: %s does not apply: the specification has no cluster block; allowed: add cluster: with its size and icc (or vary both cluster.size and cluster.icc)", k)}
+			}
+		}
+	}
 	limit := o.MaxPoints
 	switch {
 	case o.Workers < 0:
@@ -102,6 +116,39 @@ func Run(ctx context.Context, b *designs.Base, g Grid, o Options) ([]Row, error)
 	count := 0
 	if first < size {
 		count = (size - first + stride - 1) / stride
+	}
+	if o.Simulate && o.Sim.MaxSeconds > 0 && count > 0 {
+		// The whole sweep is guarded, as enough simulate guards a run: the
+		// first points are simulated one by one (each guarded by the
+		// whole limit) until one is timed, and the sweep is refused when
+		// its points would take longer together on the workers.
+		workers := o.Workers
+		if workers == 0 {
+			workers = runtime.NumCPU()
+		}
+		workers = max(1, min(workers, count))
+		now := o.Sim.Now
+		if now == nil {
+			now = time.Now
+		}
+		for j := 0; j < min(count, 5); j++ {
+			start := now()
+			rows, err := runBlock(ctx, b, g, o, keys, first, stride, j, j+1, count, nil)
+			if err != nil {
+				return nil, err
+			}
+			if len(rows) == 0 || rows[0].Simulation == nil {
+				continue
+			}
+			each := now().Sub(start).Seconds()
+			if predicted := each * float64(count) / float64(workers); predicted > o.Sim.MaxSeconds {
+				return nil, &GridError{Msg: fmt.Sprintf("the sweep is predicted to take about %s s (%s points, about %.2g s each, on %d workers), more than --max-seconds %g; allowed: fewer points or replicates, or raise --max-seconds (0: no limit)",
+					countText(math.Round(predicted)), countText(float64(count)), each, workers, o.Sim.MaxSeconds)}
+			}
+			// Timed: the points need no guard of their own.
+			o.Sim.MaxSeconds = 0
+			break
+		}
 	}
 	if o.Emit == nil {
 		return runBlock(ctx, b, g, o, keys, first, stride, 0, count, count, nil)
@@ -199,6 +246,7 @@ func runBlock(ctx context.Context, b *designs.Base, g Grid, o Options, keys []st
 		row.Point = g.valuesInto(i, points[k*axes:(k+1)*axes:(k+1)*axes])
 		if !plan {
 			s, err := b.AtScratch(sc, keys, row.Point)
+			err = fromVary(err, keys, g, i)
 			if err == nil {
 				a.answer.N, a.answer.Enrol, a.answer.AchievedPower = a.sizes[0:0:2], a.sizes[2:2:4], &a.power
 				if err = designs.QuickInto(s, &a.answer); err == nil {
@@ -210,7 +258,7 @@ func runBlock(ctx context.Context, b *designs.Base, g Grid, o Options, keys []st
 		}
 		s, err := b.At(keys, row.Point)
 		if err != nil {
-			row.Err = err
+			row.Err = fromVary(err, keys, g, i)
 			return true
 		}
 		res, err := designs.Plan(s)
@@ -298,4 +346,40 @@ func runBlock(ctx context.Context, b *designs.Base, g Grid, o Options, keys []st
 		}
 	}
 	return rows, nil
+}
+
+// fromVary names the --vary value behind a point's error: a problem with
+// a varied key's value names "--vary KEY=VALUE" as its origin (no line),
+// as a problem with a --set value names "--set KEY=VALUE".
+func fromVary(err error, keys []string, g Grid, i int) error {
+	if err == nil {
+		return nil
+	}
+	ses := designs.AllSpecErrors(err)
+	if len(ses) == 0 {
+		return err
+	}
+	var texts []string
+	out := make(designs.SpecErrors, len(ses))
+	changed := false
+	for n, se := range ses {
+		out[n] = se
+		k := slices.Index(keys, se.Key)
+		if k < 0 {
+			continue
+		}
+		if texts == nil {
+			texts = g.Texts(i)
+		}
+		c := *se
+		c.File, c.Line = "--vary "+keys[k]+"="+texts[k], 0
+		out[n], changed = &c, true
+	}
+	switch {
+	case !changed:
+		return err
+	case len(out) == 1:
+		return out[0]
+	}
+	return out
 }
