@@ -5,7 +5,6 @@ import (
 	"context"
 	"encoding/json"
 	"io/fs"
-	"os"
 	"sort"
 	"strings"
 	"testing"
@@ -21,16 +20,7 @@ import (
 // example as written and solving each other question, verifies those with a
 // simulate block, and collects every key of the JSON.
 func TestJSONFieldsDocumented(t *testing.T) {
-	readme, err := os.ReadFile("../README.md")
-	if err != nil {
-		t.Fatal(err)
-	}
-	doc := string(readme)
-	start, end := strings.Index(doc, "**JSON**"), strings.Index(doc, "## Exit status")
-	if start < 0 || end < start {
-		t.Fatal("README has no JSON section before the exit statuses")
-	}
-	doc = doc[start:end]
+	doc := readmeBetween(t, "**JSON**", "## Exit status")
 	keys := map[string]string{}
 	names, _ := fs.Glob(examples.Files, "*.yaml")
 	for _, name := range names {

@@ -20,16 +20,7 @@ import (
 // fields inside result, alternatives and simulation are enough plan's,
 // which TestJSONFieldsDocumented checks.
 func TestSweepJSONFieldsDocumented(t *testing.T) {
-	readme, err := os.ReadFile("../README.md")
-	if err != nil {
-		t.Fatal(err)
-	}
-	doc := string(readme)
-	start, end := strings.Index(doc, "## Sweeping assumptions"), strings.Index(doc, "## Output")
-	if start < 0 || end < start {
-		t.Fatal("README has no section Sweeping assumptions before Output")
-	}
-	doc = doc[start:end]
+	doc := readmeBetween(t, "## Sweeping assumptions", "## Output")
 	data, err := os.ReadFile("sweep/falls-visits.yaml")
 	if err != nil {
 		t.Fatal(err)

@@ -267,6 +267,12 @@ func sweepGrid(base *designs.Base, vary []string, maxPoints int) (sweep.Grid, er
 				allowed: "each key in one --vary, with all its values"}
 		}
 		seen[a.Key] = arg
+		for _, set := range base.Spec().Overrides {
+			if k, _, _ := strings.Cut(set, "="); strings.TrimSpace(k) == a.Key {
+				return g, &flagError{flag: "--vary " + arg, msg: fmt.Sprintf("varies %s, which --set %s also sets", a.Key, set),
+					allowed: "one of them: --vary for a grid of values, --set for one value"}
+			}
+		}
 		g.Axes = append(g.Axes, a)
 		if n := len(a.Values); points > math.MaxInt/max(n, 1) {
 			points = math.MaxInt
