@@ -65,7 +65,7 @@ func TestFlagValues(t *testing.T) {
 	const workersAllowed = "a whole number from 0 (one per core) to 10000"
 	const seedAllowed = "a whole number from 0 to 9007199254740992 (2^53)"
 	const maxReplicatesAllowed = "a whole number from 100 to 1e12 (1e9 is read as 1000000000)"
-	const flagList = "--exact, -f/--format, -h/--help, --max-memory, --max-replicates, --max-seconds, -o/--output, -q/--quiet, --replicates, --seed, --set, --verify, --workers"
+	const flagList = "--exact, -f/--format, -h/--help, --max-memory, --max-replicates, --max-seconds, -o/--output, --plot, -q/--quiet, --replicates, --seed, --set, --verify, --workers"
 	for _, c := range []struct {
 		args []string
 		edit func(*want)
@@ -138,7 +138,7 @@ func TestFlagValues(t *testing.T) {
 		{args: []string{"--exact=maybe"},
 			err: `--exact: "maybe" is not true or false; allowed: the flag alone, or --exact=true or --exact=false`},
 		{args: []string{"-f", "pdf"},
-			err: `--format: "pdf" is not a format; allowed: markdown, text, json`},
+			err: `--format: "pdf" is not a format; allowed: markdown, text, json, html`},
 		{args: []string{"-o", ""},
 			err: `--output: "" is an empty file name; allowed: a file name (leave -o out to write to standard output)`},
 		{args: []string{"--output", " "},

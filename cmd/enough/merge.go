@@ -8,6 +8,7 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"enough/designs/plot"
 	"enough/designs/report"
 	"enough/designs/sweep"
 )
@@ -21,6 +22,8 @@ type MergeOptions struct {
 	// terminal, CSV otherwise).
 	Format string
 	Output string
+	// Plot is --plot: the file to draw the sweep to ("" for none).
+	Plot string
 }
 
 // NewCmdMerge builds `enough merge`.
@@ -53,6 +56,7 @@ sweep, the exit status is 6 when some points could not be planned.`,
 	}
 	sweepFormatFlag(cmd, &opts.Format)
 	outputFlag(cmd, &opts.Output)
+	plotFlag(cmd, &opts.Plot, "the solved quantity against the first --vary key, one curve for each value of the second")
 	return cmd
 }
 
@@ -91,6 +95,9 @@ func mergeRun(opts *MergeOptions) error {
 	}
 	var buf bytes.Buffer
 	if err := report.WriteSweep(&buf, t, sweepFormat(opts.Format, opts.Output, opts.IO.Out)); err != nil {
+		return err
+	}
+	if err := writePlot(opts.Plot, func() (*plot.Figure, error) { return plot.Sweep(t, "") }); err != nil {
 		return err
 	}
 	if err := emit(opts.IO.Out, opts.Output, buf.Bytes()); err != nil {

@@ -13,6 +13,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"enough/designs"
+	"enough/designs/plot"
 	"enough/designs/report"
 	"enough/examples"
 )
@@ -35,6 +36,8 @@ type PlanOptions struct {
 	Verify bool
 	Exact  bool
 	Sim    SimFlags
+	// Plot is --plot: the file to draw the plan to ("" for none).
+	Plot string
 }
 
 // SimFlags are the flags of a simulation.
@@ -130,6 +133,7 @@ specification from standard input. One specification at most.`,
 	switchFlag(cmd, &opts.Verify, "verify", "", "verify the plan by simulating the study and its planned test (also when the specification has a simulate block)")
 	switchFlag(cmd, &opts.Exact, "exact", "", "exact power by enumeration of both binomial counts (two-group binary outcomes)")
 	addSimFlags(cmd, &opts.Sim)
+	plotFlag(cmd, &opts.Plot, "power against the size around the plan (against the effect when solving effect)")
 	return cmd
 }
 
@@ -170,10 +174,20 @@ func planRun(opts *PlanOptions) error {
 		}
 	}
 	var buf bytes.Buffer
-	if err := report.Write(&buf, res, opts.Format); err != nil {
+	if opts.Format == "html" {
+		err = planHTML(&buf, opts.IO.ErrOut, res, &plot.Source{File: name, Data: data, Sets: opts.Sets})
+	} else {
+		err = report.Write(&buf, res, opts.Format)
+	}
+	if err != nil {
 		return err
 	}
 	if err := emit(opts.IO.Out, opts.Output, buf.Bytes()); err != nil {
+		return err
+	}
+	if err := writePlot(opts.Plot, func() (*plot.Figure, error) {
+		return plot.ForPlan(res, opts.Command == "simulate", &plot.Source{File: name, Data: data, Sets: opts.Sets})
+	}); err != nil {
 		return err
 	}
 	return stopped

@@ -112,7 +112,12 @@ func reviewRun(opts *ReviewOptions) error {
 	}
 	var buf bytes.Buffer
 	src := report.ReviewSource{File: name, Data: data, Sets: opts.Sets}
-	if err := report.WriteReview(&buf, rep, in, src, opts.Format); err != nil {
+	if opts.Format == "html" {
+		err = reviewHTML(&buf, opts.IO.ErrOut, rep, in, src)
+	} else {
+		err = report.WriteReview(&buf, rep, in, src, opts.Format)
+	}
+	if err != nil {
 		return err
 	}
 	if err := emit(opts.IO.Out, opts.Output, buf.Bytes()); err != nil {

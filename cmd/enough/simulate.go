@@ -72,6 +72,7 @@ cut to 4 per core, as said on standard error and in the notes.`,
 	cmd.Flags().StringArrayVar(&opts.Sets, "set", nil, "override one key, key=value (repeatable)")
 	switchFlag(cmd, &opts.Exact, "exact", "", "also compute exact power by enumeration (two-group binary outcomes)")
 	addSimFlags(cmd, &opts.Sim)
+	plotFlag(cmd, &opts.Plot, "the simulated power with its 95% interval beside the closed form")
 	return cmd
 }
 

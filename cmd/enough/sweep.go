@@ -9,6 +9,7 @@ import (
 	"io"
 	"math"
 	"os"
+	"slices"
 	"strconv"
 	"strings"
 	"sync"
@@ -19,6 +20,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"enough/designs"
+	"enough/designs/plot"
 	"enough/designs/report"
 	"enough/designs/sweep"
 )
@@ -46,6 +48,8 @@ type SweepOptions struct {
 	ShardGiven bool
 	Shards     int
 	Sim        SimFlags
+	// Plot is --plot: the file to draw the sweep to ("" for none).
+	Plot string
 
 	// LookupEnv reads the environment for --shard auto (os.LookupEnv).
 	LookupEnv func(string) (string, bool)
@@ -87,7 +91,7 @@ I and K from a Slurm array task or a Kubernetes indexed Job (with
 			return sweepRun(opts)
 		},
 	}
-	sweepFormatFlag(cmd, &opts.Format)
+	sweepFormatFlag(cmd, &opts.Format, "html")
 	outputFlag(cmd, &opts.Output)
 	cmd.Flags().StringArrayVar(&opts.Vary, "vary", nil, "vary one numeric key: KEY=LIST (comma-separated) or KEY=FROM:TO:STEP (repeatable; the last varies fastest)")
 	cmd.Flags().StringArrayVar(&opts.Sets, "set", nil, "override one key, key=value (repeatable; dotted keys reach nested keys)")
@@ -101,14 +105,17 @@ I and K from a Slurm array task or a Kubernetes indexed Job (with
 	addSimFlags(cmd, &opts.Sim)
 	cmd.Flags().Lookup("workers").Usage = "points solved at once, each by one goroutine (0: one per core); the result does not depend on it"
 	cmd.Flags().Lookup("quiet").Usage = "no progress bar on standard error"
+	plotFlag(cmd, &opts.Plot, "the solved quantity against the first --vary key, one curve for each value of the second")
 	return cmd
 }
 
 // sweepFormatFlag registers -f for sweep and merge: no default value, so
-// that the default can follow standard output.
-func sweepFormatFlag(cmd *cobra.Command, p *string) {
-	cmd.Flags().VarP(&choiceValue{p: p, name: "format", what: "a format", choices: report.SweepFormats}, "format", "f",
-		"output format: "+orWords(report.SweepFormats)+" (default: an aligned table on a terminal, csv otherwise)")
+// that the default can follow standard output. formats are the formats
+// besides report.SweepFormats (sweep's html).
+func sweepFormatFlag(cmd *cobra.Command, p *string, formats ...string) {
+	all := append(slices.Clone(report.SweepFormats), formats...)
+	cmd.Flags().VarP(&choiceValue{p: p, name: "format", what: "a format", choices: all}, "format", "f",
+		"output format: "+orWords(all)+" (default: an aligned table on a terminal, csv otherwise)")
 }
 
 // sweepFormat is the format to write: -f, else an aligned table when the
@@ -131,6 +138,9 @@ func sweepRun(opts *SweepOptions) error {
 		return &flagError{flag: fmt.Sprintf("--shards %d", opts.Shards), msg: "is read only with --shard auto (a Kubernetes indexed Job's count)",
 			allowed: "--shard auto --shards K, or --shard I/K alone"}
 	}
+	if opts.ShardGiven && opts.Plot != "" {
+		return &flagError{flag: "--plot", msg: "a shard holds part of the grid", allowed: "--plot on enough merge, which joins the shards"}
+	}
 	if opts.ShardGiven && opts.Format != "" && opts.Format != "json" {
 		return &flagError{flag: "--format " + opts.Format, msg: "a shard is written as JSON lines, for enough merge",
 			allowed: "-f left out with --shard (or -f json); enough merge -f " + opts.Format + " writes the whole sweep as " + opts.Format}
@@ -149,6 +159,9 @@ func sweepRun(opts *SweepOptions) error {
 	spec := base.Spec()
 	grid, err := sweepGrid(base, opts.Vary, opts.MaxPoints)
 	if err != nil {
+		return err
+	}
+	if err := checkPlotGrid(opts.Plot, grid); err != nil {
 		return err
 	}
 	var shard sweep.Shard
@@ -188,7 +201,7 @@ func sweepRun(opts *SweepOptions) error {
 		}
 		return errSweepInterrupted
 	}
-	if format == "csv" && !opts.ShardGiven && !o.Simulate {
+	if format == "csv" && !opts.ShardGiven && !o.Simulate && opts.Plot == "" {
 		// Written block by block as the grid is solved: a large sweep
 		// holds one block of answers, not all of them.
 		err := sweepCSVStream(ctx, opts, base, grid, o)
@@ -207,6 +220,8 @@ func sweepRun(opts *SweepOptions) error {
 	var buf bytes.Buffer
 	if opts.ShardGiven {
 		err = sweep.WriteLines(&buf, t, shard)
+	} else if format == "html" {
+		err = sweepHTML(&buf, opts.IO.ErrOut, spec, t)
 	} else {
 		err = report.WriteSweep(&buf, t, format)
 	}
@@ -214,6 +229,9 @@ func sweepRun(opts *SweepOptions) error {
 		return err
 	}
 	if err := emit(opts.IO.Out, opts.Output, buf.Bytes()); err != nil {
+		return err
+	}
+	if err := writePlot(opts.Plot, func() (*plot.Figure, error) { return plot.Sweep(t, spec.Title) }); err != nil {
 		return err
 	}
 	return incomplete(opts.IO.ErrOut, t)

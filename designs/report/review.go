@@ -32,9 +32,9 @@ type ReviewSource struct {
 	Sets []string
 }
 
-// WriteReview renders a recheck in the named format ("markdown", "text" or
-// "json"). in is the specification as read for the review; src says where
-// it came from.
+// WriteReview renders a recheck in the named format ("markdown", "text",
+// "json" or "html"; HTML without a plot: see WriteReviewHTML). in is the
+// specification as read for the review; src says where it came from.
 func WriteReview(w io.Writer, rep *review.Report, in *designs.ReviewInput, src ReviewSource, format string) error {
 	if rep == nil || in == nil {
 		return fmt.Errorf("no review to write")
@@ -44,6 +44,8 @@ func WriteReview(w io.Writer, rep *review.Report, in *designs.ReviewInput, src R
 		return buildReview(rep, in, src).markdown(w)
 	case "text", "txt":
 		return buildReview(rep, in, src).text(w)
+	case "html":
+		return buildReview(rep, in, src).html(w, nil)
 	case "json":
 		data, err := reviewJSON(rep, in, src)
 		if err != nil {

@@ -1,0 +1,86 @@
+package main
+
+import (
+	"bytes"
+	"fmt"
+	"io"
+
+	"enough/designs"
+	"enough/designs/plot"
+	"enough/designs/report"
+	"enough/designs/review"
+	"enough/designs/sweep"
+)
+
+// -f html writes one self-contained page (designs/report, html.go) with
+// the plot of what was computed inline. A plot that cannot be drawn (a
+// design the plots do not cover) leaves the page without one, with a note
+// on standard error: the page's content does not depend on it.
+
+// planFigure draws the plot of a plan for its HTML page: the simulated
+// power beside the closed form when the plan was simulated, else power
+// around the planned point (src is the specification as read, which a
+// plan solving effect needs).
+func planFigure(res *designs.Result, src *plot.Source) (*report.Figure, error) {
+	if res.Simulation != nil && res.Simulation.Power != nil {
+		p, err := plot.Simulation(res)
+		if err != nil {
+			return nil, err
+		}
+		svg, err := plot.SVG(p)
+		return &report.Figure{SVG: svg, Caption: "Simulated power with its 95% interval, beside the closed-form power."}, err
+	}
+	p, err := plot.PlanFrom(res, src)
+	if err != nil {
+		return nil, err
+	}
+	svg, err := plot.SVG(p)
+	caption := "Power against the number analysable around the planned point; the dashed line is the target power."
+	if res.Spec != nil && res.Spec.Solve == "effect" {
+		caption = "Power against the effect at the planned size; the dashed line is the target power."
+	}
+	return &report.Figure{SVG: svg, Caption: caption}, err
+}
+
+// sweepFigure draws the plot of a sweep for its HTML page.
+func sweepFigure(spec *designs.Spec, t *sweep.Table) (*report.Figure, error) {
+	f, err := plot.Sweep(t, spec.Title)
+	if err != nil {
+		return nil, err
+	}
+	svg, err := plot.Render(f, "svg")
+	return &report.Figure{SVG: svg, Caption: "The solved quantity across the grid of the sweep."}, err
+}
+
+// figureOrNote returns fig, or nil after a note on errOut when err says
+// the plot could not be drawn.
+func figureOrNote(errOut io.Writer, fig *report.Figure, err error) *report.Figure {
+	if err != nil {
+		fmt.Fprintf(errOut, "enough: note: the HTML page has no plot: %v\n", err)
+		return nil
+	}
+	return fig
+}
+
+// planHTML writes a plan as an HTML page with its plot.
+func planHTML(buf *bytes.Buffer, errOut io.Writer, res *designs.Result, src *plot.Source) error {
+	fig, err := planFigure(res, src)
+	return report.WriteHTML(buf, res, figureOrNote(errOut, fig, err))
+}
+
+// reviewHTML writes a recheck as an HTML page, with the plot of the
+// recomputed plan when there is one.
+func reviewHTML(buf *bytes.Buffer, errOut io.Writer, rep *review.Report, in *designs.ReviewInput, src report.ReviewSource) error {
+	var fig *report.Figure
+	if rep.Plan != nil {
+		f, err := planFigure(rep.Plan, &plot.Source{File: src.File, Data: src.Data, Sets: src.Sets})
+		fig = figureOrNote(errOut, f, err)
+	}
+	return report.WriteReviewHTML(buf, rep, in, src, fig)
+}
+
+// sweepHTML writes a sweep as an HTML page with its plot.
+func sweepHTML(buf *bytes.Buffer, errOut io.Writer, spec *designs.Spec, t *sweep.Table) error {
+	fig, err := sweepFigure(spec, t)
+	return report.WriteSweepHTML(buf, t, report.SweepPage{Title: spec.Title, SpecFile: spec.File, Figure: figureOrNote(errOut, fig, err)})
+}

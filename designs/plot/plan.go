@@ -1,0 +1,331 @@
+package plot
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"slices"
+	"strconv"
+	"strings"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+
+	"enough/designs"
+)
+
+// points is the number of sizes or effects a plan's curve is computed at.
+const points = 40
+
+// Source is the specification behind a plan as it was read: what a plan
+// solving effect needs to compute the power at other effects
+// (designs.NewBase reads it again with solve: power).
+type Source struct {
+	File string
+	Data []byte
+	Sets []string
+}
+
+// Plan draws the plan res: power against the analysable participants per
+// group from about half to twice the planned enrolment, with the target
+// power as a dashed line and the planned point marked; for a precision
+// survey, the margin against the respondents. A plan solving effect needs
+// its specification's source: see [PlanFrom].
+func Plan(res *designs.Result) (*plot.Plot, error) { return PlanFrom(res, nil) }
+
+// PlanFrom is [Plan] with the specification's source, which a plan
+// solving effect needs: it is drawn as power against the effect at the
+// planned size. src may be nil for any other plan.
+func PlanFrom(res *designs.Result, src *Source) (*plot.Plot, error) {
+	if res == nil || res.Spec == nil {
+		return nil, errors.New("no plan to draw")
+	}
+	s := res.Spec
+	switch {
+	case s.Goal == "precision":
+		return marginCurve(res)
+	case s.Solve == "effect":
+		if src == nil {
+			return nil, errors.New("a plan solving effect is drawn from its specification's source (plot.PlanFrom)")
+		}
+		return effectCurve(res, src)
+	}
+	return powerCurve(res, true)
+}
+
+// enrolled is the plan's enrolment: the first group's, or the whole
+// survey's for a cross-sectional design.
+func enrolled(res *designs.Result) int {
+	a := &res.Result
+	if res.Spec.Design == "cross-sectional" || res.Spec.Goal == "precision" {
+		return a.EnrolTotal
+	}
+	if len(a.Enrol) > 0 {
+		return a.Enrol[0]
+	}
+	return 0
+}
+
+// sizes are about points whole enrolments from half to twice e.
+func sizes(e int) []int {
+	var out []int
+	lo, hi := math.Max(2, float64(e)/2), float64(2*e)
+	for i := range points {
+		v := int(math.Round(lo * math.Pow(hi/lo, float64(i)/float64(points-1))))
+		if len(out) == 0 || v > out[len(out)-1] {
+			out = append(out, v)
+		}
+	}
+	return out
+}
+
+// atEnrolment returns the answer of the plan's specification solving
+// power (or, for a precision survey, the margin) at enrolment e, by the
+// engine (designs.Quick).
+func atEnrolment(s0 *designs.Spec, e int) (*designs.Answer, error) {
+	s := *s0
+	s.Overrides = slices.Clone(s0.Overrides)
+	switch {
+	case s.Goal == "precision":
+		s.Solve, s.Total = "effect", e
+	case s.Design == "cross-sectional":
+		s.Solve, s.Power, s.Total = "power", 0, e
+	default:
+		if s.NSecond > 0 && s.N > 0 {
+			s.NSecond = int(math.Round(float64(s.NSecond) * float64(e) / float64(s.N)))
+		} else {
+			s.NSecond = 0
+		}
+		s.Solve, s.Power, s.N = "power", 0, e
+	}
+	return designs.Quick(&s)
+}
+
+// sizeWords is the label of the size axis of a plan.
+func sizeWords(s *designs.Spec) string {
+	switch {
+	case s.Goal == "precision":
+		return "respondents (analysable)"
+	case s.Design == "cross-sectional":
+		return "participants in all (analysable)"
+	case s.Pairing == "paired":
+		return "pairs (analysable)"
+	case s.Arms > 2:
+		return "participants per arm (analysable)"
+	}
+	return "participants per group (analysable, first group)"
+}
+
+// sizeOf is the x value of an answer: the analysable first group, or the
+// analysable total of a cross-sectional design.
+func sizeOf(s *designs.Spec, a *designs.Answer) float64 {
+	if s.Design == "cross-sectional" || len(a.N) == 0 {
+		return float64(a.Total)
+	}
+	return float64(a.N[0])
+}
+
+// powerCurve draws power against n around the plan, with the planned
+// point marked when planned is true.
+func powerCurve(res *designs.Result, planned bool) (*plot.Plot, error) {
+	s := res.Spec
+	e := enrolled(res)
+	if e <= 0 || res.Result.AchievedPower == nil {
+		return nil, errors.New("the plan has no size and power to draw")
+	}
+	var pts plotter.XYs
+	for _, n := range sizes(e) {
+		a, err := atEnrolment(s, n)
+		if err != nil || a.AchievedPower == nil {
+			continue // a size the design does not allow (too few)
+		}
+		pts = append(pts, plotter.XY{X: sizeOf(s, a), Y: *a.AchievedPower})
+	}
+	if len(pts) < 2 {
+		return nil, errors.New("the power could not be computed at the sizes around the plan")
+	}
+	p := newPlot(title(res), sizeWords(s), "power")
+	powerAxis(p)
+	line, err := curve(p, pts, 0, false)
+	if err != nil {
+		return nil, err
+	}
+	p.Legend.Add("power at each size", line...)
+	if s.Power > 0 && s.Solve == "n" {
+		t, err := hline(p, s.Power, pts[0].X, pts[len(pts)-1].X)
+		if err != nil {
+			return nil, err
+		}
+		p.Legend.Add("target power "+pct(s.Power), t)
+	}
+	if planned {
+		x, y := sizeOf(s, &res.Result), *res.Result.AchievedPower
+		m, err := mark(p, x, y, draw.CircleGlyph{}, fmt.Sprintf("n = %s, power %s", strconv.Itoa(int(x)), pct(y)))
+		if err != nil {
+			return nil, err
+		}
+		p.Legend.Add("the plan", m)
+	}
+	p.Legend.Top, p.Legend.Left = false, false
+	p.Legend.XOffs, p.Legend.YOffs = -vg.Points(6), vg.Points(6)
+	return p, nil
+}
+
+// marginCurve draws a precision survey's margin against its size.
+func marginCurve(res *designs.Result) (*plot.Plot, error) {
+	s := res.Spec
+	e := enrolled(res)
+	if e <= 0 || res.Result.Margin == nil {
+		return nil, errors.New("the survey has no size and margin to draw")
+	}
+	var pts plotter.XYs
+	for _, n := range sizes(e) {
+		a, err := atEnrolment(s, n)
+		if err != nil || a.Margin == nil {
+			continue
+		}
+		pts = append(pts, plotter.XY{X: sizeOf(s, a), Y: *a.Margin})
+	}
+	if len(pts) < 2 {
+		return nil, errors.New("the margin could not be computed at the sizes around the plan")
+	}
+	p := newPlot(title(res), sizeWords(s), "margin of the interval (± proportion)")
+	p.Y.Min = 0
+	line, err := curve(p, pts, 0, false)
+	if err != nil {
+		return nil, err
+	}
+	p.Legend.Add("margin at each size", line...)
+	x, y := sizeOf(s, &res.Result), *res.Result.Margin
+	m, err := mark(p, x, y, draw.CircleGlyph{}, fmt.Sprintf("n = %d, margin ±%.3g", int(x), y))
+	if err != nil {
+		return nil, err
+	}
+	p.Legend.Add("the plan", m)
+	legendClear(p, false)
+	return p, nil
+}
+
+// effectCurve draws power against the effect at the planned size.
+func effectCurve(res *designs.Result, src *Source) (*plot.Plot, error) {
+	s := res.Spec
+	d := res.Result.Detectable
+	key := s.EffectKey
+	if d == nil || key == "" || (d.Scale != "" && d.Scale != key) {
+		return nil, errors.New("the plan gives no detectable effect on its effect's scale to draw")
+	}
+	ratio := strings.HasSuffix(key, "_ratio")
+	null := 0.0
+	switch {
+	case ratio:
+		null = 1
+	case !strings.HasSuffix(key, "_difference"):
+		null = s.P2 // the effect given as the first group's risk
+	}
+	// The side the plan looks at: the effect's own, else the upper one.
+	bound := d.Upper
+	if d.Upper == nil || (d.Lower != nil && s.EffectValue < null) {
+		bound = d.Lower
+	}
+	if bound == nil {
+		return nil, errors.New("the plan gives no detectable effect to draw")
+	}
+	det := *bound
+	sets := append(slices.Clone(src.Sets), "solve=power", key+"="+strconv.FormatFloat(det, 'g', -1, 64))
+	base, err := designs.NewBase(src.File, src.Data, sets)
+	if err != nil {
+		return nil, fmt.Errorf("the power at other effects: %w", err)
+	}
+	var pts plotter.XYs
+	for i := 1; i <= points; i++ {
+		f := 1.8 * float64(i) / points
+		v := null + f*(det-null)
+		if ratio {
+			v = math.Exp(f * math.Log(det))
+		}
+		sp, err := base.At([]string{key}, []float64{v})
+		if err != nil {
+			continue // an effect the outcome does not allow
+		}
+		a, err := designs.Quick(sp)
+		if err != nil || a.AchievedPower == nil {
+			continue
+		}
+		pts = append(pts, plotter.XY{X: v, Y: *a.AchievedPower})
+	}
+	if len(pts) < 2 {
+		return nil, errors.New("the power could not be computed at the effects around the plan")
+	}
+	slices.SortFunc(pts, func(a, b plotter.XY) int { return cmpFloat(a.X, b.X) })
+	n := 0
+	if len(res.Result.N) > 0 {
+		n = res.Result.N[0]
+	}
+	p := newPlot(title(res), Words(key), fmt.Sprintf("power (first group: %d analysable)", n))
+	powerAxis(p)
+	line, err := curve(p, pts, 0, false)
+	if err != nil {
+		return nil, err
+	}
+	p.Legend.Add("power at each effect", line...)
+	if s.Power > 0 {
+		t, err := hline(p, s.Power, pts[0].X, pts[len(pts)-1].X)
+		if err != nil {
+			return nil, err
+		}
+		p.Legend.Add("target power "+pct(s.Power), t)
+		m, err := mark(p, det, s.Power, draw.CircleGlyph{}, fmt.Sprintf("detectable %s %.3g", Words(key), det))
+		if err != nil {
+			return nil, err
+		}
+		p.Legend.Add("the plan", m)
+	}
+	p.Legend.Top, p.Legend.Left = false, det < null
+	p.Legend.XOffs, p.Legend.YOffs = vg.Points(6), vg.Points(6)
+	if det > null {
+		p.Legend.XOffs = -vg.Points(6)
+	}
+	return p, nil
+}
+
+func cmpFloat(a, b float64) int {
+	switch {
+	case a < b:
+		return -1
+	case a > b:
+		return 1
+	}
+	return 0
+}
+
+// title is the plot's title: the study's.
+func title(res *designs.Result) string {
+	if res.Title != "" {
+		return res.Title
+	}
+	return "Study plan"
+}
+
+// pct writes a proportion as a percentage: 0.8 as "80%".
+func pct(x float64) string {
+	s := strconv.FormatFloat(100*x, 'f', 1, 64)
+	return strings.TrimSuffix(s, ".0") + "%"
+}
+
+// ForPlan is the figure of a plan as enough plan and enough simulate draw
+// it: [Simulation] when simulated is true, else [PlanFrom].
+func ForPlan(res *designs.Result, simulated bool, src *Source) (*Figure, error) {
+	var p *plot.Plot
+	var err error
+	if simulated {
+		p, err = Simulation(res)
+	} else {
+		p, err = PlanFrom(res, src)
+	}
+	if err != nil {
+		return nil, err
+	}
+	return Of(p), nil
+}

@@ -1,0 +1,222 @@
+package plot
+
+import (
+	"fmt"
+	"math"
+	"slices"
+	"strconv"
+	"strings"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/vg"
+
+	"enough/designs"
+	"enough/designs/sweep"
+)
+
+// MaxPanels is the largest number of panels a sweep's figure has: one for
+// each value of the third varied key.
+const MaxPanels = 12
+
+// figure is what a sweep's plot shows on its vertical axis.
+type figure struct {
+	// label is the axis label; short the same for a panel of a tiled
+	// figure, whose axis is shorter.
+	label, short string
+	value        func(a *designs.Answer) (float64, bool)
+	power        bool
+}
+
+// solvedFigure chooses the vertical axis of a sweep's plot from its
+// columns and answers: the analysable size when it solved n, the margin
+// or the detectable effect when it solved effect, the power otherwise.
+func solvedFigure(t *sweep.Table) figure {
+	has := func(c string) bool { return slices.Contains(t.Header.Columns, c) }
+	solvedN := false
+	scale := ""
+	for i := range t.Records {
+		if a := t.Records[i].Result; a != nil {
+			solvedN = solvedN || a.NStar > 0
+			if a.Detectable != nil && scale == "" {
+				scale = a.Detectable.Scale
+			}
+		}
+	}
+	first := func(a *designs.Answer) (float64, bool) {
+		if len(a.N) == 0 {
+			return 0, false
+		}
+		return float64(a.N[0]), true
+	}
+	ptr := func(p *float64) (float64, bool) {
+		if p == nil {
+			return 0, false
+		}
+		return *p, true
+	}
+	switch {
+	case has(sweep.ColAchievedMargin):
+		return figure{label: "margin of the interval (± proportion)", short: "margin (± proportion)", value: func(a *designs.Answer) (float64, bool) { return ptr(a.Margin) }}
+	case has(sweep.ColDetectableUpper):
+		upper := false
+		for i := range t.Records {
+			if a := t.Records[i].Result; a != nil && a.Detectable != nil && a.Detectable.Upper != nil {
+				upper = true
+			}
+		}
+		side := "lower"
+		if upper {
+			side = "upper"
+		}
+		return figure{label: "detectable " + Words(scale) + " (" + side + ")", short: "detectable " + Words(scale), value: func(a *designs.Answer) (float64, bool) {
+			if a.Detectable == nil {
+				return 0, false
+			}
+			if upper {
+				return ptr(a.Detectable.Upper)
+			}
+			return ptr(a.Detectable.Lower)
+		}}
+	case solvedN && has(sweep.ColAnalysable):
+		return figure{label: "participants (analysable)", short: "participants (analysable)", value: first}
+	case solvedN:
+		return figure{label: "participants per group (analysable, first group)", short: "per group (analysable)", value: first}
+	}
+	return figure{label: "power", short: "power", power: true, value: func(a *designs.Answer) (float64, bool) { return ptr(a.AchievedPower) }}
+}
+
+// KeysError is a sweep a plot cannot show: more than three varied keys,
+// or a third with more than [MaxPanels] values. Its message names the
+// keys to fix.
+type KeysError struct{ Msg string }
+
+func (e *KeysError) Error() string { return e.Msg }
+
+// CheckKeys says whether a sweep over keys (the --vary keys, in order),
+// whose third key has panels values, can be drawn: nil, or a *KeysError
+// naming the keys to fix. A sweep checks it before computing its grid.
+func CheckKeys(keys []string, panels int) error {
+	switch {
+	case len(keys) > 3:
+		return &KeysError{fmt.Sprintf("a plot shows at most three varied keys (%s on the axis, %s as curves, %s as panels); fix %s to one value (--set) or leave --plot out",
+			keys[0], keys[1], keys[2], strings.Join(keys[3:], ", "))}
+	case len(keys) == 3 && panels > MaxPanels:
+		return &KeysError{fmt.Sprintf("a plot shows one panel for each value of the third varied key, %s, at most %d (it has %d); give %s fewer values, or fix it to one value (--set)",
+			keys[2], MaxPanels, panels, keys[2])}
+	}
+	return nil
+}
+
+// Sweep draws a sweep's table: the first varied key on the horizontal
+// axis, one curve for each value of the second (each with its own line
+// style, marker and colour), and the solved quantity (the analysable size,
+// the power or the detectable effect) on the vertical axis; a third varied
+// key gives one panel for each of its values, up to [MaxPanels]. title is
+// the study's title ("" for none). More than three varied keys, or a third
+// with more than MaxPanels values, is an error naming the keys to fix.
+// Points that could not be planned are left out of their curve.
+func Sweep(t *sweep.Table, title string) (*Figure, error) {
+	keys := t.Header.Keys()
+	if len(keys) == 0 {
+		return nil, fmt.Errorf("the sweep has no varied key to draw")
+	}
+	fig := solvedFigure(t)
+	var panels, series []string
+	for i := range t.Records {
+		r := &t.Records[i]
+		if len(keys) > 1 && len(r.Point) > 1 && !slices.Contains(series, r.Point[1]) {
+			series = append(series, r.Point[1])
+		}
+		if len(keys) > 2 && len(r.Point) > 2 && !slices.Contains(panels, r.Point[2]) {
+			panels = append(panels, r.Point[2])
+		}
+	}
+	if err := CheckKeys(keys, len(panels)); err != nil {
+		return nil, err
+	}
+	if len(panels) == 0 {
+		panels = []string{""}
+	}
+	if len(series) == 0 {
+		series = []string{""}
+	}
+	var plots []*plot.Plot
+	for _, pv := range panels {
+		name := title
+		if pv != "" {
+			name = Words(keys[2]) + " " + pv
+			if len(panels) == 1 && title != "" {
+				name = title + ": " + name
+			}
+		}
+		ylabel := fig.label
+		if len(panels) > 1 {
+			ylabel = fig.short
+		}
+		p := newPlot(name, Words(keys[0]), ylabel)
+		if fig.power {
+			powerAxis(p)
+		}
+		drawn, rising := 0, true
+		for si, sv := range series {
+			var pts plotter.XYs
+			for i := range t.Records {
+				r := &t.Records[i]
+				if r.Result == nil || len(r.Point) < len(keys) ||
+					(len(keys) > 1 && r.Point[1] != sv) || (len(keys) > 2 && r.Point[2] != pv) {
+					continue
+				}
+				x, err := strconv.ParseFloat(r.Point[0], 64)
+				y, ok := fig.value(r.Result)
+				if err != nil || !ok || math.IsNaN(y) || math.IsInf(y, 0) {
+					continue
+				}
+				pts = append(pts, plotter.XY{X: x, Y: y})
+			}
+			if len(pts) == 0 {
+				continue
+			}
+			slices.SortStableFunc(pts, func(a, b plotter.XY) int { return cmpFloat(a.X, b.X) })
+			th, err := curve(p, pts, si, true)
+			if err != nil {
+				return nil, err
+			}
+			if drawn == 0 {
+				rising = pts[len(pts)-1].Y >= pts[0].Y
+			}
+			drawn++
+			if sv != "" {
+				p.Legend.Add(Words(keys[1])+" "+sv, th...)
+			}
+		}
+		if drawn == 0 {
+			return nil, fmt.Errorf("no point of the sweep could be planned: nothing to draw")
+		}
+		if !fig.power {
+			// Room above the curves for the legend.
+			p.Y.Min = math.Min(0, p.Y.Min)
+			p.Y.Max += 0.25 * (p.Y.Max - p.Y.Min)
+		}
+		legendClear(p, rising)
+		if len(panels) > 1 {
+			p.Legend.TextStyle.Font = sans(8)
+			p.Legend.ThumbnailWidth = vg.Points(16)
+		}
+		plots = append(plots, p)
+	}
+	if len(plots) == 1 {
+		return Of(plots[0]), nil
+	}
+	cols := min(maxCols, len(plots))
+	if len(plots) <= 4 {
+		cols = min(2, len(plots))
+	}
+	var rows [][]*plot.Plot
+	for i := 0; i < len(plots); i += cols {
+		row := make([]*plot.Plot, cols)
+		copy(row, plots[i:min(i+cols, len(plots))])
+		rows = append(rows, row)
+	}
+	return &Figure{Panels: rows}, nil
+}

@@ -1,0 +1,49 @@
+package plot
+
+import "strings"
+
+// keyWords are the axis labels of the keys a plot may show, in the
+// trade's words with their units.
+var keyWords = map[string]string{
+	"n":                    "participants enrolled per group",
+	"n_second":             "participants enrolled in the second group",
+	"total":                "participants enrolled",
+	"power":                "target power",
+	"alpha":                "significance level (alpha)",
+	"ratio":                "allocation ratio (second : first)",
+	"attrition":            "attrition (proportion lost)",
+	"risk_ratio":           "risk ratio",
+	"odds_ratio":           "odds ratio",
+	"hazard_ratio":         "hazard ratio",
+	"risk_difference":      "risk difference",
+	"mean_difference":      "difference in means",
+	"sd":                   "standard deviation",
+	"margin":               "margin",
+	"design_effect":        "design effect",
+	"expected_prevalence":  "expected prevalence (proportion)",
+	"confidence":           "confidence level",
+	"exposure_prevalence":  "exposure prevalence (proportion)",
+	"non_adherence":        "non-adherence (proportion)",
+	"contamination":        "contamination (proportion)",
+	"cluster.icc":          "intracluster correlation",
+	"cluster.size":         "participants per cluster",
+	"cluster.size_cv":      "cluster size (coefficient of variation)",
+	"baseline_correlation": "baseline correlation",
+	"within_correlation":   "within-pair correlation",
+	"accrual":              "accrual (time units)",
+	"follow_up":            "follow-up (time units)",
+	"dropout":              "dropout (proportion per time unit)",
+}
+
+// Words names key in the words of an axis label: "risk ratio" for
+// risk_ratio, the key with spaces for underscores and dots otherwise.
+func Words(key string) string {
+	if w, ok := keyWords[key]; ok {
+		return w
+	}
+	w := strings.NewReplacer("_", " ", ".", " ").Replace(key)
+	if strings.HasSuffix(key, "_risk") || strings.HasSuffix(key, "_prevalence") {
+		w += " (proportion)"
+	}
+	return w
+}
