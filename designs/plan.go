@@ -656,22 +656,30 @@ func designFigures(s *Spec, ans *Answer, sv *solved) {
 	}
 }
 
-func planComparison(s *Spec, res *Result, m *MethodInfo) error {
+// OtherMethods returns, in the catalogue's order, the methods whose
+// answers a plan gives beside the chosen one (its alternatives): those that
+// serve the specification's design, goal, outcome and hypothesis; none for
+// a cluster trial, whose cluster-level t test is the analysis whatever the
+// method, nor for a precision survey.
+func OtherMethods(s *Spec) []*MethodInfo {
 	others := []*MethodInfo{}
+	if s.Cluster != nil || s.Goal == "precision" {
+		return others
+	}
 	for i := range Methods {
-		if s.Cluster != nil {
-			// The cluster-level t test is the analysis whatever the method:
-			// other methods would give the same answer.
-			break
-		}
 		o := &Methods[i]
 		if s.MarginScale == "ratio" && o.ID == "blackwelder" {
 			continue // a Wald method on the difference scale
 		}
-		if o.ID != m.ID && o.ID != "exact" && o.serves(s.Design, s.Goal, s.Outcome, s.Hypothesis) {
+		if o.ID != s.Method && o.ID != "exact" && o.serves(s.Design, s.Goal, s.Outcome, s.Hypothesis) {
 			others = append(others, o)
 		}
 	}
+	return others
+}
+
+func planComparison(s *Spec, res *Result, m *MethodInfo) error {
+	others := OtherMethods(s)
 	tr := &trail{}
 	defer func() { res.Steps = tr.steps }()
 	ans := &res.Result

@@ -254,8 +254,18 @@ func (r Result) MarshalJSON() ([]byte, error) {
 	c := plain(r)
 	c.Alpha, c.Ratio = round12p(c.Alpha), round12p(c.Ratio)
 	c.DesignEff = round12(c.DesignEff)
-	c.Result.DesignEffect = round12p(c.Result.DesignEffect)
-	c.Result.AlphaPerComparison = round12p(c.Result.AlphaPerComparison)
+	return json.Marshal(c)
+}
+
+// MarshalJSON writes the answer with the settings derived from the inputs
+// (the design effect, the alpha per comparison) rounded to 12 significant
+// digits, as the plan's JSON writes them wherever the answer stands (a
+// sweep's rows too).
+func (a Answer) MarshalJSON() ([]byte, error) {
+	type plain Answer
+	c := plain(a)
+	c.DesignEffect = round12p(c.DesignEffect)
+	c.AlphaPerComparison = round12p(c.AlphaPerComparison)
 	return json.Marshal(c)
 }
 

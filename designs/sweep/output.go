@@ -219,56 +219,10 @@ func methodFigures(solve string) []string {
 // leaves its columns empty.
 func OtherMethods(s *designs.Spec) []string {
 	out := []string{}
-	if s.Cluster != nil || s.Goal == "precision" {
-		return out
-	}
-	for _, m := range designs.Methods {
-		switch {
-		case m.ID == s.Method || m.ID == "exact":
-		case s.MarginScale == "ratio" && m.ID == "blackwelder":
-			// A Wald method on the difference scale.
-		case serves(m, s):
-			out = append(out, m.ID)
-		}
+	for _, m := range designs.OtherMethods(s) {
+		out = append(out, m.ID)
 	}
 	return out
-}
-
-// serves reports whether m serves the design, goal, outcome and
-// hypothesis of s, as enough plan chooses the alternatives.
-func serves(m designs.MethodInfo, s *designs.Spec) bool {
-	or := func(v, def string) string {
-		if v == "" {
-			return def
-		}
-		return v
-	}
-	if m.Goal != "" && s.Design == "cross-sectional" && s.Goal != m.Goal {
-		return false
-	}
-	if m.Goal == "precision" && s.Design != "cross-sectional" {
-		return false
-	}
-	if or(m.Outcome, "binary") != or(s.Outcome, "binary") {
-		return false
-	}
-	hyps := m.Hypotheses
-	if hyps == nil {
-		hyps = []string{"superiority"}
-	}
-	ok := false
-	for _, h := range hyps {
-		ok = ok || h == or(s.Hypothesis, "superiority")
-	}
-	if !ok {
-		return false
-	}
-	for _, d := range m.Designs {
-		if d == s.Design {
-			return true
-		}
-	}
-	return false
 }
 
 // NewTable gathers the rows of a sweep into its table. errObject gives the
@@ -385,11 +339,7 @@ func AppendElement(dst []byte, h *Header, r *Record) ([]byte, error) {
 	if r.Result == nil {
 		dst = append(dst, "null"...)
 	} else {
-		a := *r.Result
-		// As enough plan's JSON writes them (designs.Result.MarshalJSON):
-		// settings derived from the inputs rounded to 12 digits.
-		a.DesignEffect, a.AlphaPerComparison = round12p(a.DesignEffect), round12p(a.AlphaPerComparison)
-		b, err := marshal(a)
+		b, err := marshal(r.Result)
 		if err != nil {
 			return dst, err
 		}
@@ -424,19 +374,6 @@ func AppendElement(dst []byte, h *Header, r *Record) ([]byte, error) {
 // (HTML characters escaped, as in enough plan's JSON).
 func marshal(v any) ([]byte, error) {
 	return json.Marshal(v)
-}
-
-// round12p rounds a pointed-to value to 12 significant digits, as
-// enough plan's JSON writes the settings derived from the inputs.
-func round12p(p *float64) *float64 {
-	if p == nil || *p == 0 || math.IsNaN(*p) || math.IsInf(*p, 0) {
-		return p
-	}
-	v, err := strconv.ParseFloat(strconv.FormatFloat(*p, 'g', 12, 64), 64)
-	if err != nil {
-		return p
-	}
-	return &v
 }
 
 // WriteLines writes the table as a shard's JSON lines: one line per
