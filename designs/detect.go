@@ -204,3 +204,18 @@ func refine(f func(float64) float64, lo, hi float64) (float64, bool) {
 	}
 	return x, true
 }
+
+// DetectableSide is the side of no difference on which a plan solving
+// effect is read: "lower" when a one-sided test looks down, or when a
+// two-sided plan's stated effect puts the first group lower (a protective
+// effect), else "upper". A plot of detectable effects draws this side.
+func DetectableSide(s *Spec) string {
+	dir := s.Direction
+	if s.Sides != 1 {
+		dir = impliedDirection(s)
+	}
+	if dir < 0 {
+		return "lower"
+	}
+	return "upper"
+}

@@ -17,34 +17,21 @@ import (
 // design the plots do not cover) leaves the page without one, with a note
 // on standard error: the page's content does not depend on it.
 
-// planFigure draws the plot of a plan for its HTML page: the simulated
-// power beside the closed form when the plan was simulated, else power
-// around the planned point (src is the specification as read, which a
-// plan solving effect needs).
+// planFigure draws the plot of a plan for its HTML page, as --plot draws
+// it (plot.ForPlan); src is the specification as read, which a plan
+// solving effect needs.
 func planFigure(res *designs.Result, src *plot.Source) (*report.Figure, error) {
-	if res.Simulation != nil && res.Simulation.Power != nil {
-		p, err := plot.Simulation(res)
-		if err != nil {
-			return nil, err
-		}
-		svg, err := plot.SVG(p)
-		return &report.Figure{SVG: svg, Caption: "Simulated power with its 95% interval, beside the closed-form power."}, err
-	}
-	p, err := plot.PlanFrom(res, src)
+	f, err := plot.ForPlan(res, src)
 	if err != nil {
 		return nil, err
 	}
-	svg, err := plot.SVG(p)
-	caption := "Power against the number analysable around the planned point; the dashed line is the target power."
-	if res.Spec != nil && res.Spec.Solve == "effect" {
-		caption = "Power against the effect at the planned size; the dashed line is the target power."
-	}
-	return &report.Figure{SVG: svg, Caption: caption}, err
+	svg, err := plot.Render(f, "svg")
+	return &report.Figure{SVG: svg, Caption: plot.Caption(res)}, err
 }
 
 // sweepFigure draws the plot of a sweep for its HTML page.
-func sweepFigure(spec *designs.Spec, t *sweep.Table) (*report.Figure, error) {
-	f, err := plot.Sweep(t, spec.Title)
+func sweepFigure(t *sweep.Table) (*report.Figure, error) {
+	f, err := plot.Sweep(t)
 	if err != nil {
 		return nil, err
 	}
@@ -80,7 +67,7 @@ func reviewHTML(buf *bytes.Buffer, errOut io.Writer, rep *review.Report, in *des
 }
 
 // sweepHTML writes a sweep as an HTML page with its plot.
-func sweepHTML(buf *bytes.Buffer, errOut io.Writer, spec *designs.Spec, t *sweep.Table) error {
-	fig, err := sweepFigure(spec, t)
-	return report.WriteSweepHTML(buf, t, report.SweepPage{Title: spec.Title, SpecFile: spec.File, Figure: figureOrNote(errOut, fig, err)})
+func sweepHTML(buf *bytes.Buffer, errOut io.Writer, t *sweep.Table) error {
+	fig, err := sweepFigure(t)
+	return report.WriteSweepHTML(buf, t, figureOrNote(errOut, fig, err))
 }

@@ -54,7 +54,7 @@ sweep, the exit status is 6 when some points could not be planned.`,
 			return mergeRun(opts)
 		},
 	}
-	sweepFormatFlag(cmd, &opts.Format)
+	sweepFormatFlag(cmd, &opts.Format, "html")
 	outputFlag(cmd, &opts.Output)
 	plotFlag(cmd, &opts.Plot, "the solved quantity against the first --vary key, one curve for each value of the second")
 	return cmd
@@ -94,10 +94,15 @@ func mergeRun(opts *MergeOptions) error {
 		return err
 	}
 	var buf bytes.Buffer
-	if err := report.WriteSweep(&buf, t, sweepFormat(opts.Format, opts.Output, opts.IO.Out)); err != nil {
+	if format := sweepFormat(opts.Format, opts.Output, opts.IO.Out); format == "html" {
+		err = sweepHTML(&buf, opts.IO.ErrOut, t)
+	} else {
+		err = report.WriteSweep(&buf, t, format)
+	}
+	if err != nil {
 		return err
 	}
-	if err := writePlot(opts.Plot, func() (*plot.Figure, error) { return plot.Sweep(t, "") }); err != nil {
+	if err := writePlot(opts.Plot, func() (*plot.Figure, error) { return plot.Sweep(t) }); err != nil {
 		return err
 	}
 	if err := emit(opts.IO.Out, opts.Output, buf.Bytes()); err != nil {

@@ -186,7 +186,7 @@ func planRun(opts *PlanOptions) error {
 		return err
 	}
 	if err := writePlot(opts.Plot, func() (*plot.Figure, error) {
-		return plot.ForPlan(res, opts.Command == "simulate", &plot.Source{File: name, Data: data, Sets: opts.Sets})
+		return plot.ForPlan(res, &plot.Source{File: name, Data: data, Sets: opts.Sets})
 	}); err != nil {
 		return err
 	}

@@ -221,7 +221,7 @@ func sweepRun(opts *SweepOptions) error {
 	if opts.ShardGiven {
 		err = sweep.WriteLines(&buf, t, shard)
 	} else if format == "html" {
-		err = sweepHTML(&buf, opts.IO.ErrOut, spec, t)
+		err = sweepHTML(&buf, opts.IO.ErrOut, t)
 	} else {
 		err = report.WriteSweep(&buf, t, format)
 	}
@@ -231,7 +231,7 @@ func sweepRun(opts *SweepOptions) error {
 	if err := emit(opts.IO.Out, opts.Output, buf.Bytes()); err != nil {
 		return err
 	}
-	if err := writePlot(opts.Plot, func() (*plot.Figure, error) { return plot.Sweep(t, spec.Title) }); err != nil {
+	if err := writePlot(opts.Plot, func() (*plot.Figure, error) { return plot.Sweep(t) }); err != nil {
 		return err
 	}
 	return incomplete(opts.IO.ErrOut, t)

@@ -114,6 +114,8 @@ func sizeWords(s *designs.Spec) string {
 		return "pairs (analysable)"
 	case s.Arms > 2:
 		return "participants per arm (analysable)"
+	case s.Cluster != nil:
+		return fmt.Sprintf("participants per arm (analysable, in clusters of %s)", strconv.FormatFloat(s.Cluster.Size, 'g', 4, 64))
 	}
 	return "participants per group (analysable, first group)"
 }
@@ -146,13 +148,17 @@ func powerCurve(res *designs.Result, planned bool) (*plot.Plot, error) {
 	if len(pts) < 2 {
 		return nil, errors.New("the power could not be computed at the sizes around the plan")
 	}
-	p := newPlot(title(res), sizeWords(s), "power")
+	ylabel := "power"
+	if s.Arms > 2 {
+		ylabel = "power of each comparison with control"
+	}
+	p := newPlot(title(res), sizeWords(s), ylabel)
 	powerAxis(p)
 	line, err := curve(p, pts, 0, false)
 	if err != nil {
 		return nil, err
 	}
-	p.Legend.Add("power at each size", line...)
+	p.Legend.Add(withMethod("power at each size", res), line...)
 	if s.Power > 0 && s.Solve == "n" {
 		t, err := hline(p, s.Power, pts[0].X, pts[len(pts)-1].X)
 		if err != nil {
@@ -197,7 +203,7 @@ func marginCurve(res *designs.Result) (*plot.Plot, error) {
 	if err != nil {
 		return nil, err
 	}
-	p.Legend.Add("margin at each size", line...)
+	p.Legend.Add(withMethod("margin at each size", res), line...)
 	x, y := sizeOf(s, &res.Result), *res.Result.Margin
 	m, err := mark(p, x, y, draw.CircleGlyph{}, fmt.Sprintf("n = %d, margin ±%.3g", int(x), y))
 	if err != nil {
@@ -224,11 +230,7 @@ func effectCurve(res *designs.Result, src *Source) (*plot.Plot, error) {
 	case !strings.HasSuffix(key, "_difference"):
 		null = s.P2 // the effect given as the first group's risk
 	}
-	// The side the plan looks at: the effect's own, else the upper one.
-	bound := d.Upper
-	if d.Upper == nil || (d.Lower != nil && s.EffectValue < null) {
-		bound = d.Lower
-	}
+	bound := detectableBound(d, designs.DetectableSide(s))
 	if bound == nil {
 		return nil, errors.New("the plan gives no detectable effect to draw")
 	}
@@ -269,7 +271,7 @@ func effectCurve(res *designs.Result, src *Source) (*plot.Plot, error) {
 	if err != nil {
 		return nil, err
 	}
-	p.Legend.Add("power at each effect", line...)
+	p.Legend.Add(withMethod("power at each effect", res), line...)
 	if s.Power > 0 {
 		t, err := hline(p, s.Power, pts[0].X, pts[len(pts)-1].X)
 		if err != nil {
@@ -314,12 +316,14 @@ func pct(x float64) string {
 	return strings.TrimSuffix(s, ".0") + "%"
 }
 
-// ForPlan is the figure of a plan as enough plan and enough simulate draw
-// it: [Simulation] when simulated is true, else [PlanFrom].
-func ForPlan(res *designs.Result, simulated bool, src *Source) (*Figure, error) {
+// ForPlan is the figure of a plan, the one rule that enough plan,
+// enough simulate and their HTML pages follow: [Simulation] when the plan
+// carries a finished simulation (enough simulate, or enough plan
+// --verify), else [PlanFrom]. Caption says in a sentence what it shows.
+func ForPlan(res *designs.Result, src *Source) (*Figure, error) {
 	var p *plot.Plot
 	var err error
-	if simulated {
+	if simulated(res) {
 		p, err = Simulation(res)
 	} else {
 		p, err = PlanFrom(res, src)
@@ -328,4 +332,38 @@ func ForPlan(res *designs.Result, simulated bool, src *Source) (*Figure, error) 
 		return nil, err
 	}
 	return Of(p), nil
+}
+
+// simulated says whether res carries a finished simulation.
+func simulated(res *designs.Result) bool {
+	return res.Simulation != nil && res.Simulation.Power != nil
+}
+
+// Caption is the sentence under the figure [ForPlan] draws for res.
+func Caption(res *designs.Result) string {
+	switch {
+	case simulated(res):
+		return "Simulated power with its 95% interval, beside the closed-form power; the dashed line is the target power."
+	case res.Spec != nil && res.Spec.Solve == "effect":
+		return "Power against the effect at the planned size; the dashed line is the target power."
+	}
+	return "Power against the number analysable around the planned point; the dashed line is the target power."
+}
+
+// detectableBound is the detectable effect on side ("lower" or "upper"),
+// else the other one when the plan has none on that side.
+func detectableBound(d *designs.Detectable, side string) *float64 {
+	if side == "lower" && d.Lower != nil || d.Upper == nil {
+		return d.Lower
+	}
+	return d.Upper
+}
+
+// withMethod names the plan's method after what: "power at each size
+// (Fleiss, Tytun & Ury 1980)".
+func withMethod(what string, res *designs.Result) string {
+	if res.Short == "" {
+		return what
+	}
+	return what + " (" + res.Short + ")"
 }

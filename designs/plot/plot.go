@@ -49,6 +49,9 @@ var Formats = []string{"svg", "png", "pdf"}
 // Figure is one plot, or several panels drawn on one page (a sweep with a
 // third varied key): Panels holds the plots row by row.
 type Figure struct {
+	// Title is drawn above the panels of a tiled figure (a single plot
+	// carries its own).
+	Title  string
 	Panels [][]*plot.Plot
 }
 
@@ -60,7 +63,15 @@ func (f *Figure) size() (vg.Length, vg.Length) {
 	if len(f.Panels) == 1 && len(f.Panels[0]) == 1 {
 		return Width, Height
 	}
-	return Width, panelHeight * vg.Length(len(f.Panels))
+	return Width, panelHeight*vg.Length(len(f.Panels)) + f.titleHeight()
+}
+
+// titleHeight is the room the title of a tiled figure takes.
+func (f *Figure) titleHeight() vg.Length {
+	if f.Title == "" {
+		return 0
+	}
+	return vg.Centimeter
 }
 
 // FormatOf returns the format a path's extension names (svg, png or pdf),
@@ -128,6 +139,13 @@ func (f *Figure) draw(dc draw.Canvas) {
 		f.Panels[0][0].Draw(dc)
 		return
 	}
+	if h := f.titleHeight(); h > 0 {
+		sty := draw.TextStyle{Color: color.Black, Font: sans(11), XAlign: draw.XCenter, YAlign: draw.YCenter}
+		sty.Handler = plot.DefaultTextHandler
+		mid := vg.Point{X: (dc.Min.X + dc.Max.X) / 2, Y: dc.Max.Y - h/2}
+		dc.FillText(sty, mid, f.Title)
+		dc = draw.Crop(dc, 0, 0, 0, -h)
+	}
 	cols := 0
 	for _, row := range f.Panels {
 		cols = max(cols, len(row))
@@ -150,17 +168,35 @@ type style struct {
 	glyph  draw.GlyphDrawer
 }
 
-// styles are the curves' styles in order: dark colours that stay apart in
-// grey, each with its own dashes and marker.
-var styles = []style{
-	{color.Black, nil, draw.CircleGlyph{}},
-	{color.RGBA{R: 0x1f, G: 0x4e, B: 0x8c, A: 0xff}, []vg.Length{vg.Points(6), vg.Points(3)}, draw.SquareGlyph{}},
-	{color.RGBA{R: 0xa6, G: 0x3a, B: 0x10, A: 0xff}, []vg.Length{vg.Points(1.5), vg.Points(2.5)}, draw.TriangleGlyph{}},
-	{color.RGBA{R: 0x2e, G: 0x6b, B: 0x30, A: 0xff}, []vg.Length{vg.Points(7), vg.Points(2.5), vg.Points(1.5), vg.Points(2.5)}, draw.RingGlyph{}},
-	{color.RGBA{R: 0x5b, G: 0x2c, B: 0x6f, A: 0xff}, []vg.Length{vg.Points(3), vg.Points(3)}, draw.CrossGlyph{}},
-	{color.RGBA{R: 0x6b, G: 0x5a, B: 0x1e, A: 0xff}, []vg.Length{vg.Points(10), vg.Points(4)}, draw.PlusGlyph{}},
-	{color.Gray{Y: 0x55}, []vg.Length{vg.Points(1), vg.Points(1.5)}, draw.PyramidGlyph{}},
-	{color.RGBA{R: 0x11, G: 0x5e, B: 0x67, A: 0xff}, []vg.Length{vg.Points(5), vg.Points(1.5), vg.Points(1), vg.Points(1.5)}, draw.BoxGlyph{}},
+// The curves' colours, dash patterns and markers: dark colours that stay
+// apart in grey, five dash patterns and seven markers. Curve i takes the
+// i-th of each list, cycling, so that no two of the first 35 curves share
+// both dashes and marker: a black-and-white copy tells them apart.
+var (
+	palette = []color.Color{
+		color.Black,
+		color.RGBA{R: 0x1f, G: 0x4e, B: 0x8c, A: 0xff},
+		color.RGBA{R: 0xa6, G: 0x3a, B: 0x10, A: 0xff},
+		color.RGBA{R: 0x2e, G: 0x6b, B: 0x30, A: 0xff},
+		color.RGBA{R: 0x5b, G: 0x2c, B: 0x6f, A: 0xff},
+		color.RGBA{R: 0x6b, G: 0x5a, B: 0x1e, A: 0xff},
+		color.Gray{Y: 0x55},
+		color.RGBA{R: 0x11, G: 0x5e, B: 0x67, A: 0xff},
+	}
+	dashPatterns = [][]vg.Length{
+		nil,
+		{vg.Points(6), vg.Points(3)},
+		{vg.Points(1.5), vg.Points(2.5)},
+		{vg.Points(7), vg.Points(2.5), vg.Points(1.5), vg.Points(2.5)},
+		{vg.Points(12), vg.Points(4)},
+	}
+	glyphs = []draw.GlyphDrawer{draw.CircleGlyph{}, draw.SquareGlyph{}, draw.TriangleGlyph{}, draw.RingGlyph{},
+		draw.CrossGlyph{}, draw.PlusGlyph{}, draw.PyramidGlyph{}}
+)
+
+// styleOf is the style of curve i.
+func styleOf(i int) style {
+	return style{palette[i%len(palette)], dashPatterns[i%len(dashPatterns)], glyphs[i%len(glyphs)]}
 }
 
 // newPlot returns an empty plot in the house style: a title, axis labels
@@ -208,7 +244,7 @@ func legendClear(p *plot.Plot, rising bool) {
 
 // curve adds a line with markers in style i and returns it for a legend.
 func curve(p *plot.Plot, pts plotter.XYs, i int, markers bool) ([]plot.Thumbnailer, error) {
-	st := styles[i%len(styles)]
+	st := styleOf(i)
 	l, err := plotter.NewLine(pts)
 	if err != nil {
 		return nil, err

@@ -202,17 +202,23 @@ func TestSweep(t *testing.T) {
 	}{
 		{"one key", table([]string{"risk_ratio"}, [][]string{rr}, sizeCols, byN), []string{"risk ratio", "participants per group"}},
 		{"two keys", table([]string{"risk_ratio", "power"}, [][]string{rr, {"0.8", "0.9"}}, sizeCols, byN),
-			[]string{"risk ratio", "participants per group", "target power 0.8", "target power 0.9"}},
+			[]string{"risk ratio", "participants per group", "target power:", "0.8", "0.9"}},
 		{"power", table([]string{"n", "alpha"}, [][]string{{"100", "200", "300"}, {"0.01", "0.05"}}, sizeCols, byPower),
-			[]string{"participants enrolled per group", "power", "significance level (alpha) 0.05"}},
+			[]string{"participants enrolled (first group)", "power", "significance level (alpha):", "0.05"}},
 		{"effect", table([]string{"n"}, [][]string{{"100", "200"}}, []string{sweep.ColAnalysableFirst, sweep.ColDetectableLower, sweep.ColDetectableUpper, sweep.ColError}, byEffect),
-			[]string{"detectable hazard ratio"}},
+			[]string{"detectable hazard ratio (above no difference)"}},
+		{"enrolled", table([]string{"risk_ratio", "attrition"}, [][]string{rr, {"0", "0.2"}}, sizeCols, func(i int) *designs.Answer {
+			a := byN(i)
+			a.Enrol = []int{a.N[0] + 10*(i%2), a.N[1] + 10*(i%2)}
+			return a
+		}), []string{"participants to enrol (first group)", "attrition (proportion lost)"}},
 		{"panels", table([]string{"risk_ratio", "power", "attrition"}, [][]string{rr, {"0.8", "0.9"}, {"0.1", "0.2", "0.3", "0.4", "0.5"}}, sizeCols, byN),
-			[]string{"attrition (proportion lost) 0.1", "attrition (proportion lost) 0.5", "risk ratio"}},
+			[]string{"Invented sweep", "attrition (proportion lost) 0.1", "attrition (proportion lost) 0.5", "risk ratio"}},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
-			f, err := Sweep(tt.t, "Invented sweep")
+			tt.t.Header.Title = "Invented sweep"
+			f, err := Sweep(tt.t)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -238,7 +244,7 @@ func TestSweepRefused(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			tab := table(tt.keys, tt.vals, []string{sweep.ColAchievedPower}, func(int) *designs.Answer { return &designs.Answer{} })
-			_, err := Sweep(tab, "")
+			_, err := Sweep(tab)
 			var ke *KeysError
 			if !errors.As(err, &ke) {
 				t.Fatalf("error %v, want a *KeysError", err)
@@ -261,11 +267,43 @@ func TestSweepFromJSON(t *testing.T) {
 		t.Fatal(err)
 	}
 	tab := table([]string{"risk_ratio"}, [][]string{{"0.6", "0.7"}}, []string{sweep.ColAnalysableFirst, sweep.ColAchievedPower}, func(int) *designs.Answer { return &a })
-	f, err := Sweep(tab, "")
+	f, err := Sweep(tab)
 	if err != nil {
 		t.Fatal(err)
 	}
 	checkFigure(t, f, "participants per group (analysable, first group)")
+}
+
+// A sweep solving effect draws the side of no difference its header
+// names (the planned effect's), and the size to enrol when attrition
+// makes it differ from the analysable size.
+func TestSolvedFigure(t *testing.T) {
+	pw := func(x float64) *float64 { return &x }
+	a := &designs.Answer{N: []int{200, 200}, Enrol: []int{250, 250}, EnrolTotal: 500, NStar: 199.2,
+		Detectable: &designs.Detectable{Scale: "risk_ratio", Lower: pw(0.55), Upper: pw(1.7)}}
+	effectCols := []string{sweep.ColAnalysableFirst, sweep.ColDetectableLower, sweep.ColDetectableUpper}
+	tests := []struct {
+		name, side string
+		cols       []string
+		want       float64
+		label      string
+	}{
+		{"protective", "lower", effectCols, 0.55, "detectable risk ratio (below no difference)"},
+		{"harmful", "upper", effectCols, 1.7, "detectable risk ratio (above no difference)"},
+		{"no side recorded", "", effectCols, 1.7, "detectable risk ratio (above no difference)"},
+		{"enrolled", "", []string{sweep.ColAnalysableFirst, sweep.ColEnrolTotal}, 250, "participants to enrol (first group)"},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			tab := table([]string{"n"}, [][]string{{"200"}}, tt.cols, func(int) *designs.Answer { return a })
+			tab.Header.DetectableSide = tt.side
+			f := solvedFigure(tab)
+			got, ok := f.value(a)
+			if !ok || got != tt.want || f.label != tt.label {
+				t.Errorf("got %v %v %q, want %v %q", got, ok, f.label, tt.want, tt.label)
+			}
+		})
+	}
 }
 
 func TestFormatOf(t *testing.T) {
@@ -316,7 +354,7 @@ func TestNiceTicks(t *testing.T) {
 func TestWords(t *testing.T) {
 	tests := []struct{ key, want string }{
 		{"risk_ratio", "risk ratio"},
-		{"n", "participants enrolled per group"},
+		{"n", "participants enrolled (first group)"},
 		{"cluster.icc", "intracluster correlation"},
 		{"control_risk", "control risk (proportion)"},
 		{"some_new.key", "some new key"},

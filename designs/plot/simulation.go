@@ -54,7 +54,7 @@ func Simulation(res *designs.Result) (*plot.Plot, error) {
 	if err != nil {
 		return nil, err
 	}
-	p.Legend.Add("closed-form power", cf)
+	p.Legend.Add(withMethod("closed-form power", res), cf)
 	th, err := interval(p, 1, *sim.Power, lo, hi)
 	if err != nil {
 		return nil, err

@@ -29,18 +29,27 @@ type figure struct {
 }
 
 // solvedFigure chooses the vertical axis of a sweep's plot from its
-// columns and answers: the analysable size when it solved n, the margin
-// or the detectable effect when it solved effect, the power otherwise.
+// columns and answers: when it solved n, the size to enrol if attrition
+// makes it differ from the analysable size at any point, else the
+// analysable size; the margin or the detectable effect (on the side the
+// header names) when it solved effect; the power otherwise.
 func solvedFigure(t *sweep.Table) figure {
 	has := func(c string) bool { return slices.Contains(t.Header.Columns, c) }
-	solvedN := false
+	solvedN, enrolled := false, false
 	scale := ""
+	lower, upper := false, false
 	for i := range t.Records {
-		if a := t.Records[i].Result; a != nil {
-			solvedN = solvedN || a.NStar > 0
-			if a.Detectable != nil && scale == "" {
-				scale = a.Detectable.Scale
+		a := t.Records[i].Result
+		if a == nil {
+			continue
+		}
+		solvedN = solvedN || a.NStar > 0
+		enrolled = enrolled || (len(a.Enrol) > 0 && len(a.N) > 0 && a.Enrol[0] != a.N[0])
+		if d := a.Detectable; d != nil {
+			if scale == "" {
+				scale = d.Scale
 			}
+			lower, upper = lower || d.Lower != nil, upper || d.Upper != nil
 		}
 	}
 	first := func(a *designs.Answer) (float64, bool) {
@@ -48,6 +57,12 @@ func solvedFigure(t *sweep.Table) figure {
 			return 0, false
 		}
 		return float64(a.N[0]), true
+	}
+	enrol := func(a *designs.Answer) (float64, bool) {
+		if len(a.Enrol) == 0 {
+			return 0, false
+		}
+		return float64(a.Enrol[0]), true
 	}
 	ptr := func(p *float64) (float64, bool) {
 		if p == nil {
@@ -59,27 +74,26 @@ func solvedFigure(t *sweep.Table) figure {
 	case has(sweep.ColAchievedMargin):
 		return figure{label: "margin of the interval (± proportion)", short: "margin (± proportion)", value: func(a *designs.Answer) (float64, bool) { return ptr(a.Margin) }}
 	case has(sweep.ColDetectableUpper):
-		upper := false
-		for i := range t.Records {
-			if a := t.Records[i].Result; a != nil && a.Detectable != nil && a.Detectable.Upper != nil {
-				upper = true
-			}
+		side := t.Header.DetectableSide
+		if side == "" || (side == "lower" && !lower) || (side == "upper" && !upper) {
+			side = map[bool]string{true: "upper", false: "lower"}[upper]
 		}
-		side := "lower"
-		if upper {
-			side = "upper"
-		}
-		return figure{label: "detectable " + Words(scale) + " (" + side + ")", short: "detectable " + Words(scale), value: func(a *designs.Answer) (float64, bool) {
+		word := map[string]string{"lower": "below", "upper": "above"}[side]
+		return figure{label: "detectable " + Words(scale) + " (" + word + " no difference)", short: "detectable " + Words(scale), value: func(a *designs.Answer) (float64, bool) {
 			if a.Detectable == nil {
 				return 0, false
 			}
-			if upper {
-				return ptr(a.Detectable.Upper)
+			if side == "lower" {
+				return ptr(a.Detectable.Lower)
 			}
-			return ptr(a.Detectable.Lower)
+			return ptr(a.Detectable.Upper)
 		}}
+	case solvedN && has(sweep.ColAnalysable) && enrolled:
+		return figure{label: "participants to enrol", short: "to enrol", value: func(a *designs.Answer) (float64, bool) { return float64(a.EnrolTotal), a.EnrolTotal > 0 }}
 	case solvedN && has(sweep.ColAnalysable):
 		return figure{label: "participants (analysable)", short: "participants (analysable)", value: first}
+	case solvedN && enrolled:
+		return figure{label: "participants to enrol (first group)", short: "to enrol (first group)", value: enrol}
 	case solvedN:
 		return figure{label: "participants per group (analysable, first group)", short: "per group (analysable)", value: first}
 	}
@@ -110,13 +124,14 @@ func CheckKeys(keys []string, panels int) error {
 
 // Sweep draws a sweep's table: the first varied key on the horizontal
 // axis, one curve for each value of the second (each with its own line
-// style, marker and colour), and the solved quantity (the analysable size,
-// the power or the detectable effect) on the vertical axis; a third varied
-// key gives one panel for each of its values, up to [MaxPanels]. title is
-// the study's title ("" for none). More than three varied keys, or a third
+// style, marker and colour), and the solved quantity (the size, the power
+// or the detectable effect; see solvedFigure) on the vertical axis; a third
+// varied key gives one panel for each of its values, up to [MaxPanels],
+// under the study's title from the header. More than three varied keys, or a third
 // with more than MaxPanels values, is an error naming the keys to fix.
 // Points that could not be planned are left out of their curve.
-func Sweep(t *sweep.Table, title string) (*Figure, error) {
+func Sweep(t *sweep.Table) (*Figure, error) {
+	title := t.Header.Title
 	keys := t.Header.Keys()
 	if len(keys) == 0 {
 		return nil, fmt.Errorf("the sweep has no varied key to draw")
@@ -187,7 +202,11 @@ func Sweep(t *sweep.Table, title string) (*Figure, error) {
 			}
 			drawn++
 			if sv != "" {
-				p.Legend.Add(Words(keys[1])+" "+sv, th...)
+				if drawn == 1 {
+					// The key once, as the legend's heading.
+					p.Legend.Add(Words(keys[1]) + ":")
+				}
+				p.Legend.Add(sv, th...)
 			}
 		}
 		if drawn == 0 {
@@ -208,6 +227,15 @@ func Sweep(t *sweep.Table, title string) (*Figure, error) {
 	if len(plots) == 1 {
 		return Of(plots[0]), nil
 	}
+	// One vertical scale for every panel, so that panels compare at a
+	// glance.
+	lo, hi := plots[0].Y.Min, plots[0].Y.Max
+	for _, p := range plots {
+		lo, hi = math.Min(lo, p.Y.Min), math.Max(hi, p.Y.Max)
+	}
+	for _, p := range plots {
+		p.Y.Min, p.Y.Max = lo, hi
+	}
 	cols := min(maxCols, len(plots))
 	if len(plots) <= 4 {
 		cols = min(2, len(plots))
@@ -218,5 +246,5 @@ func Sweep(t *sweep.Table, title string) (*Figure, error) {
 		copy(row, plots[i:min(i+cols, len(plots))])
 		rows = append(rows, row)
 	}
-	return &Figure{Panels: rows}, nil
+	return &Figure{Title: title, Panels: rows}, nil
 }

@@ -5,7 +5,7 @@ import "strings"
 // keyWords are the axis labels of the keys a plot may show, in the
 // trade's words with their units.
 var keyWords = map[string]string{
-	"n":                    "participants enrolled per group",
+	"n":                    "participants enrolled (first group)",
 	"n_second":             "participants enrolled in the second group",
 	"total":                "participants enrolled",
 	"power":                "target power",

@@ -54,25 +54,18 @@ func WriteReviewHTML(w io.Writer, rep *review.Report, in *designs.ReviewInput, s
 	return buildReview(rep, in, src).html(w, fig)
 }
 
-// SweepPage is what a sweep's HTML page says besides its table.
-type SweepPage struct {
-	// Title is the study's title, from the specification.
-	Title string
-	// SpecFile is the specification's name, for the footer.
-	SpecFile string
-	// Figure is the plot of the sweep, or nil.
-	Figure *Figure
-}
-
 // WriteSweepHTML writes a sweep's table (the figures as the Markdown
 // table rounds them) as a self-contained HTML page with the plot and the
 // cautions.
-func WriteSweepHTML(w io.Writer, t *sweep.Table, page SweepPage) error {
+// Everything on the page comes from the table, so that enough merge
+// writes byte for byte the page enough sweep writes; fig is the plot of
+// the sweep, or nil.
+func WriteSweepHTML(w io.Writer, t *sweep.Table, fig *Figure) error {
 	l, err := sweep.NewLayout(&t.Header)
 	if err != nil {
 		return err
 	}
-	d := &document{title: page.Title}
+	d := &document{title: t.Header.Title}
 	d.subtitle = "Sweep of the assumptions: " + strings.Join(t.Header.Vary, "; ")
 	intro := fmt.Sprintf("Each row is one point of the grid of %s, planned under the specification's other assumptions.", pointsWord(len(t.Records)))
 	if t.Header.Simulate != nil {
@@ -89,12 +82,12 @@ func WriteSweepHTML(w io.Writer, t *sweep.Table, page SweepPage) error {
 	}
 	d.sections = append(d.sections, section{heading: "The grid", paras: []string{intro}, table: table})
 	d.sections = append(d.sections, section{heading: "Cautions", bullets: designs.Cautions})
-	foot := fmt.Sprintf("%s %s · sweep of specification %s · SHA-256 %s", designs.Tool, t.Header.Version, page.SpecFile, t.Header.SpecSHA256)
+	foot := fmt.Sprintf("%s %s · sweep of the specification with SHA-256 %s", designs.Tool, t.Header.Version, t.Header.SpecSHA256)
 	d.footer = append(d.footer, foot)
 	if len(t.Header.Overrides) > 0 {
 		d.footer = append(d.footer, "overridden on the command line: "+strings.Join(t.Header.Overrides, ", "))
 	}
-	return d.html(w, page.Figure)
+	return d.html(w, fig)
 }
 
 func pointsWord(n int) string {
@@ -116,8 +109,9 @@ p, li { max-width: 100%; }
 ul, ol { padding-left: 1.6em; }
 li { margin: 0.2em 0; }
 code { font-family: "DejaVu Sans Mono", Menlo, Consolas, monospace; font-size: 0.88em; overflow-wrap: anywhere; }
-table { border-collapse: collapse; width: 100%; margin: 0.8em 0 1.2em; font-size: 0.92em; }
-th, td { border: 1px solid #888; padding: 0.25em 0.45em; text-align: left; vertical-align: top; overflow-wrap: anywhere; }
+table { border-collapse: separate; border-spacing: 0; border-top: 1px solid #888; border-left: 1px solid #888;
+  width: 100%; margin: 0.8em 0 1.2em; font-size: 0.92em; }
+th, td { border-right: 1px solid #888; border-bottom: 1px solid #888; padding: 0.25em 0.45em; text-align: left; vertical-align: top; overflow-wrap: anywhere; }
 th { background: #eee; font-weight: bold; }
 td.num { text-align: right; font-variant-numeric: tabular-nums; }
 figure { margin: 1em 0; }
@@ -127,10 +121,10 @@ footer { margin-top: 2.5em; padding-top: 0.5em; border-top: 1px solid #888; font
 footer p { margin: 0.2em 0; }
 @page { margin: 18mm 16mm 20mm; }
 @media print {
-  body { max-width: none; margin: 0; padding: 0; font-size: 10.5pt; }
+  body { max-width: none; margin: 0; padding: 0 2px 0 0; font-size: 10.5pt; }
   h1, h2 { break-after: avoid-page; }
   section { break-inside: avoid-page; }
-  section + section { break-before: auto; }
+  section.long { break-inside: auto; }
   table { break-inside: auto; }
   thead { display: table-header-group; }
   tr, li, figure, p { break-inside: avoid-page; }
@@ -158,9 +152,22 @@ func (d *document) html(w io.Writer, fig *Figure) error {
 		}
 	}
 	for i, s := range d.sections {
-		fmt.Fprintf(&b, "<section>\n<h2>%s</h2>\n", inline(s.heading))
+		if long(s) {
+			b.WriteString("<section class=\"long\">\n")
+		} else {
+			b.WriteString("<section>\n")
+		}
+		fmt.Fprintf(&b, "<h2>%s</h2>\n", inline(s.heading))
 		for _, p := range s.paras {
 			fmt.Fprintf(&b, "<p>%s</p>\n", inline(p))
+		}
+		// A long table (a sweep's grid) comes after the plot, which
+		// would otherwise be pages away from the section's heading.
+		early := fig != nil && len(fig.SVG) > 0 && i == at && len(s.table) > longRows
+		if early {
+			if err := htmlFigure(&b, fig); err != nil {
+				return err
+			}
 		}
 		htmlTable(&b, s.table)
 		if len(s.bullets) > 0 {
@@ -178,7 +185,7 @@ func (d *document) html(w io.Writer, fig *Figure) error {
 		for _, p := range s.after {
 			fmt.Fprintf(&b, "<p>%s</p>\n", inline(p))
 		}
-		if fig != nil && len(fig.SVG) > 0 && i == at {
+		if fig != nil && len(fig.SVG) > 0 && i == at && !early {
 			if err := htmlFigure(&b, fig); err != nil {
 				return err
 			}
@@ -196,6 +203,16 @@ func (d *document) html(w io.Writer, fig *Figure) error {
 	b.WriteString("</body>\n</html>\n")
 	_, err := io.WriteString(w, b.String())
 	return err
+}
+
+// longRows is the number of rows (table rows or list items) above which
+// a section is long: printed across pages if need be, where a short one
+// is kept whole on one page.
+const longRows = 12
+
+// long says whether a section is long (see longRows).
+func long(s section) bool {
+	return len(s.table)+len(s.afterTable) > longRows || len(s.bullets) > longRows
 }
 
 // figureAt is the index of the section the plot ends: the simulation's

@@ -38,8 +38,8 @@ func reviewPage(name string) htmlPage {
 
 func sweepPage(name string, vary ...string) htmlPage {
 	return htmlPage{strings.TrimSuffix(name, ".yaml") + "-sweep", func(t *testing.T, b *bytes.Buffer, fig *Figure) error {
-		tab, spec := sweepExample(t, name, vary...)
-		return WriteSweepHTML(b, tab, SweepPage{Title: spec.Title, SpecFile: spec.File, Figure: fig})
+		tab, _ := sweepExample(t, name, vary...)
+		return WriteSweepHTML(b, tab, fig)
 	}}
 }
 

@@ -161,7 +161,7 @@ func TestShardLine(t *testing.T) {
 			t.Fatal(err)
 		}
 	}
-	want := "version spec_sha256 overrides vary simulate methods columns grid_size shard index point result error alternatives simulation"
+	want := "version spec_sha256 overrides vary simulate methods columns grid_size title shard index point result error alternatives simulation"
 	if strings.Join(keys, " ") != want {
 		t.Errorf("fields %v; want %s", keys, want)
 	}

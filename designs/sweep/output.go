@@ -41,6 +41,11 @@ type Header struct {
 	Columns []string `json:"columns"`
 	// GridSize is the number of points in the whole grid.
 	GridSize int `json:"grid_size"`
+	// Title is the study's title, for the plot and page merge writes.
+	Title string `json:"title"`
+	// DetectableSide is, for a plan solving effect, the side of no
+	// difference a plot draws (designs.DetectableSide); empty otherwise.
+	DetectableSide string `json:"detectable_side,omitempty"`
 }
 
 // SimSettings are the settings of a simulated sweep: the replicates per
@@ -108,7 +113,10 @@ func NewHeader(s *designs.Spec, g Grid, vary []string, o Options) Header {
 		keys[i] = a.Key
 	}
 	h := Header{Version: designs.Version, SpecSHA256: s.SHA256, Overrides: append([]string{}, s.Overrides...),
-		Vary: append([]string{}, vary...), GridSize: gridSize(g)}
+		Vary: append([]string{}, vary...), GridSize: gridSize(g), Title: s.Title}
+	if s.Solve == "effect" {
+		h.DetectableSide = designs.DetectableSide(s)
+	}
 	if o.Simulate {
 		st := SimSettings{Replicates: 10000, Seed: 1}
 		if s.Simulate != nil {
