@@ -29,6 +29,28 @@ func planFigure(res *designs.Result, src *plot.Source) (*report.Figure, error) {
 	return &report.Figure{SVG: svg, Caption: plot.Caption(res)}, err
 }
 
+// reviewFigure draws the recomputed plan, with the protocol's stated size
+// and the power it gives marked when the plan is a power curve over the
+// first group's size.
+func reviewFigure(rep *review.Report, src *plot.Source) (*report.Figure, error) {
+	res := rep.Plan
+	f, err := plot.ForPlan(res, src)
+	if err != nil {
+		return nil, err
+	}
+	caption := plot.Caption(res)
+	c := rep.Claimed
+	if res.Solve == "n" && res.Simulation == nil && res.Spec != nil && res.Spec.Design != "cross-sectional" && res.Spec.Goal != "precision" &&
+		c.N != nil && rep.ClaimedPowerActual != nil {
+		if err := plot.MarkStated(f, *c.N, *rep.ClaimedPowerActual); err != nil {
+			return nil, err
+		}
+		caption += " The square marks the size the protocol states, at the power it gives under the protocol's assumptions."
+	}
+	svg, err := plot.Render(f, "svg")
+	return &report.Figure{SVG: svg, Caption: caption}, err
+}
+
 // sweepFigure draws the plot of a sweep for its HTML page.
 func sweepFigure(t *sweep.Table) (*report.Figure, error) {
 	f, err := plot.Sweep(t)
@@ -60,7 +82,7 @@ func planHTML(buf *bytes.Buffer, errOut io.Writer, res *designs.Result, src *plo
 func reviewHTML(buf *bytes.Buffer, errOut io.Writer, rep *review.Report, in *designs.ReviewInput, src report.ReviewSource) error {
 	var fig *report.Figure
 	if rep.Plan != nil {
-		f, err := planFigure(rep.Plan, &plot.Source{File: src.File, Data: src.Data, Sets: src.Sets})
+		f, err := reviewFigure(rep, &plot.Source{File: src.File, Data: src.Data, Sets: src.Sets})
 		fig = figureOrNote(errOut, f, err)
 	}
 	return report.WriteReviewHTML(buf, rep, in, src, fig)

@@ -61,7 +61,13 @@ sweep, the exit status is 6 when some points could not be planned.`,
 }
 
 func mergeRun(opts *MergeOptions) error {
-	if err := outputIsShard(opts.Output, opts.Files); err != nil {
+	if err := outputIsShard("--output", opts.Output, opts.Files); err != nil {
+		return err
+	}
+	if err := outputIsShard("--plot", opts.Plot, opts.Files); err != nil {
+		return err
+	}
+	if err := plotIsInput(opts.Plot, opts.Output, "", nil); err != nil {
 		return err
 	}
 	var inputs []sweep.Input
@@ -114,7 +120,7 @@ func mergeRun(opts *MergeOptions) error {
 // outputIsShard refuses an output file that is one of the shard files
 // being merged (the same file by any name), which the merge would
 // replace.
-func outputIsShard(output string, files []string) error {
+func outputIsShard(flag, output string, files []string) error {
 	if output == "" {
 		return nil
 	}
@@ -124,7 +130,7 @@ func outputIsShard(output string, files []string) error {
 	}
 	for _, name := range files {
 		if in, err := os.Stat(name); err == nil && os.SameFile(in, out) {
-			return &flagError{flag: "--output " + output, msg: fmt.Sprintf("is the shard file %s: the output would replace it", name),
+			return &flagError{flag: flag + " " + output, msg: fmt.Sprintf("is the shard file %s: the output would replace it", name),
 				allowed: "another file name"}
 		}
 	}

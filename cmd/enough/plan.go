@@ -144,6 +144,9 @@ func planRun(opts *PlanOptions) error {
 	if err := outputIsInput(opts.Output, opts.Spec, opts.IO.In); err != nil {
 		return err
 	}
+	if err := plotIsInput(opts.Plot, opts.Output, opts.Spec, opts.IO.In); err != nil {
+		return err
+	}
 	name, data, err := loadSpec(opts.Spec, opts.IO.In)
 	if err != nil {
 		return err

@@ -62,11 +62,14 @@ func checkPlotGrid(path string, g sweep.Grid) error {
 	for i, a := range g.Axes {
 		keys[i] = a.Key
 	}
-	panels := 0
+	curves, panels := 0, 0
+	if len(g.Axes) > 1 {
+		curves = len(g.Axes[1].Values)
+	}
 	if len(g.Axes) > 2 {
 		panels = len(g.Axes[2].Values)
 	}
-	if err := plot.CheckKeys(keys, panels); err != nil {
+	if err := plot.CheckKeys(keys, curves, panels); err != nil {
 		return &flagError{flag: "--plot", msg: err.Error()}
 	}
 	return nil

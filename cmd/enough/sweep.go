@@ -148,6 +148,9 @@ func sweepRun(opts *SweepOptions) error {
 	if err := outputIsInput(opts.Output, opts.Spec, opts.IO.In); err != nil {
 		return err
 	}
+	if err := plotIsInput(opts.Plot, opts.Output, opts.Spec, opts.IO.In); err != nil {
+		return err
+	}
 	name, data, err := loadSpec(opts.Spec, opts.IO.In)
 	if err != nil {
 		return err

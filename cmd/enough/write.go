@@ -126,6 +126,37 @@ func createTemp(dir, prefix string) (f *os.File, err error) {
 // spec is the specification's path ("" for the embedded demo, "-" for
 // standard input, whose file is compared when it is one).
 func outputIsInput(output, spec string, stdin io.Reader) error {
+	return fileIsInput("--output", output, spec, stdin)
+}
+
+// plotIsInput refuses a --plot file that is the specification being
+// planned, as outputIsInput refuses -o, or the file -o writes (the same
+// path, or the same file by another name): one output would replace the
+// other.
+func plotIsInput(plot, output, spec string, stdin io.Reader) error {
+	if plot == "" {
+		return nil
+	}
+	if err := fileIsInput("--plot", plot, spec, stdin); err != nil {
+		return err
+	}
+	if output == "" {
+		return nil
+	}
+	same := filepath.Clean(plot) == filepath.Clean(output)
+	if a, err := os.Stat(plot); err == nil {
+		if b, err := os.Stat(output); err == nil && os.SameFile(a, b) {
+			same = true
+		}
+	}
+	if same {
+		return &flagError{flag: "--plot " + plot, msg: "is the file --output writes: one would replace the other", allowed: "another file name"}
+	}
+	return nil
+}
+
+// fileIsInput is outputIsInput for the file a flag names.
+func fileIsInput(flag, output, spec string, stdin io.Reader) error {
 	if output == "" || spec == "" {
 		return nil
 	}
@@ -151,7 +182,7 @@ func outputIsInput(output, spec string, stdin io.Reader) error {
 	if err != nil || !os.SameFile(in, out) {
 		return nil
 	}
-	return &flagError{flag: "--output " + output,
+	return &flagError{flag: flag + " " + output,
 		msg:     "is " + what + ": the output would replace it",
 		allowed: "another file name"}
 }

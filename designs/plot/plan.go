@@ -103,8 +103,29 @@ func atEnrolment(s0 *designs.Spec, e int) (*designs.Answer, error) {
 	return designs.Quick(&s)
 }
 
-// sizeWords is the label of the size axis of a plan.
-func sizeWords(s *designs.Spec) string {
+// powerWords is the label of a plan's power axis.
+func powerWords(s *designs.Spec) string {
+	if s.Arms > 2 {
+		return "power of each comparison"
+	}
+	return "power"
+}
+
+// thousands writes a whole number with thousands separators, as the
+// summary does: 1,319.
+func thousands(n int) string {
+	s := strconv.Itoa(n)
+	for i := len(s) - 3; i > 0 && s[i-1] != '-'; i -= 3 {
+		s = s[:i] + "," + s[i:]
+	}
+	return s
+}
+
+// sizeWords is the label of the size axis of a plan: the first group in
+// the plan's own words when the groups differ in size.
+func sizeWords(res *designs.Result) string {
+	s := res.Spec
+	fg := res.FirstGroup
 	switch {
 	case s.Goal == "precision":
 		return "respondents (analysable)"
@@ -112,12 +133,20 @@ func sizeWords(s *designs.Spec) string {
 		return "participants in all (analysable)"
 	case s.Pairing == "paired":
 		return "pairs (analysable)"
+	case s.Pairing == "crossover":
+		return "participants per sequence (analysable)"
 	case s.Arms > 2:
 		return "participants per arm (analysable)"
 	case s.Cluster != nil:
 		return fmt.Sprintf("participants per arm (analysable, in clusters of %s)", strconv.FormatFloat(s.Cluster.Size, 'g', 4, 64))
+	case s.Design == "case-control":
+		return "cases (analysable)"
+	case s.Ratio == 1 || fg == "":
+		return "participants per group (analysable)"
+	case strings.HasSuffix(fg, " arm"):
+		return "participants in the " + fg + " (analysable)"
 	}
-	return "participants per group (analysable, first group)"
+	return fg + " (analysable)"
 }
 
 // sizeOf is the x value of an answer: the analysable first group, or the
@@ -148,11 +177,8 @@ func powerCurve(res *designs.Result, planned bool) (*plot.Plot, error) {
 	if len(pts) < 2 {
 		return nil, errors.New("the power could not be computed at the sizes around the plan")
 	}
-	ylabel := "power"
-	if s.Arms > 2 {
-		ylabel = "power of each comparison with control"
-	}
-	p := newPlot(title(res), sizeWords(s), ylabel)
+	ylabel := powerWords(s)
+	p := newPlot(title(res), sizeWords(res), ylabel)
 	powerAxis(p)
 	line, err := curve(p, pts, 0, false)
 	if err != nil {
@@ -168,7 +194,7 @@ func powerCurve(res *designs.Result, planned bool) (*plot.Plot, error) {
 	}
 	if planned {
 		x, y := sizeOf(s, &res.Result), *res.Result.AchievedPower
-		m, err := mark(p, x, y, draw.CircleGlyph{}, fmt.Sprintf("n = %s, power %s", strconv.Itoa(int(x)), pct(y)))
+		m, err := mark(p, x, y, draw.CircleGlyph{}, fmt.Sprintf("n = %s, power %s", thousands(int(x)), pct(y)))
 		if err != nil {
 			return nil, err
 		}
@@ -192,12 +218,16 @@ func marginCurve(res *designs.Result) (*plot.Plot, error) {
 		if err != nil || a.Margin == nil {
 			continue
 		}
+		if s.Population > 0 && a.Total >= s.Population {
+			// A census: no larger survey exists.
+			break
+		}
 		pts = append(pts, plotter.XY{X: sizeOf(s, a), Y: *a.Margin})
 	}
 	if len(pts) < 2 {
 		return nil, errors.New("the margin could not be computed at the sizes around the plan")
 	}
-	p := newPlot(title(res), sizeWords(s), "margin of the interval (± proportion)")
+	p := newPlot(title(res), sizeWords(res), "margin of the interval (± proportion)")
 	p.Y.Min = 0
 	line, err := curve(p, pts, 0, false)
 	if err != nil {
@@ -265,7 +295,7 @@ func effectCurve(res *designs.Result, src *Source) (*plot.Plot, error) {
 	if len(res.Result.N) > 0 {
 		n = res.Result.N[0]
 	}
-	p := newPlot(title(res), Words(key), fmt.Sprintf("power (first group: %d analysable)", n))
+	p := newPlot(title(res), Words(key), fmt.Sprintf("%s (%s analysable in the first group)", powerWords(s), thousands(n)))
 	powerAxis(p)
 	line, err := curve(p, pts, 0, false)
 	if err != nil {
@@ -345,7 +375,7 @@ func Caption(res *designs.Result) string {
 	case simulated(res):
 		return "Simulated power with its 95% interval, beside the closed-form power; the dashed line is the target power."
 	case res.Spec != nil && res.Spec.Solve == "effect":
-		return "Power against the effect at the planned size; the dashed line is the target power."
+		return "Power against the effect at the planned size, on the side of no difference where the plan's effect lies; the dashed line is the target power."
 	}
 	return "Power against the number analysable around the planned point; the dashed line is the target power."
 }
@@ -362,8 +392,27 @@ func detectableBound(d *designs.Detectable, side string) *float64 {
 // withMethod names the plan's method after what: "power at each size
 // (Fleiss, Tytun & Ury 1980)".
 func withMethod(what string, res *designs.Result) string {
-	if res.Short == "" {
+	switch {
+	case res.Spec != nil && res.Spec.Cluster != nil:
+		return what + " (t test on cluster summaries)"
+	case res.Short == "":
 		return what
 	}
 	return what + " (" + res.Short + ")"
+}
+
+// MarkStated marks on a plan's figure (a power curve, as [ForPlan] draws
+// it) the first group's analysable size a protocol states and the power
+// it gives under the protocol's assumptions, for enough review.
+func MarkStated(f *Figure, n int, power float64) error {
+	if f == nil || len(f.Panels) != 1 || len(f.Panels[0]) != 1 {
+		return errors.New("no single plot to mark")
+	}
+	p := f.Panels[0][0]
+	m, err := mark(p, float64(n), power, draw.SquareGlyph{}, fmt.Sprintf("stated n = %s, power %s", thousands(n), pct(power)))
+	if err != nil {
+		return err
+	}
+	p.Legend.Add("the protocol's stated size", m)
+	return nil
 }

@@ -21,6 +21,7 @@ import (
 	"path/filepath"
 	"strconv"
 	"strings"
+	"unicode/utf8"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/font"
@@ -53,25 +54,43 @@ type Figure struct {
 	// carries its own).
 	Title  string
 	Panels [][]*plot.Plot
+	// LegendRight draws the first panel's legend in a column of its own
+	// at the right (the legends of the panels are left out): for many
+	// curves, or for panels that all show the same curves.
+	LegendRight bool
 }
+
+// legendInside is the largest number of curves whose legend is drawn
+// inside a single plot; with more it stands beside it.
+const legendInside = 6
+
+// legendWidth is the width of a legend drawn beside the plots.
+const legendWidth = 3.6 * vg.Centimeter
 
 // Of is the figure of the single plot p.
 func Of(p *plot.Plot) *Figure { return &Figure{Panels: [][]*plot.Plot{{p}}} }
 
-// size is the figure's width and height.
+// size is the figure's width and height: a tiled figure's rows share at
+// most maxTiledHeight, so that the whole figure fits on a printed page.
 func (f *Figure) size() (vg.Length, vg.Length) {
 	if len(f.Panels) == 1 && len(f.Panels[0]) == 1 {
 		return Width, Height
 	}
-	return Width, panelHeight*vg.Length(len(f.Panels)) + f.titleHeight()
+	rows := vg.Length(len(f.Panels))
+	return Width, min(panelHeight, maxTiledHeight/rows)*rows + f.titleHeight()
 }
+
+// maxTiledHeight is the most the panels of a tiled figure take together:
+// with its title, the figure fits on an A4 or Letter page with its
+// caption.
+const maxTiledHeight = 19 * vg.Centimeter
 
 // titleHeight is the room the title of a tiled figure takes.
 func (f *Figure) titleHeight() vg.Length {
 	if f.Title == "" {
 		return 0
 	}
-	return vg.Centimeter
+	return vg.Centimeter * vg.Length(1+strings.Count(wrap(f.Title, titleChars), "\n"))
 }
 
 // FormatOf returns the format a path's extension names (svg, png or pdf),
@@ -113,6 +132,9 @@ func Render(f *Figure, format string) ([]byte, error) {
 		if _, err := sc.WriteTo(&buf); err != nil {
 			return nil, err
 		}
+		// The face is embedded in PNG and PDF; an SVG names it, so give
+		// viewers without it the nearest common faces.
+		return bytes.ReplaceAll(buf.Bytes(), []byte("font-family:Liberation Sans;"), []byte("font-family:'Liberation Sans',Arial,Helvetica,sans-serif;")), nil
 	case "png":
 		ic := vgimg.NewWith(vgimg.UseWH(w, h), vgimg.UseDPI(150), vgimg.UseBackgroundColor(color.White))
 		f.draw(draw.New(ic))
@@ -135,6 +157,40 @@ func Render(f *Figure, format string) ([]byte, error) {
 func (f *Figure) draw(dc draw.Canvas) {
 	dc.SetColor(color.White)
 	dc.Fill(dc.Rectangle.Path())
+	if f.LegendRight && len(f.Panels) > 0 && len(f.Panels[0]) > 0 && f.Panels[0][0] != nil {
+		// The legend in a column of its own; the panels' own legends are
+		// set aside while they are drawn, and put back.
+		first := f.Panels[0][0]
+		leg := first.Legend
+		saved := make([]plot.Legend, 0, 12)
+		for _, row := range f.Panels {
+			for _, p := range row {
+				if p != nil {
+					saved = append(saved, p.Legend)
+					p.Legend = plot.NewLegend()
+				}
+			}
+		}
+		f.drawPanels(draw.Crop(dc, 0, -legendWidth, 0, 0))
+		k := 0
+		for _, row := range f.Panels {
+			for _, p := range row {
+				if p != nil {
+					p.Legend = saved[k]
+					k++
+				}
+			}
+		}
+		leg.Top, leg.Left = true, true
+		leg.XOffs, leg.YOffs = vg.Millimeter*2, -f.titleHeight()-vg.Centimeter
+		leg.Draw(draw.Crop(dc, dc.Size().X-legendWidth, 0, 0, 0))
+		return
+	}
+	f.drawPanels(dc)
+}
+
+// drawPanels draws the figure's panels (and a tiled figure's title) on dc.
+func (f *Figure) drawPanels(dc draw.Canvas) {
 	if len(f.Panels) == 1 && len(f.Panels[0]) == 1 {
 		f.Panels[0][0].Draw(dc)
 		return
@@ -143,15 +199,15 @@ func (f *Figure) draw(dc draw.Canvas) {
 		sty := draw.TextStyle{Color: color.Black, Font: sans(11), XAlign: draw.XCenter, YAlign: draw.YCenter}
 		sty.Handler = plot.DefaultTextHandler
 		mid := vg.Point{X: (dc.Min.X + dc.Max.X) / 2, Y: dc.Max.Y - h/2}
-		dc.FillText(sty, mid, f.Title)
+		dc.FillText(sty, mid, wrap(f.Title, titleChars))
 		dc = draw.Crop(dc, 0, 0, 0, -h)
 	}
 	cols := 0
 	for _, row := range f.Panels {
 		cols = max(cols, len(row))
 	}
-	t := draw.Tiles{Rows: len(f.Panels), Cols: cols, PadX: vg.Millimeter * 2, PadY: vg.Millimeter * 2,
-		PadTop: vg.Millimeter, PadBottom: vg.Millimeter, PadLeft: vg.Millimeter, PadRight: vg.Millimeter}
+	t := draw.Tiles{Rows: len(f.Panels), Cols: cols, PadX: vg.Millimeter * 4, PadY: vg.Millimeter * 2,
+		PadTop: vg.Millimeter, PadBottom: vg.Millimeter, PadLeft: vg.Millimeter, PadRight: vg.Millimeter * 5}
 	for j, row := range f.Panels {
 		for i, p := range row {
 			if p != nil {
@@ -203,7 +259,7 @@ func styleOf(i int) style {
 // and a light grid.
 func newPlot(title, x, y string) *plot.Plot {
 	p := plot.New()
-	p.Title.Text = title
+	p.Title.Text = wrap(title, titleChars)
 	p.Title.TextStyle.Font = sans(11)
 	p.Title.Padding = vg.Points(8)
 	p.X.Label.Text = x
@@ -223,6 +279,32 @@ func newPlot(title, x, y string) *plot.Plot {
 	p.Legend.Top = true
 	p.Legend.Padding = vg.Points(2)
 	return p
+}
+
+// titleChars is about the number of characters of a title's line at the
+// width of a figure.
+const titleChars = 78
+
+// wrap breaks text into lines of at most width characters at spaces (a
+// longer word stays whole on its own line).
+func wrap(text string, width int) string {
+	var b strings.Builder
+	n := 0
+	for i, w := range strings.Fields(text) {
+		l := utf8.RuneCountInString(w)
+		switch {
+		case i == 0:
+		case n+1+l > width:
+			b.WriteByte('\n')
+			n = 0
+		default:
+			b.WriteByte(' ')
+			n++
+		}
+		b.WriteString(w)
+		n += l
+	}
+	return b.String()
 }
 
 // sans is the plain sans-serif face of every text, at size points.
@@ -325,15 +407,19 @@ func ticks(lo, hi, step, label float64) []plot.Tick {
 }
 
 // niceTicks marks an axis every 1, 2 or 5 times a power of ten, about
-// five labelled ticks, written without needless decimals.
-type niceTicks struct{}
+// labels labelled ticks (five when 0), written without needless decimals.
+type niceTicks struct{ labels int }
 
 // Ticks returns the ticks from lo to hi.
-func (niceTicks) Ticks(lo, hi float64) []plot.Tick {
+func (t niceTicks) Ticks(lo, hi float64) []plot.Tick {
 	if !(hi > lo) {
 		return []plot.Tick{{Value: lo, Label: strconv.FormatFloat(lo, 'g', 4, 64)}}
 	}
-	raw := (hi - lo) / 5
+	labels := t.labels
+	if labels == 0 {
+		labels = 5
+	}
+	raw := (hi - lo) / float64(labels)
 	mag := math.Pow(10, math.Floor(math.Log10(raw)))
 	step := 10 * mag
 	for _, m := range []float64{1, 2, 5} {

@@ -8,6 +8,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -213,7 +214,7 @@ func TestSweep(t *testing.T) {
 			return a
 		}), []string{"participants to enrol (first group)", "attrition (proportion lost)"}},
 		{"panels", table([]string{"risk_ratio", "power", "attrition"}, [][]string{rr, {"0.8", "0.9"}, {"0.1", "0.2", "0.3", "0.4", "0.5"}}, sizeCols, byN),
-			[]string{"Invented sweep", "attrition (proportion lost) 0.1", "attrition (proportion lost) 0.5", "risk ratio"}},
+			[]string{"Invented sweep", "attrition = 0.1", "attrition = 0.5", "risk ratio", "power:"}},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
@@ -237,6 +238,13 @@ func TestSweepRefused(t *testing.T) {
 		words []string
 	}{
 		{"four keys", []string{"risk_ratio", "power", "alpha", "attrition"}, [][]string{{"0.7"}, {"0.8"}, {"0.05"}, {"0.1"}}, []string{"fix attrition"}},
+		{"thirty-six curves", []string{"risk_ratio", "control_risk"}, [][]string{{"0.7"}, func() []string {
+			var v []string
+			for i := range 36 {
+				v = append(v, strconv.Itoa(i))
+			}
+			return v
+		}()}, []string{"control_risk", "at most 35", "it has 36"}},
 		{"thirteen panels", []string{"risk_ratio", "power", "attrition"},
 			[][]string{{"0.7"}, {"0.8"}, {"0.01", "0.02", "0.03", "0.04", "0.05", "0.06", "0.07", "0.08", "0.09", "0.1", "0.11", "0.12", "0.13"}},
 			[]string{"attrition", "at most 12", "it has 13"}},
@@ -303,6 +311,47 @@ func TestSolvedFigure(t *testing.T) {
 				t.Errorf("got %v %v %q, want %v %q", got, ok, f.label, tt.want, tt.label)
 			}
 		})
+	}
+}
+
+// Many curves put the legend beside the plot, and panels share one
+// legend; a long title is wrapped; an SVG names fallback faces.
+func TestFigureLayout(t *testing.T) {
+	pw := func(x float64) *float64 { return &x }
+	ans := func(i int) *designs.Answer {
+		return &designs.Answer{NStar: float64(100 + i), N: []int{101 + i, 101 + i}, AchievedPower: pw(0.8)}
+	}
+	var many []string
+	for i := range 11 {
+		many = append(many, strconv.Itoa(10+i))
+	}
+	f, err := Sweep(table([]string{"risk_ratio", "control_risk"}, [][]string{{"0.6", "0.7"}, many}, []string{sweep.ColAnalysableFirst}, ans))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !f.LegendRight {
+		t.Error("11 curves: the legend is not beside the plot")
+	}
+	f, err = Sweep(table([]string{"risk_ratio", "control_risk"}, [][]string{{"0.6", "0.7"}, many[:3]}, []string{sweep.ColAnalysableFirst}, ans))
+	if err != nil || f.LegendRight {
+		t.Errorf("3 curves: legend beside the plot %v (%v), want inside", f.LegendRight, err)
+	}
+	svg, err := Render(f, "svg")
+	if err != nil || !strings.Contains(string(svg), "font-family:'Liberation Sans',Arial,Helvetica,sans-serif;") {
+		t.Errorf("the SVG names no fallback faces (%v)", err)
+	}
+	for _, tt := range []struct {
+		in   string
+		w    int
+		want string
+	}{
+		{"short title", 20, "short title"},
+		{"a much longer title of a study", 12, "a much\nlonger title\nof a study"},
+		{"unbreakable-word-longer-than-width x", 5, "unbreakable-word-longer-than-width\nx"},
+	} {
+		if got := wrap(tt.in, tt.w); got != tt.want {
+			t.Errorf("wrap(%q, %d) = %q, want %q", tt.in, tt.w, got, tt.want)
+		}
 	}
 }
 

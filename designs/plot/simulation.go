@@ -28,7 +28,11 @@ func Simulation(res *designs.Result) (*plot.Plot, error) {
 		lo, hi = sim.CI[0], sim.CI[1]
 	}
 	s := res.Spec
-	if s != nil && s.Goal != "precision" && s.Solve != "effect" && len(sim.N) > 0 {
+	// A cluster trial is simulated in whole clusters, whose design effect
+	// differs from the plan's (the closed form beside the simulation is
+	// computed on the same clusters): drawn side by side, not on the
+	// plan's curve.
+	if s != nil && s.Goal != "precision" && s.Solve != "effect" && s.Cluster == nil && len(sim.N) > 0 {
 		if p, err := powerCurve(res, false); err == nil {
 			x := float64(sim.N[0])
 			if s.Design == "cross-sectional" {
@@ -41,7 +45,7 @@ func Simulation(res *designs.Result) (*plot.Plot, error) {
 			if err != nil {
 				return nil, err
 			}
-			p.Legend.Add(fmt.Sprintf("simulated at n = %d: %s (95%% interval %s to %s)", int(x), pct(*sim.Power), pct(lo), pct(hi)), th...)
+			p.Legend.Add(fmt.Sprintf("simulated at n = %s: %s (95%% interval %s to %s)", thousands(int(x)), pct(*sim.Power), pct(lo), pct(hi)), th...)
 			p.Title.Text = title(res) + ": simulation"
 			return p, nil
 		}

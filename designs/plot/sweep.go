@@ -9,7 +9,6 @@ import (
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
-	"gonum.org/v1/plot/vg"
 
 	"enough/designs"
 	"enough/designs/sweep"
@@ -107,14 +106,22 @@ type KeysError struct{ Msg string }
 
 func (e *KeysError) Error() string { return e.Msg }
 
+// MaxCurves is the largest number of curves a sweep's figure draws: one
+// for each value of the second varied key (no two of them share both
+// dash pattern and marker).
+const MaxCurves = 35
+
 // CheckKeys says whether a sweep over keys (the --vary keys, in order),
 // whose third key has panels values, can be drawn: nil, or a *KeysError
 // naming the keys to fix. A sweep checks it before computing its grid.
-func CheckKeys(keys []string, panels int) error {
+func CheckKeys(keys []string, curves, panels int) error {
 	switch {
 	case len(keys) > 3:
 		return &KeysError{fmt.Sprintf("a plot shows at most three varied keys (%s on the axis, %s as curves, %s as panels); fix %s to one value (--set) or leave --plot out",
 			keys[0], keys[1], keys[2], strings.Join(keys[3:], ", "))}
+	case len(keys) >= 2 && curves > MaxCurves:
+		return &KeysError{fmt.Sprintf("a plot draws one curve for each value of the second varied key, %s, at most %d (it has %d); give %s fewer values, or fix it to one value (--set)",
+			keys[1], MaxCurves, curves, keys[1])}
 	case len(keys) == 3 && panels > MaxPanels:
 		return &KeysError{fmt.Sprintf("a plot shows one panel for each value of the third varied key, %s, at most %d (it has %d); give %s fewer values, or fix it to one value (--set)",
 			keys[2], MaxPanels, panels, keys[2])}
@@ -147,7 +154,7 @@ func Sweep(t *sweep.Table) (*Figure, error) {
 			panels = append(panels, r.Point[2])
 		}
 	}
-	if err := CheckKeys(keys, len(panels)); err != nil {
+	if err := CheckKeys(keys, len(series), len(panels)); err != nil {
 		return nil, err
 	}
 	if len(panels) == 0 {
@@ -159,11 +166,12 @@ func Sweep(t *sweep.Table) (*Figure, error) {
 	var plots []*plot.Plot
 	for _, pv := range panels {
 		name := title
-		if pv != "" {
-			name = Words(keys[2]) + " " + pv
-			if len(panels) == 1 && title != "" {
-				name = title + ": " + name
-			}
+		switch {
+		case pv != "" && len(panels) == 1 && title != "":
+			name = title + ": " + Words(keys[2]) + " " + pv
+		case pv != "":
+			// A panel is narrow: the key as written, and its value.
+			name = keys[2] + " = " + pv
 		}
 		ylabel := fig.label
 		if len(panels) > 1 {
@@ -203,8 +211,13 @@ func Sweep(t *sweep.Table) (*Figure, error) {
 			drawn++
 			if sv != "" {
 				if drawn == 1 {
-					// The key once, as the legend's heading.
-					p.Legend.Add(Words(keys[1]) + ":")
+					// The key once, as the legend's heading: as written
+					// when the legend stands in its narrow column.
+					heading := Words(keys[1]) + ":"
+					if len(panels) > 1 || len(series) > legendInside {
+						heading = keys[1] + ":"
+					}
+					p.Legend.Add(heading)
 				}
 				p.Legend.Add(sv, th...)
 			}
@@ -219,13 +232,16 @@ func Sweep(t *sweep.Table) (*Figure, error) {
 		}
 		legendClear(p, rising)
 		if len(panels) > 1 {
-			p.Legend.TextStyle.Font = sans(8)
-			p.Legend.ThumbnailWidth = vg.Points(16)
+			p.X.Tick.Marker = niceTicks{labels: 3}
+			p.Title.TextStyle.Font = sans(9)
 		}
 		plots = append(plots, p)
 	}
 	if len(plots) == 1 {
-		return Of(plots[0]), nil
+		f := Of(plots[0])
+		// Many curves: the legend beside the plot, not over its curves.
+		f.LegendRight = len(series) > legendInside
+		return f, nil
 	}
 	// One vertical scale for every panel, so that panels compare at a
 	// glance.
@@ -246,5 +262,6 @@ func Sweep(t *sweep.Table) (*Figure, error) {
 		copy(row, plots[i:min(i+cols, len(plots))])
 		rows = append(rows, row)
 	}
-	return &Figure{Title: title, Panels: rows}, nil
+	// Every panel has the same curves: one legend beside them all.
+	return &Figure{Title: title, Panels: rows, LegendRight: len(series) > 1}, nil
 }

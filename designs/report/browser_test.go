@@ -137,6 +137,20 @@ func TestBrowser(t *testing.T) {
 			// 0.18) is not on this grid; its columns are.
 			numbers: []string{"risk_ratio", "control_risk", "0.6", "0.15", "Cautions"},
 			labels:  []string{"risk ratio"}},
+		// Twelve panels: the tallest figure a sweep draws must still fit
+		// on a printed page.
+		{htmlPage: sweepPage("demo-trial.yaml", "risk_ratio=0.6,0.7", "power=0.8,0.9", "attrition=0:0.11:0.01"),
+			figure: func(t *testing.T) *Figure {
+				tab, _ := sweepExample(t, "demo-trial.yaml", "risk_ratio=0.6,0.7", "power=0.8,0.9", "attrition=0:0.11:0.01")
+				f, err := plot.Sweep(tab)
+				if err != nil {
+					t.Fatal(err)
+				}
+				svg, err := plot.Render(f, "svg")
+				return svgFigure(t, svg, err)
+			},
+			numbers: []string{"attrition", "Cautions"},
+			labels:  []string{"risk ratio", "attrition = 0.11"}},
 	}
 
 	dir := t.TempDir()
@@ -230,6 +244,11 @@ func TestBrowser(t *testing.T) {
 				}
 				if len(overflow) > 0 {
 					t.Errorf("%s: these stick out of the printable width: %q", paper.name, overflow)
+				}
+				// The plot fits on one printed page (the height less the
+				// @page margins, 18 mm and 20 mm).
+				if h := evaluate[float64](t, tctx, `document.querySelector("figure svg").getBoundingClientRect().height`); h > (paper.height*25.4-38)/25.4*96 {
+					t.Errorf("%s: the plot is %g px tall, more than a printed page", paper.name, h)
 				}
 
 				err = chromedp.Do(tctx, chromedp.Func(func(ctx context.Context, tg *chromedp.Target) error {

@@ -108,10 +108,10 @@ h2 { font-size: 1.15em; margin: 1.8em 0 0.6em; padding-bottom: 0.15em; border-bo
 p, li { max-width: 100%; }
 ul, ol { padding-left: 1.6em; }
 li { margin: 0.2em 0; }
-code { font-family: "DejaVu Sans Mono", Menlo, Consolas, monospace; font-size: 0.88em; overflow-wrap: anywhere; }
+code { font-family: "DejaVu Sans Mono", Menlo, Consolas, monospace; font-size: 0.88em; overflow-wrap: break-word; }
 table { border-collapse: separate; border-spacing: 0; border-top: 1px solid #888; border-left: 1px solid #888;
   width: 100%; margin: 0.8em 0 1.2em; font-size: 0.92em; }
-th, td { border-right: 1px solid #888; border-bottom: 1px solid #888; padding: 0.25em 0.45em; text-align: left; vertical-align: top; overflow-wrap: anywhere; }
+th, td { border-right: 1px solid #888; border-bottom: 1px solid #888; padding: 0.25em 0.45em; text-align: left; vertical-align: top; overflow-wrap: break-word; }
 th { background: #eee; font-weight: bold; }
 td.num { text-align: right; font-variant-numeric: tabular-nums; }
 figure { margin: 1em 0; }
@@ -128,6 +128,8 @@ footer p { margin: 0.2em 0; }
   table { break-inside: auto; }
   thead { display: table-header-group; }
   tr, li, figure, p { break-inside: avoid-page; }
+  figure svg { max-height: 215mm; width: auto; }
+  footer { break-before: avoid-page; }
   th { background: #eee; -webkit-print-color-adjust: exact; print-color-adjust: exact; }
 }
 `
@@ -152,7 +154,9 @@ func (d *document) html(w io.Writer, fig *Figure) error {
 		}
 	}
 	for i, s := range d.sections {
-		if long(s) {
+		if long(s) || (i == at && fig != nil && len(fig.SVG) > 0) {
+			// A long section, or one with the plot, may run on to the
+			// next page rather than leave this one nearly empty.
 			b.WriteString("<section class=\"long\">\n")
 		} else {
 			b.WriteString("<section>\n")
@@ -278,7 +282,20 @@ func inlineSVG(doc []byte) ([]byte, error) {
 func inline(s string) string {
 	s = html.EscapeString(s)
 	s = pairs(s, "**", "<strong>", "</strong>")
-	return pairs(s, "`", "<code>", "</code>")
+	s = pairs(s, "`", "<code>", "</code>")
+	return breakable(s)
+}
+
+// codeSpan finds a code element's text.
+var codeSpan = regexp.MustCompile(`<code>[^<]*</code>`)
+
+// breakable lets the keys in code elements break after an underscore
+// (<wbr>), never inside a word, so that narrow columns wrap at the parts
+// of a key.
+func breakable(s string) string {
+	return codeSpan.ReplaceAllStringFunc(s, func(c string) string {
+		return strings.ReplaceAll(c, "_", "_<wbr>")
+	})
 }
 
 // pairs replaces each pair of marks in s by open and close; an unpaired
@@ -315,7 +332,9 @@ func htmlTable(b *strings.Builder, table [][]string) {
 	}
 	b.WriteString("<table>\n<thead>\n<tr>")
 	for _, c := range table[0] {
-		fmt.Fprintf(b, "<th scope=\"col\">%s</th>", inline(oneLine(c)))
+		// A header may be a key (a sweep's columns): breakable after its
+		// underscores.
+		fmt.Fprintf(b, "<th scope=\"col\">%s</th>", strings.ReplaceAll(inline(oneLine(c)), "_", "_<wbr>"))
 	}
 	b.WriteString("</tr>\n</thead>\n<tbody>\n")
 	for _, row := range table[1:] {
