@@ -345,6 +345,11 @@ func (b *Base) prepareFast() {
 		head, _, nested := strings.Cut(name, ".")
 		ok := given || absentOK[f]
 		switch {
+		case s.Matched:
+			// The within-set correlation's bound follows the odds ratio
+			// and the controls per case set the sizes: every key of a
+			// matched study is rebuilt.
+			ok = false
 		case f == fkEffect && name != s.EffectKey:
 			ok = false
 		case f == fkReference && (s.Outcome != "binary" || precision):
@@ -416,15 +421,7 @@ func (b *Base) CheckKey(key string) error {
 	numeric := b.numericKeys()
 	head, sub, nested := strings.Cut(key, ".")
 	info, known := specKeys[head]
-	var subs map[string]string
-	switch head {
-	case "cluster":
-		subs = clusterKeys
-	case "simulate":
-		subs = simulateKeys
-	case "claimed":
-		subs = claimedKeys
-	}
+	subs := nestedKeys[head]
 	switch {
 	case key == "":
 		return fail("no key given; allowed: a numeric key of the specification, such as %s", orList(exampleKeys(numeric)))
@@ -497,13 +494,9 @@ func (b *Base) numericKeys() []string {
 		case k == "version":
 		case info.kind == kindNumber || info.kind == kindWhole:
 			out = append(out, k)
-		case k == "cluster":
-			for sub := range clusterKeys {
-				out = append(out, "cluster."+sub)
-			}
-		case k == "simulate":
-			for sub := range simulateKeys {
-				out = append(out, "simulate."+sub)
+		case slices.Contains(numericMaps, k):
+			for sub := range nestedKeys[k] {
+				out = append(out, k+"."+sub)
 			}
 		}
 	}

@@ -37,6 +37,7 @@ const (
 	calcMargin
 	calcMeans
 	calcSurvival
+	calcMatched
 )
 
 // The method families' calculators are the calculator under other names,
@@ -52,6 +53,9 @@ type (
 	// survivalCalc serves the events methods, converting events to
 	// participants through each arm's probability of an observed event.
 	survivalCalc calculator
+	// matchedCalc serves matched case-control sets: its sizes are sets
+	// (cases), the controls following from the controls per case.
+	matchedCalc calculator
 )
 
 // survival returns the survival calculator, when c is one.
@@ -60,8 +64,23 @@ func (c *calculator) survival() (*survivalCalc, bool) {
 }
 
 // nStar is the unrounded first-group size at the target power; it records
-// its steps on tr.
+// its steps on tr. With an adjustment for covariates, the method's size is
+// inflated by 1/(1 − R²) (Hsieh, Bloch & Larsen 1998, Stat Med
+// 17:1623–1634):
+//
+//	n* = n*_unadjusted / (1 − R²)
 func (c *calculator) nStar(target float64, tr *trail) (float64, error) {
+	n, err := c.methodNStar(target, tr)
+	if err != nil || !c.s.Adjusted {
+		return n, err
+	}
+	tr.rename("n_star", "n_star_unadjusted")
+	return tr.add("n_star", "n_star_unadjusted / (1 − r_squared): the inflation for the adjustment (Hsieh, Bloch & Larsen 1998)",
+		n/(1-c.s.AdjustR2), in("n_star_unadjusted", n), in("r_squared", c.s.AdjustR2)), nil
+}
+
+// methodNStar is the method's own n*, before any adjustment.
+func (c *calculator) methodNStar(target float64, tr *trail) (float64, error) {
 	switch c.kind {
 	case calcMargin:
 		return (*marginCalc)(c).nStar(target, tr)
@@ -69,12 +88,20 @@ func (c *calculator) nStar(target float64, tr *trail) (float64, error) {
 		return (*meansCalc)(c).nStar(target, tr)
 	case calcSurvival:
 		return (*survivalCalc)(c).nStar(target, tr)
+	case calcMatched:
+		return (*matchedCalc)(c).nStar(target, tr)
 	}
 	return (*binaryCalc)(c).nStar(target, tr)
 }
 
-// power is the power at effective sizes n1 and n2.
+// power is the power at effective sizes n1 and n2: with an adjustment for
+// covariates, the method's power at n × (1 − R²), the information an
+// adjusted estimate keeps (the inverse of nStar's inflation).
 func (c *calculator) power(n1, n2 float64) float64 {
+	if c.s.Adjusted {
+		f := 1 - c.s.AdjustR2
+		n1, n2 = n1*f, n2*f
+	}
 	switch c.kind {
 	case calcMargin:
 		return (*marginCalc)(c).power(n1, n2)
@@ -82,12 +109,22 @@ func (c *calculator) power(n1, n2 float64) float64 {
 		return (*meansCalc)(c).power(n1, n2)
 	case calcSurvival:
 		return (*survivalCalc)(c).power(n1, n2)
+	case calcMatched:
+		return (*matchedCalc)(c).power(n1, n2)
 	}
 	return (*binaryCalc)(c).power(n1, n2)
 }
 
 // powerName names the power computation in the steps.
 func (c *calculator) powerName() string {
+	if c.s.Adjusted {
+		return c.methodPowerName() + ", at each size × (1 − r_squared) for the adjustment"
+	}
+	return c.methodPowerName()
+}
+
+// methodPowerName names the method's own power computation.
+func (c *calculator) methodPowerName() string {
 	switch c.kind {
 	case calcMargin:
 		return (*marginCalc)(c).powerName()
@@ -95,6 +132,8 @@ func (c *calculator) powerName() string {
 		return (*meansCalc)(c).powerName()
 	case calcSurvival:
 		return (*survivalCalc)(c).powerName()
+	case calcMatched:
+		return "the power from " + MethodByID(c.id).Name
 	}
 	return (*binaryCalc)(c).powerName()
 }
@@ -102,15 +141,23 @@ func (c *calculator) powerName() string {
 // params names the values, other than the sizes, that the size and power
 // computations use, for the steps.
 func (c *calculator) params() []Input {
+	var ins []Input
 	switch c.kind {
 	case calcMargin:
-		return (*marginCalc)(c).params()
+		ins = (*marginCalc)(c).params()
 	case calcMeans:
-		return (*meansCalc)(c).params()
+		ins = (*meansCalc)(c).params()
 	case calcSurvival:
-		return (*survivalCalc)(c).params()
+		ins = (*survivalCalc)(c).params()
+	case calcMatched:
+		ins = (*matchedCalc)(c).params()
+	default:
+		ins = (*binaryCalc)(c).params()
 	}
-	return (*binaryCalc)(c).params()
+	if c.s.Adjusted {
+		ins = append(ins, in("r_squared", c.s.AdjustR2))
+	}
+	return ins
 }
 
 // effects holds the effect an analysis sees: the planned (undiluted) effect
@@ -184,6 +231,8 @@ func newCalculator(s *Spec, m *MethodInfo, e effects) calculator {
 		return calculator{kind: calcSurvival, s: s, id: m.ID, method: int(m.events), e: e}
 	case m.margin != 0:
 		return calculator{kind: calcMargin, s: s, id: m.ID, method: int(m.margin), e: e}
+	case s.Matched:
+		return calculator{kind: calcMatched, s: s, id: m.ID, e: e}
 	}
 	return calculator{kind: calcBinary, s: s, id: m.ID, method: int(m.engine), e: e}
 }
@@ -549,4 +598,58 @@ func (c *survivalCalc) power(n1, n2 float64) float64 {
 
 func (c *survivalCalc) powerName() string {
 	return "the power from " + MethodByID(c.id).Name + " with the expected events"
+}
+
+// sets is the matched sets' model at the effect the calculator sees: the
+// control exposure, the odds ratio of the case exposure against it, the
+// controls per case and the correlation within sets (Dupont 1988).
+func (c *matchedCalc) sets() power.MatchedSets {
+	return power.MatchedSets{ControlExposure: c.e.p2, OddsRatio: power.OddsRatio(c.e.p1, c.e.p2),
+		Controls: c.s.Controls, Correlation: c.s.ExposureCorrelation}
+}
+
+// nStar is the unrounded number of matched sets (cases): Dupont's for any
+// number of controls per case, Connor's or Schlesselman's for pairs.
+func (c *matchedCalc) nStar(target float64, tr *trail) (float64, error) {
+	ms := c.sets()
+	var n float64
+	var err error
+	switch c.id {
+	case "connor":
+		n, err = ms.ConnorPairs(c.e.alpha, c.s.Sides, target)
+	case "schlesselman-pairs":
+		n, _, err = ms.SchlesselmanPairs(c.e.alpha, c.s.Sides, target)
+	default:
+		n, err = ms.DupontSets(c.e.alpha, c.s.Sides, target)
+	}
+	if err == nil && tr != nil {
+		ins := append(c.params(), in("target_power", target))
+		tr.add("n_star", fmt.Sprintf("the unrounded number of matched sets (one case each) from %s", MethodByID(c.id).Name), n, ins...)
+	}
+	return n, err
+}
+
+// power is the power at n1 matched sets (n2, the controls, follows).
+func (c *matchedCalc) power(n1, _ float64) float64 {
+	ms := c.sets()
+	var p float64
+	var err error
+	switch c.id {
+	case "connor":
+		p, err = ms.ConnorPower(n1, c.e.alpha, c.s.Sides)
+	case "schlesselman-pairs":
+		p = ms.SchlesselmanPower(n1, c.e.alpha, c.s.Sides)
+	default:
+		p, err = ms.DupontPower(n1, c.e.alpha, c.s.Sides)
+	}
+	if err != nil {
+		// Exposures the correlation makes impossible: no power.
+		return 0
+	}
+	return p
+}
+
+func (c *matchedCalc) params() []Input {
+	return append(riskInputs(c.e), inInt("controls_per_case", c.s.Controls), in("exposure_correlation", c.s.ExposureCorrelation),
+		alphaInput(c.s, c.e), inInt("sides", c.s.Sides))
 }

@@ -177,6 +177,8 @@ var specKeys = map[string]keyInfo{
 	"comparisons":          {kindText, "each-vs-control or all-pairs"},
 	"direction":            {kindText, "first-higher or first-lower"},
 	"margin_scale":         {kindText, "difference or ratio"},
+	"matching":             {kindMap, "a map with controls_per_case (a whole number from 1 to 10) and optionally exposure_correlation (in [0, 1), default 0)"},
+	"adjustment":           {kindMap, "a map with r_squared: the R² of the exposure regressed on the other covariates of the analysis, in [0, 1)"},
 	"claimed":              {kindMap, "a map of what a protocol states, read by enough review: n, n_second or total, enrol_total, power, alpha, sides, method, events, clusters, tolerance_n, tolerance_power"},
 	"simulate":             {kindMap, "a map with replicates (100 to 1e9), seed (a whole number from 0 to 2^53) and optionally n (the first group's size to simulate at)"},
 }
@@ -194,6 +196,32 @@ var clusterKeys = map[string]string{
 	"icc":     "the intracluster correlation coefficient, in [0, 1)",
 	"size_cv": "the coefficient of variation of cluster sizes, from 0 to 10",
 }
+
+// matchingKeys are the keys of the matching map of a matched case-control
+// study.
+var matchingKeys = map[string]string{
+	"controls_per_case":    "the number of controls matched to each case, a whole number from 1 to 10",
+	"exposure_correlation": "the correlation of exposure between a case and each of its matched controls, in [0, 1) (default 0)",
+}
+
+// adjustmentKeys are the keys of the adjustment map.
+var adjustmentKeys = map[string]string{
+	"r_squared": "the R² of the exposure regressed on the other covariates of the analysis, in [0, 1)",
+}
+
+// nestedKeys are the maps of keys, by the key that holds them (sources,
+// whose keys are other keys, aside).
+var nestedKeys = map[string]map[string]string{
+	"cluster":    clusterKeys,
+	"simulate":   simulateKeys,
+	"claimed":    claimedKeys,
+	"matching":   matchingKeys,
+	"adjustment": adjustmentKeys,
+}
+
+// numericMaps are the maps whose keys are numbers of the plan, in the
+// order they are listed; a sweep varies them dotted (cluster.icc).
+var numericMaps = []string{"adjustment", "cluster", "matching", "simulate"}
 
 // allKeys returns the specification keys in sorted order.
 func allKeys() []string {
@@ -263,6 +291,8 @@ var precisionKeys = []string{"goal", "total", "expected_prevalence", "margin", "
 // selector is what decides which keys a specification may use.
 type selector struct {
 	design, goal, outcome, pairing, hypothesis string
+	// matched says a case-control study has a matching block.
+	matched bool
 }
 
 // keysFor returns the keys allowed for a selection of design, goal,
@@ -290,6 +320,11 @@ func keysFor(sel selector) map[string]bool {
 		// Each pair holds one of each group.
 		delete(ok, "ratio")
 	}
+	if sel.matched {
+		// Each case has its matched controls.
+		delete(ok, "ratio")
+		delete(ok, "n_second")
+	}
 	if sel.design == "trial" {
 		add("hypothesis", "non_adherence", "contamination", "arms", "comparisons")
 		if sel.hypothesis == "non-inferiority" || sel.hypothesis == "equivalence" {
@@ -300,9 +335,18 @@ func keysFor(sel selector) map[string]bool {
 		}
 	}
 	switch sel.outcome {
+	case "binary", "continuous":
+		if sel.pairing == "" {
+			add("adjustment")
+		}
+	}
+	switch sel.outcome {
 	case "binary":
 		add(r.reference)
 		add(r.effects...)
+		if sel.design == "case-control" {
+			add("matching")
+		}
 		if sel.design != "case-control" {
 			add("higher_is_better")
 		}

@@ -24,6 +24,10 @@ type MethodInfo struct {
 	DefaultTest string
 	// Note is a line for `enough methods`.
 	Note string
+	// Matched says the method serves matched case-control sets (the
+	// matching block) and only them; PairsOnly that it serves one control
+	// per case only.
+	Matched, PairsOnly bool
 
 	engine power.Method
 	margin power.MarginMethod
@@ -68,6 +72,32 @@ var Methods = []MethodInfo{
 		DefaultTest: "chi-square",
 		Note:        "case exposure derived from the control exposure and the odds ratio; no continuity correction",
 		engine:      power.Schlesselman,
+	},
+	{
+		ID: "dupont", Short: "Dupont 1988", Name: "Dupont, matched sets",
+		Citation:    "Dupont WD (1988). Power calculations for matched case-control studies. Biometrics 44:1157-1168",
+		Designs:     []string{"case-control"},
+		Matched:     true,
+		DefaultTest: "mantel-haenszel",
+		Note:        "the default for matched case-control studies: one case and 1 to 10 controls per set, exposure correlated within sets; the conditional (Mantel-Haenszel) test stratified by set",
+	},
+	{
+		ID: "connor", Short: "Connor 1987", Name: "Connor, matched pairs",
+		Citation:    "Connor RJ (1987). Sample size for testing differences in proportions for the paired-sample design. Biometrics 43:207-211",
+		Designs:     []string{"case-control"},
+		Matched:     true,
+		PairsOnly:   true,
+		DefaultTest: "mcnemar",
+		Note:        "one control per case: McNemar's test, unconditional on the number of discordant pairs",
+	},
+	{
+		ID: "schlesselman-pairs", Short: "Schlesselman 1982", Name: "Schlesselman, discordant pairs",
+		Citation:    "Schlesselman JJ (1982). Case-Control Studies: Design, Conduct, Analysis. Oxford University Press, chapter 6",
+		Designs:     []string{"case-control"},
+		Matched:     true,
+		PairsOnly:   true,
+		DefaultTest: "mcnemar",
+		Note:        "one control per case: the discordant pairs McNemar's test needs, divided by the probability of discordance with exposures independent within pairs (ignores exposure_correlation)",
 	},
 	{
 		ID: "exact", Short: "exact enumeration", Name: "exact power by enumeration of both binomial counts",
@@ -147,6 +177,15 @@ var Methods = []MethodInfo{
 	},
 }
 
+// servesSpec says whether the method serves the specification: its
+// design, goal, outcome and hypothesis, and its matching.
+func (m MethodInfo) servesSpec(s *Spec) bool {
+	if m.Matched != s.Matched || (m.PairsOnly && s.Controls != 1) {
+		return false
+	}
+	return m.serves(s.Design, s.Goal, s.Outcome, s.Hypothesis)
+}
+
 func (m MethodInfo) serves(design, goal, outcome, hypothesis string) bool {
 	if m.Goal != "" && design == "cross-sectional" && goal != m.Goal {
 		return false
@@ -209,6 +248,14 @@ func TestName(test string) string {
 		return "the log-rank test"
 	case "cluster-t":
 		return "a t test on cluster summaries"
+	case "mcnemar":
+		return "McNemar's test"
+	case "mantel-haenszel":
+		return "the Mantel-Haenszel test stratified by matched set"
+	case "logistic-wald":
+		return "the Wald test of the exposure's coefficient in a logistic regression with the covariates"
+	case "t-regression":
+		return "the t test of the exposure's coefficient in a linear regression with the covariates"
 	}
 	return test
 }

@@ -240,6 +240,9 @@ func restFromNStar(s *Spec, nstar float64, n1 int, tr *trail) sizes {
 	if s.Pairing == "paired" {
 		return oneGroup(n1, enrolFor(s, "enrol_first", n1, tr), s.DesignEffect)
 	}
+	if s.Matched {
+		return matchedSizes(s, n1, enrolFor(s, "enrol_first", n1, tr), tr)
+	}
 	rule := "ceil(ratio × n_star × design_effect)"
 	if least(s) > 1 {
 		rule = "max(2, ceil(ratio × n_star × design_effect))"
@@ -247,6 +250,15 @@ func restFromNStar(s *Spec, nstar float64, n1 int, tr *trail) sizes {
 	n2 := tr.addInt("analysable_second", rule, max(least(s), ceilTol(s.Ratio*nstar*s.DesignEffect)),
 		in("ratio", s.Ratio), in("n_star", nstar), in("design_effect", s.DesignEffect))
 	return twoGroups(n1, n2, enrolFor(s, "enrol_first", n1, tr), enrolFor(s, "enrol_second", n2, tr), s.DesignEffect)
+}
+
+// matchedSizes returns the sizes of matched sets: n1 analysable cases of
+// e1 enrolled, each with its controls (a set lost is lost whole).
+func matchedSizes(s *Spec, n1, e1 int, tr *trail) sizes {
+	m := inInt("controls_per_case", s.Controls)
+	n2 := tr.addInt("analysable_second", "controls_per_case × analysable_first", s.Controls*n1, m, inInt("analysable_first", n1))
+	e2 := tr.addInt("enrol_second", "controls_per_case × enrol_first", s.Controls*e1, m, inInt("enrol_first", e1))
+	return twoGroups(n1, n2, e1, e2, s.DesignEffect)
 }
 
 // twoGroups returns the sizes of two groups: analysable n1 and n2,
@@ -303,6 +315,12 @@ func sizesFromEnrolment(s *Spec, tr *trail) (sizes, error) {
 			return sz, err
 		}
 		e1 := tr.addInt("enrol_first", "n, as given", s.N, inInt("n", s.N))
+		if s.Matched {
+			a1 := tr.addInt("analysable_first", floorRule("first"), floorTol(float64(e1)*(1-s.Attrition)), inInt("enrol_first", e1), in("attrition", s.Attrition))
+			sz = matchedSizes(s, a1, e1, tr)
+			recordEffective(s, tr, sz)
+			break
+		}
 		var e2 int
 		if s.NSecond > 0 {
 			e2 = tr.addInt("enrol_second", "n_second, as given", s.NSecond, inInt("n_second", s.NSecond))
@@ -622,7 +640,35 @@ func solveCore(s *Spec, m *MethodInfo, ans *Answer, tr *trail, main *solved) (ef
 		}
 	}
 	designFigures(s, ans, main)
+	if s.Matched {
+		matchedFigures(s, ans, main, e, tr)
+	}
 	return e, nil
+}
+
+// matchedFigures records the matched sets' figures: the sets, the sets
+// expected to be discordant at the planned effect, and (solving n) the
+// cases an unmatched design with as many controls per case would need.
+func matchedFigures(s *Spec, ans *Answer, sv *solved, e effects, tr *trail) {
+	ans.Sets = ans.N[0]
+	if s.Solve == "effect" {
+		return
+	}
+	mc, ok := (*matchedCalc)(&sv.calc), sv.calc.kind == calcMatched
+	if !ok {
+		return
+	}
+	if d, err := mc.sets().DiscordantPerSet(); err == nil {
+		d = tr.add("discordant_per_set", "the probability that a matched set holds both exposed and unexposed members (Dupont 1988)", d, mc.params()...)
+		v := tr.add("expected_discordant_sets", "analysable_first × discordant_per_set", float64(ans.N[0])*d, inInt("analysable_first", ans.N[0]), in("discordant_per_set", d))
+		ans.ExpectedDiscordantSets = ptr(v)
+	}
+	if s.Solve == "n" {
+		tp := power.TwoProportions{P1: e.p1, P2: e.p2, Alpha: e.alpha, Sides: s.Sides}
+		if n, err := power.Fleiss.N(tp, float64(s.Controls), s.Power); err == nil {
+			ans.UnmatchedCases = ceilTol(n)
+		}
+	}
 }
 
 // setPower puts the achieved power in the answer: in the room
@@ -671,7 +717,7 @@ func OtherMethods(s *Spec) []*MethodInfo {
 		if s.MarginScale == "ratio" && o.ID == "blackwelder" {
 			continue // a Wald method on the difference scale
 		}
-		if o.ID != s.Method && o.ID != "exact" && o.serves(s.Design, s.Goal, s.Outcome, s.Hypothesis) {
+		if o.ID != s.Method && o.ID != "exact" && o.servesSpec(s) {
 			others = append(others, o)
 		}
 	}

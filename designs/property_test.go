@@ -156,6 +156,10 @@ func genPlan(r *rand.Rand) randomPlan {
 	if kind < 5 {
 		fmt.Fprintf(&b, "alpha: %s\nsides: %d\n", pick(r, "0.05", "0.01", "0.1"), pick(r, 2, 2, 1))
 	}
+	if sp := b.String(); kind != 5 && kind != 9 && !strings.Contains(sp, "cluster:") && !strings.Contains(sp, "pairing:") &&
+		!strings.Contains(sp, "arms:") && r.IntN(4) == 0 {
+		fmt.Fprintf(&b, "adjustment: {r_squared: %.3g}\n", u(0, 0.6))
+	}
 	f("power", power)
 	return randomPlan{spec: b.String(), effectKey: effectKey}
 }

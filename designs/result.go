@@ -111,6 +111,15 @@ type Answer struct {
 	// Paired designs: the number of pairs.
 	Pairs int `json:"pairs,omitempty"`
 
+	// Matched case-control sets: the number of sets (one case each; N is
+	// then [cases, controls]), the sets expected to be discordant (those
+	// that inform the conditional analysis) and the cases an unmatched
+	// design with as many controls per case would need at the same
+	// target (Fleiss, no continuity correction; solving n).
+	Sets                   int      `json:"sets,omitempty"`
+	ExpectedDiscordantSets *float64 `json:"expected_discordant_sets,omitempty"`
+	UnmatchedCases         int      `json:"unmatched_cases,omitempty"`
+
 	// Cluster designs: the design effect, the clusters per arm and the
 	// participants whole clusters bring.
 	DesignEffect  *float64 `json:"design_effect,omitempty"`

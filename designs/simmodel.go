@@ -22,6 +22,9 @@ func simModel(s *Spec, res *Result, sizes [2]int, null bool) (simSetup, error) {
 	if s.Hypothesis == "equivalence" && s.Outcome == "continuous" {
 		return unavailable("equivalence of means is not simulated yet; its exact power is already computed by integration (method t)")
 	}
+	if s.Adjusted {
+		return unavailable("an analysis adjusted for covariates is not simulated yet")
+	}
 	if s.Hypothesis != "superiority" && s.Cluster != nil {
 		return unavailable("a cluster trial with a margin is not simulated yet; its closed form is a t test of the cluster summaries against the margin")
 	}
@@ -87,6 +90,30 @@ func simModel(s *Spec, res *Result, sizes [2]int, null bool) (simSetup, error) {
 	case "binary":
 		if s.Sides != 1 && e.p1 < e.p2 {
 			dir = -1
+		}
+		if s.Matched {
+			// Dupont's (1988) model of exposure within sets, analysed by
+			// McNemar's test (pairs) or the Mantel-Haenszel test
+			// stratified by set.
+			psi := power.OddsRatio(e.p1, e.p2)
+			if null {
+				psi = 1
+				st.null = fmt.Sprintf("no difference (odds ratio 1, control exposure %s)", trimFloat(e.p2))
+			}
+			// Dupont's formula reads the odds ratio as the odds ratio within
+			// sets, which the conditional analysis estimates; Connor's
+			// and Schlesselman's read the exposures member by member.
+			within := s.Method == "dupont"
+			if within && s.ExposureCorrelation > 0 {
+				st.notes = append(st.notes, "The sets are simulated as Dupont's formula reads them: the number of exposed members of a set from the correlated exposures, and the case's share of them from the odds ratio within the set.")
+			}
+			m, err := power.NewMatchedSim(power.MatchedSim{MatchedSets: power.MatchedSets{ControlExposure: e.p2, OddsRatio: psi,
+				Controls: s.Controls, Correlation: s.ExposureCorrelation}, WithinSets: within, Sets: n1, Alpha: e.alpha, Sides: sides, Dir: dir})
+			if err != nil {
+				return unavailable(err.Error())
+			}
+			st.model = m
+			return st, nil
 		}
 		p1, p2 := e.p1, e.p2
 		if s.Hypothesis != "superiority" {

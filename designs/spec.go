@@ -69,6 +69,19 @@ type Spec struct {
 	P1 float64
 	// ExposurePrevalence splits a cross-sectional total into groups.
 	ExposurePrevalence float64
+	// Adjusted says the analysis adjusts for other covariates (the
+	// adjustment block); AdjustR2 is the R² of the exposure regressed on
+	// them, which inflates the size by 1/(1 − R²) (Hsieh, Bloch & Larsen
+	// 1998, Stat Med 17:1623–1634).
+	Adjusted bool
+	AdjustR2 float64
+
+	// Matched case-control studies (the matching block): Controls
+	// controls per case, exposure correlated ExposureCorrelation within
+	// sets (Dupont 1988, Biometrics 44:1157–1168); Ratio is then Controls.
+	Matched             bool
+	Controls            int
+	ExposureCorrelation float64
 
 	// Precision surveys.
 	ExpectedPrevalence float64
@@ -539,14 +552,8 @@ func (r *reader) checkNested(head, sub string, e *entry) *SpecError {
 		if e.node.Kind != yaml.ScalarNode || e.node.Tag == "!!null" {
 			return r.errAt(e, "is not text; allowed: a line saying where the value came from (put quotes around text that contains \": \")")
 		}
-	case "simulate", "cluster", "claimed":
-		known := clusterKeys
-		switch head {
-		case "simulate":
-			known = simulateKeys
-		case "claimed":
-			known = claimedKeys
-		}
+	case "simulate", "cluster", "claimed", "matching", "adjustment":
+		known := nestedKeys[head]
 		if _, ok := known[sub]; !ok {
 			names := make([]string, 0, len(known))
 			for k := range known {
@@ -748,13 +755,8 @@ func (r *reader) percentMsg(key string, n *yaml.Node) string {
 
 // allowedOf says what key allows; a nested key (cluster.icc) too.
 func allowedOf(key string) string {
-	if head, sub, ok := strings.Cut(key, "."); ok {
-		switch head {
-		case "cluster":
-			return clusterKeys[sub]
-		case "simulate":
-			return simulateKeys[sub]
-		}
+	if head, sub, ok := strings.Cut(key, "."); ok && head != "claimed" {
+		return nestedKeys[head][sub]
 	}
 	return specKeys[key].allowed
 }
@@ -948,15 +950,23 @@ func joinWords(words []string, conj string) string {
 	return strings.Join(words[:len(words)-1], ", ") + " " + conj + " " + words[len(words)-1]
 }
 
+// assumptionMaps are the maps whose keys are assumptions of the plan, with
+// their keys in the order they are listed.
+var assumptionMaps = map[string][]string{
+	"cluster":    {"size", "icc", "size_cv"},
+	"matching":   {"controls_per_case", "exposure_correlation"},
+	"adjustment": {"r_squared"},
+}
+
 // given returns the keys the specification sets, in document order.
 func (r *reader) given() []Given {
 	var out []Given
 	for _, e := range r.order {
-		if e.key == "cluster" {
-			// The cluster settings are assumptions too.
-			for _, sub := range []string{"size", "icc", "size_cv"} {
-				if se := r.nested["cluster"][sub]; se != nil && se.node.Kind == yaml.ScalarNode {
-					out = append(out, Given{Key: "cluster." + sub, Value: se.node.Value})
+		if subs, ok := assumptionMaps[e.key]; ok {
+			// The settings of these maps are assumptions too.
+			for _, sub := range subs {
+				if se := r.nested[e.key][sub]; se != nil && se.node.Kind == yaml.ScalarNode {
+					out = append(out, Given{Key: e.key + "." + sub, Value: se.node.Value})
 				}
 			}
 			continue

@@ -112,6 +112,20 @@ func (t *trail) add(name, rule string, out float64, in ...Input) float64 {
 	return out
 }
 
+// rename gives the last step called from the name to (a step computed
+// before it is known that another step will take its name).
+func (t *trail) rename(from, to string) {
+	if t == nil {
+		return
+	}
+	for i := len(t.steps) - 1; i >= 0; i-- {
+		if t.steps[i].Name == from {
+			t.steps[i].Name = to
+			return
+		}
+	}
+}
+
 // addInt records a step whose output is a whole number.
 func (t *trail) addInt(name, rule string, out int, in ...Input) int {
 	t.add(name, rule, float64(out), in...)

@@ -87,6 +87,14 @@ func replayStep(st Step) (float64, bool) {
 			a, b = "effective_first", "effective_second"
 		}
 		return g(a)*g("event_probability_first") + g(b)*g("event_probability_second"), true
+	case strings.HasPrefix(rule, "n_star_unadjusted / (1 − r_squared)"):
+		return g("n_star_unadjusted") / (1 - g("r_squared")), true
+	case rule == "analysable_first × discordant_per_set":
+		return g("analysable_first") * g("discordant_per_set"), true
+	case rule == "controls_per_case × analysable_first":
+		return g("controls_per_case") * g("analysable_first"), true
+	case rule == "controls_per_case × enrol_first":
+		return g("controls_per_case") * g("enrol_first"), true
 	case rule == "ceil(n_star)":
 		return up(g("n_star")), true
 	case strings.HasPrefix(rule, "(1 − exposure_prevalence) / exposure_prevalence"):
@@ -143,7 +151,7 @@ func replayStep(st Step) (float64, bool) {
 // computedSteps are the steps that a method computes (checked against
 // outside values elsewhere); every other step must replay by arithmetic.
 var computedSteps = map[string]bool{
-	"n_star": true, "events_star": true, "achieved_power": true, "power": true,
+	"n_star": true, "n_star_unadjusted": true, "discordant_per_set": true, "events_star": true, "achieved_power": true, "power": true,
 	"event_probability_first": true, "event_probability_second": true,
 	"detectable_lower": true, "detectable_upper": true, "diluted_lower": true, "diluted_upper": true,
 	"z": true, "margin": true, "analysable_first": true,

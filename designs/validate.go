@@ -180,7 +180,8 @@ func (r *reader) selection(s *Spec) (sel selector, ok bool) {
 		r.refuse(r.errAt(e, "belongs to a %s outcome; add `outcome: %s` (the default outcome is binary)", want, want))
 		ok = false
 	}
-	return selector{design: design, goal: goal, outcome: s.Outcome, pairing: s.Pairing, hypothesis: s.Hypothesis}, ok
+	matched := design == "case-control" && r.entries["matching"] != nil
+	return selector{design: design, goal: goal, outcome: s.Outcome, pairing: s.Pairing, hypothesis: s.Hypothesis, matched: matched}, ok
 }
 
 // reportUnknown reports the keys no specification knows, each with the key
@@ -319,6 +320,8 @@ func (r *reader) reportMisplaced(s *Spec, sel selector, allowed map[string]bool)
 		switch {
 		case e.key == "ratio" && s.Pairing == "paired":
 			msg = "does not apply to a paired design: each pair holds one of each; allowed: leave ratio out"
+		case (e.key == "ratio" || e.key == "n_second") && sel.matched:
+			msg = "does not apply with matching, where each case has matching.controls_per_case controls; allowed: matching.controls_per_case, and no " + e.key
 		case precision && (e.key == "alpha" || e.key == "power" || e.key == "sides"):
 			msg += "; a precision survey is set by margin and confidence"
 		case e.key == "ratio" && design == "cross-sectional":
@@ -543,7 +546,7 @@ func (r *reader) buildPrecision(s *Spec) {
 func (r *reader) methodError(s *Spec) *SpecError {
 	var fits []string
 	for _, m := range Methods {
-		if m.serves(s.Design, s.Goal, s.Outcome, s.Hypothesis) {
+		if m.servesSpec(s) {
 			fits = append(fits, m.ID)
 		}
 	}
@@ -565,8 +568,20 @@ func (r *reader) methodError(s *Spec) *SpecError {
 	if s.Hypothesis != "superiority" && s.Hypothesis != "" {
 		what += " and hypothesis " + s.Hypothesis
 	}
+	switch {
+	case s.Matched:
+		what = fmt.Sprintf("a matched case-control study with %d controls per case", s.Controls)
+	case s.Design == "case-control":
+		what = "an unmatched case-control study"
+	}
 	for _, m := range Methods {
-		if m.ID == name {
+		switch {
+		case m.ID != name:
+		case m.PairsOnly && s.Matched:
+			return r.errAt(e, "%s serves one control per case (matching.controls_per_case 1), not %d; allowed: %s", name, s.Controls, orList(fits))
+		case m.Matched && !s.Matched:
+			return r.errAt(e, "%s serves matched sets; allowed without a matching block: %s (or add matching: {controls_per_case: M})", name, orList(fits))
+		default:
 			return r.errAt(e, "%s does not fit %s; allowed: %s", name, what, orList(fits))
 		}
 	}

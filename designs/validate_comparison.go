@@ -6,10 +6,22 @@ import (
 	"strings"
 
 	"gopkg.in/yaml.v3"
+
+	"enough/power"
 )
 
 // testsFor lists the planned tests that suit an outcome and hypothesis.
 func testsFor(s *Spec) []string {
+	switch {
+	case s.Matched && s.Controls == 1:
+		return []string{"mcnemar"}
+	case s.Matched:
+		return []string{"mantel-haenszel"}
+	case s.Adjusted && s.Outcome == "continuous":
+		return []string{"t-regression"}
+	case s.Adjusted:
+		return []string{"logistic-wald"}
+	}
 	switch s.Outcome {
 	case "continuous":
 		if s.Pairing == "paired" {
@@ -36,6 +48,8 @@ func testsFor(s *Spec) []string {
 // defaultTest is the planned test assumed unless `test:` says otherwise.
 func defaultTest(s *Spec) string {
 	switch {
+	case s.Adjusted, s.Matched:
+		return testsFor(s)[0]
 	case s.Cluster != nil:
 		return "cluster-t"
 	case s.Pairing == "paired":
@@ -63,16 +77,26 @@ func (r *reader) boolean(key string) (bool, *entry, *SpecError) {
 
 func (r *reader) buildComparison(s *Spec) {
 	ro := roles[s.Design]
+	r.buildMatching(s)
 
 	// method (the test follows the outcome, so it is read last)
 	var fits []string
 	for _, m := range Methods {
-		if m.serves(s.Design, s.Goal, s.Outcome, s.Hypothesis) {
+		if m.servesSpec(s) {
 			fits = append(fits, m.ID)
 		}
 	}
+	def := fits[0]
+	if s.Matched {
+		def = "dupont"
+	}
+	if r.get("adjustment") != nil && def == "fleiss-cc" {
+		// An adjusted analysis is a regression's Wald test, which has no
+		// continuity correction.
+		def = "fleiss"
+	}
 	var err *SpecError
-	if s.Method, _, err = r.choice("method", fits[0], fits...); err != nil {
+	if s.Method, _, err = r.choice("method", def, fits...); err != nil {
 		r.refuse(r.methodError(s))
 		s.Method = fits[0]
 	}
@@ -145,9 +169,15 @@ func (r *reader) buildComparison(s *Spec) {
 		}
 	} else {
 		s.Ratio, _ = r.rangeNum("ratio", 1, inRatio)
+		if s.Matched {
+			// Every case has its matched controls.
+			s.Ratio = float64(s.Controls)
+		}
 		n2, n2e, err := r.whole("n_second")
 		if r.keep(err) && n2e != nil {
 			switch {
+			case s.Matched:
+				// Refused with the matching block.
 			case s.Solve == "n":
 				s.Ignored = append(s.Ignored, "n_second is ignored when solving n (ratio sets the second group)")
 			case n2 < 1 || n2 > MaxSize:
@@ -162,6 +192,7 @@ func (r *reader) buildComparison(s *Spec) {
 	}
 
 	r.buildTrial(s)
+	r.buildAdjustment(s)
 	switch s.Outcome {
 	case "continuous":
 		r.buildContinuous(s)
@@ -171,6 +202,7 @@ func (r *reader) buildComparison(s *Spec) {
 		r.buildBinary(s)
 	}
 	r.buildDirection(s)
+	r.checkMatching(s)
 
 	// the planned test, now that the outcome is known
 	var te *entry
@@ -249,6 +281,107 @@ func (r *reader) buildSimulate(s *Spec) {
 	s.Simulate = sim
 }
 
+// buildMatching reads the matching block of a case-control study: the
+// controls per case and the correlation of exposure within sets. The
+// ratio is then the controls per case; ratio and n_second do not apply.
+func (r *reader) buildMatching(s *Spec) {
+	me := r.get("matching")
+	if me == nil || s.Design != "case-control" {
+		return
+	}
+	s.Matched, s.Controls = true, 1
+	if r.refused["matching"] {
+		return
+	}
+	var m, phi float64
+	whole := func(x float64) bool { return x >= 1 && x <= power.MaxMatchedControls && x == math.Trunc(x) }
+	if r.nestedNum("matching", me, "controls_per_case", whole, true, &m) {
+		s.Controls = int(m)
+	}
+	if r.nestedNum("matching", me, "exposure_correlation", inFraction0, false, &phi) {
+		s.ExposureCorrelation = phi
+	}
+}
+
+// checkMatching refuses a within-set correlation of exposure that the odds
+// ratio makes impossible (a control's conditional probability of exposure
+// beyond 0 or 1), and a method for pairs with more controls per case.
+func (r *reader) checkMatching(s *Spec) {
+	if !s.Matched {
+		return
+	}
+	m := MethodByID(s.Method)
+	if m != nil && m.PairsOnly && s.Controls != 1 {
+		r.refuse(r.errAt(r.get("method"), "%s serves one control per case (matching.controls_per_case 1), not %d; allowed: dupont", s.Method, s.Controls))
+	}
+	if s.Solve == "effect" || !r.effectOK || s.ExposureCorrelation == 0 {
+		return
+	}
+	psi := power.OddsRatio(s.P1, s.P2)
+	if most := power.MaxMatchedCorrelation(psi); s.ExposureCorrelation >= most {
+		r.refuse(r.errAt(r.nested["matching"]["exposure_correlation"], "%g is too large for an odds ratio of %.4g: a control's probability of exposure given its case's would leave [0, 1] (Dupont 1988); allowed: below min(√ψ, 1/√ψ) = %.4g", s.ExposureCorrelation, psi, most))
+	}
+}
+
+// buildAdjustment reads the adjustment block: the R² of the exposure
+// regressed on the covariates the analysis adjusts for.
+func (r *reader) buildAdjustment(s *Spec) {
+	ae := r.get("adjustment")
+	if ae == nil || r.refused["adjustment"] {
+		return
+	}
+	var r2 float64
+	if !r.nestedNum("adjustment", ae, "r_squared", inFraction0, true, &r2) {
+		r.refused["adjustment"] = true
+		return
+	}
+	switch {
+	case s.Matched:
+		r.refuse(r.errAt(ae, "is not planned for matched sets yet (their analysis is conditional on the set); allowed: no adjustment"))
+	case s.Method == "exact":
+		r.refuse(r.errAt(ae, "does not apply with method exact, whose enumeration of two binomial counts cannot adjust for covariates; allowed: another method, or no adjustment"))
+	case s.Cluster != nil:
+		r.refuse(r.errAt(ae, "is not planned for a cluster trial yet, whose analysis is a t test on cluster summaries; allowed: no adjustment"))
+	case s.Arms > 2:
+		r.refuse(r.errAt(ae, "is not planned for a trial of more than two arms yet; allowed: no adjustment"))
+	default:
+		s.Adjusted, s.AdjustR2 = true, r2
+	}
+}
+
+// nestedNum reads the number head.sub of the map he into dst when it is
+// within in; a missing required key, a percentage, a value that is no
+// number or one out of range is refused. It returns false when the key
+// was refused (true when an optional key is absent).
+func (r *reader) nestedNum(head string, he *entry, sub string, in func(float64) bool, required bool, dst *float64) bool {
+	allowed := nestedKeys[head][sub]
+	e := r.nested[head][sub]
+	if e == nil {
+		if required && !r.refused[head+"."+sub] {
+			r.refuse(&SpecError{File: he.file, Line: he.line, Key: head + "." + sub, Msg: "missing; allowed: " + allowed})
+			return false
+		}
+		return !required
+	}
+	var x float64
+	switch {
+	case e.node.Kind == yaml.ScalarNode && percentLike.MatchString(e.node.Value):
+		r.refuse(r.errAt(e, "%s", r.percentMsg(head+"."+sub, e.node)))
+	case e.node.Kind != yaml.ScalarNode || (e.node.Tag != "!!int" && e.node.Tag != "!!float"):
+		r.refuse(r.errAt(e, "%s is not a number; allowed: %s", show(e.node), allowed))
+	default:
+		if _, err := fmt.Sscan(strings.ReplaceAll(e.node.Value, "_", ""), &x); err != nil {
+			r.refuse(r.errAt(e, "%s is not a number; allowed: %s", show(e.node), allowed))
+		} else if !in(x) {
+			r.refuse(r.rangeErr(e, x, allowed, in))
+		} else {
+			*dst = x
+			return true
+		}
+	}
+	return false
+}
+
 // buildTrial reads the keys of trials: hypothesis margin, clusters,
 // adherence and arms.
 func (r *reader) buildTrial(s *Spec) {
@@ -266,31 +399,9 @@ func (r *reader) buildTrial(s *Spec) {
 			r.fail(r.errAt(second, "given together with %s: a cluster design computes its own design effect; allowed: one of cluster and design_effect", first.key))
 		}
 		c := &Cluster{}
-		m := r.nested["cluster"]
 		good := true
 		num := func(sub string, in func(float64) bool, required bool, dst *float64) {
-			e := m[sub]
-			if e == nil {
-				if required && !r.refused["cluster."+sub] {
-					r.refuse(&SpecError{File: ce.file, Line: ce.line, Key: "cluster." + sub, Msg: "missing; allowed: " + clusterKeys[sub]})
-					good = false
-				}
-				return
-			}
-			var x float64
-			if e.node.Kind == yaml.ScalarNode && percentLike.MatchString(e.node.Value) {
-				r.refuse(r.errAt(e, "%s", r.percentMsg("cluster."+sub, e.node)))
-			} else if e.node.Kind != yaml.ScalarNode || (e.node.Tag != "!!int" && e.node.Tag != "!!float") {
-				r.refuse(r.errAt(e, "%s is not a number; allowed: %s", show(e.node), clusterKeys[sub]))
-			} else if _, err := fmt.Sscan(strings.ReplaceAll(e.node.Value, "_", ""), &x); err != nil {
-				r.refuse(r.errAt(e, "%s is not a number; allowed: %s", show(e.node), clusterKeys[sub]))
-			} else if !in(x) {
-				r.refuse(r.rangeErr(e, x, clusterKeys[sub], in))
-			} else {
-				*dst = x
-				return
-			}
-			good = false
+			good = r.nestedNum("cluster", ce, sub, in, required, dst) && good
 		}
 		num("size", inClusterSize, true, &c.Size)
 		num("icc", inFraction0, true, &c.ICC)

@@ -26,6 +26,10 @@ type methodObject struct {
 	// DefaultTest is null for a method with no test (an interval).
 	DefaultTest *string `json:"default_test"`
 	Note        string  `json:"note"`
+	// Matching is "sets" for a method of matched case-control sets
+	// (matching.controls_per_case 1 to 10), "pairs" for one control per
+	// case only, and omitted for unmatched designs.
+	Matching string `json:"matching,omitempty"`
 }
 
 // methodObjects lists the catalogue in its JSON form: the outcome spelled
@@ -49,6 +53,12 @@ func methodObjects() []methodObject {
 		}
 		if m.DefaultTest != "" {
 			o.DefaultTest = &m.DefaultTest
+		}
+		switch {
+		case m.PairsOnly:
+			o.Matching = "pairs"
+		case m.Matched:
+			o.Matching = "sets"
 		}
 		out = append(out, o)
 	}
@@ -108,6 +118,12 @@ func writeMethodsText(w io.Writer) error {
 		serves := strings.Join(m.Designs, ", ")
 		if m.Goal != "" {
 			serves += " (goal: " + m.Goal + ")"
+		}
+		switch m.Matching {
+		case "pairs":
+			serves += ", matched pairs (matching.controls_per_case 1)"
+		case "sets":
+			serves += ", matched sets (matching.controls_per_case 1 to 10)"
 		}
 		fmt.Fprintf(&b, "  serves:       %s\n", serves)
 		fmt.Fprintf(&b, "  outcome:      %s\n", m.Outcome)

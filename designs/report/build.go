@@ -26,7 +26,10 @@ var keyLabels = map[string]string{
 	"arms": "arms", "higher_is_better": "higher values of the outcome are better",
 	"hypothesis": "hypothesis", "pairing": "pairing", "comparisons": "comparisons",
 	"cluster.size": "mean cluster size", "cluster.icc": "intracluster correlation (ICC)",
-	"cluster.size_cv": "coefficient of variation of cluster sizes",
+	"cluster.size_cv":               "coefficient of variation of cluster sizes",
+	"adjustment.r_squared":          "R² of the exposure on the adjustment covariates",
+	"matching.controls_per_case":    "controls matched to each case",
+	"matching.exposure_correlation": "correlation of exposure within matched sets",
 }
 
 // keyLabel returns the human name of a specification key, in the words of
@@ -193,6 +196,8 @@ func studyKind(r *designs.Result) string {
 		return "paired randomised trial"
 	case r.Spec.Pairing == "paired":
 		return "paired (before-after or matched) study"
+	case r.Spec.Matched:
+		return fmt.Sprintf("matched case-control study (1:%d matched sets)", r.Spec.Controls)
 	case r.Spec.Cluster != nil:
 		return "cluster-randomised trial"
 	}
@@ -250,7 +255,7 @@ func assumptionSection(r *designs.Result) section {
 	if r.Sides != 0 && !has["sides"] {
 		defaults = append(defaults, sidesWord(r.Sides)+" test")
 	}
-	if r.Ratio != nil && !has["ratio"] && !has["n_second"] && r.Design != "cross-sectional" && r.Spec.Pairing != "paired" {
+	if r.Ratio != nil && !has["ratio"] && !has["n_second"] && r.Design != "cross-sectional" && r.Spec.Pairing != "paired" && !r.Spec.Matched {
 		defaults = append(defaults, "allocation "+allocation(*r.Ratio))
 	}
 	if !has["attrition"] && r.Outcome != "time-to-event" {
@@ -379,6 +384,16 @@ func answerSection(r *designs.Result) section {
 		}
 		s.bullets = append(s.bullets,
 			fmt.Sprintf("Power: %s; enrolled %s; %s: %s", pct1(*r.Power), groups(a.Enrol), strings.ToLower(analysable[:1])+analysable[1:], sizeList(a.N, r)))
+	}
+	if a.Sets > 0 {
+		line := fmt.Sprintf("Matched sets: %s, each of one case and %s", count(a.Sets), controlsWord(r.Spec.Controls))
+		if a.ExpectedDiscordantSets != nil {
+			line += fmt.Sprintf("; about %.1f expected to be discordant (to hold both exposed and unexposed members), the sets that inform the analysis", *a.ExpectedDiscordantSets)
+		}
+		s.bullets = append(s.bullets, line)
+		if a.UnmatchedCases > 0 {
+			s.bullets = append(s.bullets, matchingCost(r))
+		}
 	}
 	if a.Events > 0 {
 		need, rounded := eventsRequired(r)
@@ -663,4 +678,29 @@ func stepNumber(x float64) string {
 		return strconv.FormatFloat(x, 'f', -1, 64)
 	}
 	return strconv.FormatFloat(x, 'g', 10, 64)
+}
+
+// controlsWord counts the controls of a set: "one control", "2 controls".
+func controlsWord(m int) string {
+	if m == 1 {
+		return "one control"
+	}
+	return fmt.Sprintf("%d controls", m)
+}
+
+// matchingCost compares the matched sets with the unmatched design of as
+// many controls per case that the answer records.
+func matchingCost(r *designs.Result) string {
+	a := r.Result
+	m := r.Spec.Controls
+	d := a.Sets - a.UnmatchedCases
+	line := fmt.Sprintf("An unmatched design with %s per case would need %s cases and %s controls (Fleiss, Levin & Paik 2003, no continuity correction): ",
+		controlsWord(m), count(a.UnmatchedCases), count(m*a.UnmatchedCases))
+	switch {
+	case d > 0:
+		return line + fmt.Sprintf("matching with this correlation of exposure costs %s more cases", count(d))
+	case d < 0:
+		return line + fmt.Sprintf("matching saves %s cases", count(-d))
+	}
+	return line + "matching neither costs nor saves cases"
 }

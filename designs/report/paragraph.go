@@ -16,8 +16,51 @@ func paragraph(r *designs.Result) string {
 	var b strings.Builder
 	intro(&b, r)
 	assume(&b, r)
+	adjustment(&b, r)
 	conclude(&b, r)
+	matchedSentences(&b, r)
 	return strings.TrimSpace(b.String())
+}
+
+// matchedSentences states the matched sets' own figures, as the answer
+// records them: the sets, the discordant sets expected, and what matching
+// costs or saves against an unmatched design.
+func matchedSentences(b *strings.Builder, r *designs.Result) {
+	a := r.Result
+	if a.Sets == 0 {
+		return
+	}
+	if t := b.String(); t != "" && !strings.HasSuffix(t, " ") {
+		b.WriteString(" ")
+	}
+	fmt.Fprintf(b, "These are %s matched sets", count(a.Sets))
+	if a.ExpectedDiscordantSets != nil {
+		fmt.Fprintf(b, ", of which about %.0f are expected to hold both exposed and unexposed members, the sets that inform the analysis", *a.ExpectedDiscordantSets)
+	}
+	b.WriteString(".")
+	if a.UnmatchedCases > 0 {
+		b.WriteString(" " + matchingCost(r) + ".")
+	}
+}
+
+// adjustment says how the adjustment for covariates enters the answer,
+// from the steps recorded: the inflation of n* when solving n, the
+// information kept when solving power or effect.
+func adjustment(b *strings.Builder, r *designs.Result) {
+	s := r.Spec
+	if s == nil || !s.Adjusted {
+		return
+	}
+	fmt.Fprintf(b, "The analysis adjusts for covariates that explain R² = %s of the variance of the exposure%s; ", num(s.AdjustR2), source(r, "adjustment.r_squared"))
+	unadj, ok1 := stepOutput(r, "n_star_unadjusted")
+	adj, ok2 := stepOutput(r, "n_star")
+	if ok1 && ok2 {
+		f, _ := groupsOf(r)
+		fmt.Fprintf(b, "following Hsieh, Bloch & Larsen (1998), the unadjusted size of %.2f for %s is inflated by 1/(1 − R²) = %.4g to %.2f. ",
+			unadj, f.ref, 1/(1-s.AdjustR2), adj)
+		return
+	}
+	fmt.Fprintf(b, "following Hsieh, Bloch & Larsen (1998), the power is that of an unadjusted analysis of 1 − R² = %s of the participants. ", pct(1-s.AdjustR2))
 }
 
 // methodPhrase names the chosen method in a sentence.
@@ -45,6 +88,12 @@ func methodPhrase(id, name string) string {
 		return "Freedman's formula (1982)"
 	case "exact":
 		return "exact enumeration of the test's power over every pair of counts (Suissa & Shuster 1985)"
+	case "dupont":
+		return "Dupont's method for matched sets (Dupont 1988)"
+	case "connor":
+		return "Connor's formula for matched pairs (Connor 1987)"
+	case "schlesselman-pairs":
+		return "Schlesselman's discordant-pairs formula (1982)"
 	}
 	return name
 }
@@ -421,6 +470,12 @@ func allocationPhrase(r *designs.Result) string {
 		return "with the groups in the proportions expected among those surveyed"
 	case s.Pairing == "paired":
 		return ""
+	case s.Matched:
+		alloc := "with " + controlsWord(s.Controls) + " matched to each case"
+		if s.ExposureCorrelation > 0 {
+			alloc += fmt.Sprintf(" and a correlation of exposure of %s within sets%s", num(s.ExposureCorrelation), source(r, "matching.exposure_correlation"))
+		}
+		return alloc
 	}
 	alloc := "with " + allocation(*r.Ratio) + " allocation"
 	if *r.Ratio == 1 {

@@ -23,6 +23,7 @@ const (
 	citeDunn          = "Dunn OJ (1961). Multiple comparisons among means. J Am Stat Assoc 56:52-64"                                                                                                                                            // Dunn 1961
 	citeWelch         = "Welch BL (1947). The generalization of 'Student's' problem when several different population variances are involved. Biometrika 34:28-35"                                                                              // Welch 1947
 	citeMiettinen     = "Miettinen O, Nurminen M (1985). Comparative analysis of two rates. Stat Med 4:213-226"                                                                                                                                 // Miettinen & Nurminen 1985
+	citeHsiehBloch    = "Hsieh FY, Bloch DA, Larsen MD (1998). A simple method of sample size calculation for linear and logistic regression. Stat Med 17:1623-1634"                                                                            // Hsieh, Bloch & Larsen 1998
 )
 
 // references lists the full citation of every method, formula and
@@ -87,6 +88,14 @@ func references(r *designs.Result) []string {
 		}
 		if s.Test == "t-welch" {
 			add(citeWelch)
+		}
+		if s.Adjusted {
+			add(citeHsiehBloch)
+		}
+		if r.Result.UnmatchedCases > 0 {
+			if m := designs.MethodByID("fleiss"); m != nil {
+				add(m.Citation)
+			}
 		}
 		if s.Outcome == "binary" && s.MarginScale == "ratio" && s.Hypothesis != "superiority" {
 			add(citeMiettinen)
