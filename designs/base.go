@@ -261,7 +261,7 @@ func NewBase(file string, data []byte, sets []string) (*Base, error) {
 	sum := sha256.Sum256(data)
 	spec.SHA256 = hex.EncodeToString(sum[:])
 	b := &Base{file: file, sets: slices.Clone(sets), sum: spec.SHA256, raw: raw, spec: spec}
-	b.sel = selector{design: spec.Design, goal: orDefault(spec.Goal, "comparison"), outcome: spec.Outcome, pairing: spec.Pairing, hypothesis: spec.Hypothesis}
+	b.sel = selector{design: spec.Design, goal: orDefault(spec.Goal, "comparison"), outcome: spec.Outcome, pairing: spec.Pairing, hypothesis: spec.Hypothesis, matched: spec.Matched, continuous: spec.ContinuousExposure}
 	b.allowed = keysFor(b.sel)
 	b.prepareFast()
 	return b, nil
@@ -345,10 +345,10 @@ func (b *Base) prepareFast() {
 		head, _, nested := strings.Cut(name, ".")
 		ok := given || absentOK[f]
 		switch {
-		case s.Matched:
+		case s.Matched, s.Outcome == "rate", s.ContinuousExposure:
 			// The within-set correlation's bound follows the odds ratio
-			// and the controls per case set the sizes: every key of a
-			// matched study is rebuilt.
+			// and the controls per case set the sizes; a rate's effect is
+			// no risk: every key of these plans is rebuilt.
 			ok = false
 		case f == fkEffect && name != s.EffectKey:
 			ok = false
@@ -434,9 +434,11 @@ func (b *Base) CheckKey(key string) error {
 	case head == "claimed":
 		return fail("is read by enough review, which rechecks a protocol's stated figures; a plan does not use it; allowed: a numeric key of the plan, such as %s", orList(exampleKeys(numeric)))
 	case nested && info.kind != kindMap:
-		return fail("has no nested keys; allowed dotted keys: cluster.KEY and simulate.KEY")
+		return fail("has no nested keys; allowed dotted keys: the keys of adjustment, cluster, matching and simulate (cluster.icc)")
 	case head == "sources" || (info.kind == kindMap && !nested):
 		return fail("is not a number (%s); allowed: a numeric key, such as %s", info.allowed, orList(exampleKeys(numeric)))
+	case !b.allowed[head] && b.sel.matched && (head == "ratio" || head == "n_second"):
+		return fail("does not apply with matching, where each case has matching.controls_per_case controls; allowed: matching.controls_per_case")
 	case !b.allowed[head]:
 		where, _ := belongsTo(head, b.sel)
 		if head == "margin" && b.spec.Design == "trial" {

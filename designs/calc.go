@@ -38,6 +38,8 @@ const (
 	calcMeans
 	calcSurvival
 	calcMatched
+	calcRate
+	calcLogistic
 )
 
 // The method families' calculators are the calculator under other names,
@@ -56,6 +58,12 @@ type (
 	// matchedCalc serves matched case-control sets: its sizes are sets
 	// (cases), the controls following from the controls per case.
 	matchedCalc calculator
+	// rateCalc serves events over person-time: the Wald test on the log
+	// rate ratio.
+	rateCalc calculator
+	// logisticCalc serves a binary outcome and a continuous exposure: one
+	// group, everyone.
+	logisticCalc calculator
 )
 
 // survival returns the survival calculator, when c is one.
@@ -90,6 +98,10 @@ func (c *calculator) methodNStar(target float64, tr *trail) (float64, error) {
 		return (*survivalCalc)(c).nStar(target, tr)
 	case calcMatched:
 		return (*matchedCalc)(c).nStar(target, tr)
+	case calcRate:
+		return (*rateCalc)(c).nStar(target, tr)
+	case calcLogistic:
+		return (*logisticCalc)(c).nStar(target, tr)
 	}
 	return (*binaryCalc)(c).nStar(target, tr)
 }
@@ -111,6 +123,10 @@ func (c *calculator) power(n1, n2 float64) float64 {
 		return (*survivalCalc)(c).power(n1, n2)
 	case calcMatched:
 		return (*matchedCalc)(c).power(n1, n2)
+	case calcRate:
+		return (*rateCalc)(c).rates().Power(n1, n2, c.e.alpha, c.s.Sides)
+	case calcLogistic:
+		return power.HsiehPower(n1, c.s.EventRate, math.Log(c.e.orsd), c.e.alpha, c.s.Sides)
 	}
 	return (*binaryCalc)(c).power(n1, n2)
 }
@@ -132,7 +148,7 @@ func (c *calculator) methodPowerName() string {
 		return (*meansCalc)(c).powerName()
 	case calcSurvival:
 		return (*survivalCalc)(c).powerName()
-	case calcMatched:
+	case calcMatched, calcRate, calcLogistic:
 		return "the power from " + MethodByID(c.id).Name
 	}
 	return (*binaryCalc)(c).powerName()
@@ -151,6 +167,10 @@ func (c *calculator) params() []Input {
 		ins = (*survivalCalc)(c).params()
 	case calcMatched:
 		ins = (*matchedCalc)(c).params()
+	case calcRate:
+		ins = (*rateCalc)(c).params()
+	case calcLogistic:
+		ins = []Input{in("event_rate", c.s.EventRate), in("odds_ratio_per_sd", c.e.orsd), alphaInput(c.s, c.e), inInt("sides", c.s.Sides)}
 	default:
 		ins = (*binaryCalc)(c).params()
 	}
@@ -167,6 +187,8 @@ type effects struct {
 	p1, p2    float64 // binary: the risks an intention-to-treat analysis sees
 	diff      float64 // continuous: the diluted difference in means
 	hr        float64 // time-to-event: the diluted hazard ratio
+	rr        float64 // person-time: the rate ratio
+	orsd      float64 // a continuous exposure: the odds ratio per SD
 	plannedHR float64 // time-to-event: the hazard ratio of receiving the intervention
 	na, c     float64 // non-adherence and contamination
 	diluted   bool
@@ -177,7 +199,9 @@ type effects struct {
 // plannedEffects applies the dilution of an intention-to-treat analysis and
 // the multiplicity correction to the specification's effect.
 func plannedEffects(s *Spec) effects {
-	return effectsAt(s, s.P1, s.MeanDiff, s.HazardRatio)
+	e := effectsAt(s, s.P1, s.MeanDiff, s.HazardRatio)
+	e.rr, e.orsd = s.RateRatio, s.ORPerSD
+	return e
 }
 
 // effectsAt is plannedEffects for another undiluted effect: the first
@@ -229,6 +253,10 @@ func newCalculator(s *Spec, m *MethodInfo, e effects) calculator {
 		return calculator{kind: calcMeans, s: s, id: m.ID, method: int(mm), mc: meanComparison(s, e)}
 	case s.Outcome == "time-to-event":
 		return calculator{kind: calcSurvival, s: s, id: m.ID, method: int(m.events), e: e}
+	case s.Outcome == "rate":
+		return calculator{kind: calcRate, s: s, id: m.ID, e: e}
+	case s.ContinuousExposure:
+		return calculator{kind: calcLogistic, s: s, id: m.ID, e: e}
 	case m.margin != 0:
 		return calculator{kind: calcMargin, s: s, id: m.ID, method: int(m.margin), e: e}
 	case s.Matched:
@@ -652,4 +680,40 @@ func (c *matchedCalc) power(n1, _ float64) float64 {
 func (c *matchedCalc) params() []Input {
 	return append(riskInputs(c.e), inInt("controls_per_case", c.s.Controls), in("exposure_correlation", c.s.ExposureCorrelation),
 		alphaInput(c.s, c.e), inInt("sides", c.s.Sides))
+}
+
+// rates is the person-time model at the rate ratio the calculator sees.
+func (c *rateCalc) rates() power.TwoRates {
+	return power.TwoRates{UnexposedRate: c.s.UnexposedRate, RateRatio: c.e.rr, PersonTime: c.s.PersonTime, Overdispersion: c.s.Overdispersion}
+}
+
+// nStar is the unrounded size of the exposed group for the Wald test on
+// the log rate ratio (Breslow & Day 1987; Zhu & Lakkis 2014).
+func (c *rateCalc) nStar(target float64, tr *trail) (float64, error) {
+	n, err := c.rates().N1(c.s.Ratio, c.e.alpha, c.s.Sides, target)
+	if err == nil && tr != nil {
+		ins := append(c.params(), in("target_power", target), in("ratio", c.s.Ratio))
+		tr.add("n_star", fmt.Sprintf("the unrounded size of the first group from the %s", MethodByID(c.id).Name), n, ins...)
+	}
+	return n, err
+}
+
+func (c *rateCalc) params() []Input {
+	ins := []Input{in("unexposed_rate", c.s.UnexposedRate), in("rate_ratio", c.e.rr), in("person_time", c.s.PersonTime)}
+	if c.s.Overdispersion > 0 {
+		ins = append(ins, in("overdispersion", c.s.Overdispersion))
+	}
+	return append(ins, alphaInput(c.s, c.e), inInt("sides", c.s.Sides))
+}
+
+// nStar is the unrounded number of participants for the Wald test of a
+// continuous exposure's coefficient in a logistic regression (Hsieh,
+// Bloch & Larsen 1998, eq. 1).
+func (c *logisticCalc) nStar(target float64, tr *trail) (float64, error) {
+	n, err := power.HsiehN(c.s.EventRate, math.Log(c.e.orsd), c.e.alpha, c.s.Sides, target)
+	if err == nil && tr != nil {
+		ins := []Input{in("event_rate", c.s.EventRate), in("odds_ratio_per_sd", c.e.orsd), alphaInput(c.s, c.e), inInt("sides", c.s.Sides), in("target_power", target)}
+		tr.add("n_star", "the unrounded number of participants from "+MethodByID(c.id).Name, n, ins...)
+	}
+	return n, err
 }

@@ -512,6 +512,10 @@ func (in *ReviewInput) elements(r *reader) {
 		effects = []string{"mean_difference", ro.means[0], ro.means[1]}
 	case outcome == "time-to-event":
 		reference, effects = []string{"control_median", "control_survival"}, []string{"hazard_ratio"}
+	case outcome == "rate":
+		reference, effects = []string{"unexposed_rate"}, []string{"rate_ratio"}
+	case val("exposure") == "continuous":
+		reference, effects = []string{"event_rate"}, []string{"odds_ratio_per_sd"}
 	default:
 		reference, effects = []string{ro.reference}, ro.effects
 	}
@@ -528,7 +532,7 @@ func (in *ReviewInput) elements(r *reader) {
 		"sides":           has("sides") || c.Sides > 0,
 		"power":           has("power") || c.Power > 0,
 		"method":          has("method") || c.Method != "",
-		"allocation":      has("ratio", "n_second", "exposure_prevalence") || c.NSecond > 0,
+		"allocation":      has("ratio", "n_second", "exposure_prevalence", "matching") || c.NSecond > 0,
 		"attrition":       has("attrition", "dropout"),
 		"sample_size":     c.N > 0 || c.Total > 0 || c.EnrolTotal > 0 || c.Events > 0 || c.Clusters > 0,
 	}
@@ -545,7 +549,8 @@ func (in *ReviewInput) elements(r *reader) {
 		applies["alpha"], applies["sides"], applies["power"], applies["allocation"] = false, false, false, false
 		stated["effect_source"] = has("sources.margin")
 	}
-	if val("pairing") == "paired" {
+	if val("pairing") == "paired" || val("exposure") == "continuous" {
+		// One group: nothing to allocate.
 		applies["allocation"] = false
 	}
 	if hyp == "equivalence" {

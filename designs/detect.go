@@ -36,7 +36,13 @@ func detectable(s *Spec, m *MethodInfo, e effects, sz sizes, tr *trail) *Detecta
 		ins = append(ins, sdInputs(s)...)
 	case "time-to-event":
 		ins = append(ins, in("control_hazard", s.ControlHazard))
+	case "rate":
+		ins = append(ins, in("unexposed_rate", s.UnexposedRate), in("person_time", s.PersonTime))
 	default:
+		if s.ContinuousExposure {
+			ins = append(ins, in("event_rate", s.EventRate))
+			break
+		}
 		ins = append(ins, in("second_risk", s.P2))
 	}
 	ins = append(ins, alphaInput(s, e), inInt("sides", s.Sides), in("target_power", s.Power))
@@ -89,6 +95,11 @@ func scaleName(s *Spec) string {
 		return "difference in means"
 	case "time-to-event":
 		return "hazard ratio"
+	case "rate":
+		return "rate ratio"
+	}
+	if s.ContinuousExposure {
+		return "odds ratio per standard deviation"
 	}
 	return s.EffectKey
 }
@@ -117,6 +128,14 @@ func restate(s *Spec, e effects, x float64) (v float64, planned, diluted *Effect
 		hr := math.Exp(x)
 		de := effectsAt(s, 0, 0, hr)
 		return hr, &Effect{HazardRatio: ptr(hr)}, &Effect{HazardRatio: ptr(de.hr)}, de.hr
+	case "rate":
+		rr := math.Exp(x)
+		return rr, rateEffect(s, rr), rateEffect(s, rr), rr
+	}
+	if s.ContinuousExposure {
+		or := math.Exp(x)
+		e := &Effect{OddsRatioPerSD: ptr(or), EventRate: ptr(s.EventRate)}
+		return or, e, e, or
 	}
 	de := effectsAt(s, x, 0, 0)
 	return scaleValue(s.EffectKey, x, s.P2), effectOf(s.Design, x, s.P2), effectOf(s.Design, de.p1, de.p2), scaleValue(s.EffectKey, de.p1, de.p2)
@@ -134,7 +153,15 @@ func detectEffect(s *Spec, m *MethodInfo, base effects, sz sizes, dir int) (floa
 			e = effectsAt(s, 0, x, 0)
 		case "time-to-event":
 			e = effectsAt(s, 0, 0, math.Exp(x))
+		case "rate":
+			e = effectsAt(s, 0, 0, 0)
+			e.rr = math.Exp(x)
 		default:
+			if s.ContinuousExposure {
+				e = effectsAt(s, 0, 0, 0)
+				e.orsd = math.Exp(x)
+				break
+			}
 			e = effectsAt(s, x, 0, 0)
 		}
 		e.clusterK = base.clusterK
@@ -163,7 +190,16 @@ func detectEffect(s *Spec, m *MethodInfo, base effects, sz sizes, dir int) (floa
 		return refine(f, 0, hi)
 	case "time-to-event":
 		from, to = 0, math.Log(1e6)*float64(dir)
+	case "rate":
+		// Within the ratios a specification allows; below 1 the Wald
+		// test's power turns down again past a peak, beyond which the
+		// outward scan does not look.
+		from, to = 0, math.Log(MaxRatio)*float64(dir)
 	default:
+		if s.ContinuousExposure {
+			from, to = 0, math.Log(MaxRatio)*float64(dir)
+			break
+		}
 		const edge = 1e-9
 		from, to = s.P2, 1-edge
 		if dir < 0 {

@@ -190,7 +190,7 @@ func TestParseSeveralErrors(t *testing.T) {
 			[]want{{1, "version", "not supported"}}},
 		{"a bad outcome stops before the outcome's keys",
 			"version: 1\ndesign: trial\noutcome: survival\ncontrol_risk: 20\n", nil,
-			[]want{{3, "outcome", "binary, continuous or time-to-event"}}},
+			[]want{{3, "outcome", "binary, continuous, time-to-event or rate"}}},
 		{"a bad solve reports values but no key it would require",
 			"version: 1\ndesign: trial\nsolve: powr\ncontrol_risk: 0.2\nrisk_ratio: 0.75\nalpha: 0.7\n", nil,
 			[]want{{3, "solve", `did you mean "power"?`}, {6, "alpha", "[1e-20, 0.5]"}}},

@@ -109,7 +109,7 @@ var specKeys = map[string]keyInfo{
 	"version":         {kindWhole, "1"},
 	"title":           {kindText, "a line of text"},
 	"design":          {kindText, "cohort, case-control, trial or cross-sectional"},
-	"outcome":         {kindText, "binary"},
+	"outcome":         {kindText, "binary, continuous, time-to-event or rate"},
 	"goal":            {kindText, "comparison or precision"},
 	"solve":           {kindText, "n, power or effect"},
 	"method":          {kindText, "a method of `enough methods` that serves the design"},
@@ -163,6 +163,13 @@ var specKeys = map[string]keyInfo{
 	"baseline_correlation": {kindNumber, "a number in [0, 1)"},
 	"pairing":              {kindText, "paired or crossover"},
 	"hazard_ratio":         {kindNumber, allowedRatio},
+	"unexposed_rate":       {kindNumber, "events per unit of person-time among the unexposed, a number from 1e-9 to 1e6"},
+	"rate_ratio":           {kindNumber, allowedRatio},
+	"exposure":             {kindText, "groups or continuous"},
+	"odds_ratio_per_sd":    {kindNumber, allowedRatio},
+	"event_rate":           {kindNumber, allowedRisk},
+	"person_time":          {kindNumber, "the person-time each participant is followed, in time_unit, " + allowedTime},
+	"overdispersion":       {kindNumber, "k ≥ 0 of negative-binomial counts (variance μ + kμ²), at most 100; 0 for Poisson counts"},
 	"control_median":       {kindNumber, allowedTime},
 	"control_survival":     {kindNumber, allowedRisk},
 	"time":                 {kindNumber, allowedTime},
@@ -293,6 +300,9 @@ type selector struct {
 	design, goal, outcome, pairing, hypothesis string
 	// matched says a case-control study has a matching block.
 	matched bool
+	// continuous says a binary outcome is related to a continuous
+	// exposure (exposure: continuous).
+	continuous bool
 }
 
 // keysFor returns the keys allowed for a selection of design, goal,
@@ -324,6 +334,20 @@ func keysFor(sel selector) map[string]bool {
 		// Each case has its matched controls.
 		delete(ok, "ratio")
 		delete(ok, "n_second")
+	}
+	if sel.outcome == "binary" && (sel.design == "cohort" || sel.design == "cross-sectional") {
+		add("exposure")
+	}
+	if sel.continuous {
+		// No groups: everyone is measured on the exposure.
+		for _, k := range []string{"ratio", "n_second", "first_group", "second_group", "exposure_prevalence", "higher_is_better", r.reference} {
+			delete(ok, k)
+		}
+		for _, k := range r.effects {
+			delete(ok, k)
+		}
+		add("odds_ratio_per_sd", "event_rate", "adjustment")
+		return ok
 	}
 	if sel.design == "trial" {
 		add("hypothesis", "non_adherence", "contamination", "arms", "comparisons")
@@ -372,6 +396,8 @@ func keysFor(sel selector) map[string]bool {
 		add("hazard_ratio", "control_median", "control_survival", "time",
 			"accrual", "follow_up", "dropout", "time_unit")
 		delete(ok, "attrition")
+	case "rate":
+		add("unexposed_rate", "rate_ratio", "person_time", "overdispersion", "time_unit")
 	}
 	return ok
 }
@@ -414,7 +440,7 @@ func fractionRange(key string, alpha float64) func(float64) bool {
 // ratioKeys take a ratio, which is a plain number and not a percentage.
 var ratioKeys = map[string]bool{
 	"ratio": true, "risk_ratio": true, "prevalence_ratio": true,
-	"odds_ratio": true, "hazard_ratio": true,
+	"odds_ratio": true, "hazard_ratio": true, "rate_ratio": true,
 }
 
 // Roles a synonym may stand for; each becomes the key of a selection that

@@ -28,6 +28,9 @@ type MethodInfo struct {
 	// matching block) and only them; PairsOnly that it serves one control
 	// per case only.
 	Matched, PairsOnly bool
+	// Continuous says the method serves a binary outcome related to a
+	// continuous exposure (exposure: continuous), and only that.
+	Continuous bool
 
 	engine power.Method
 	margin power.MarginMethod
@@ -168,6 +171,23 @@ var Methods = []MethodInfo{
 		events:      power.Freedman,
 	},
 	{
+		ID: "hsieh", Short: "Hsieh, Bloch & Larsen 1998", Name: "Hsieh, logistic regression with a continuous exposure",
+		Citation:    "Hsieh FY, Bloch DA, Larsen MD (1998). A simple method of sample size calculation for linear and logistic regression. Stat Med 17:1623-1634; Hsieh FY (1989). Sample size tables for logistic regression. Stat Med 8:795-802",
+		Designs:     []string{"cohort", "cross-sectional"},
+		Goal:        "comparison",
+		Continuous:  true,
+		DefaultTest: "logistic-wald",
+		Note:        "a binary outcome and one normally distributed exposure (exposure: continuous): n = (z_α + z_β)² / (P(1 − P) β²), β the log odds ratio per SD, P the event rate at the exposure's mean; with adjustment, divided by 1 − R²",
+	},
+	{
+		ID: "log-rate-ratio", Short: "Breslow & Day 1987", Name: "Wald test on the log rate ratio",
+		Citation:    "Breslow NE, Day NE (1987). Statistical Methods in Cancer Research, vol. II: The Design and Analysis of Cohort Studies. IARC Scientific Publications 82, Lyon, chapter 7; Zhu H, Lakkis H (2014). Sample size calculation for comparing two negative binomial rates. Stat Med 33:376-387",
+		Designs:     []string{"cohort"},
+		Outcome:     "rate",
+		DefaultTest: "wald-rate",
+		Note:        "events over person-time: Poisson counts, or negative-binomial with overdispersion (the Wald variance under the null and the alternative alike)",
+	},
+	{
 		ID: "wald", Short: "Cochran 1977", Name: "Wald interval (normal approximation)",
 		Citation:    "Cochran WG (1977). Sampling Techniques, 3rd ed. Wiley, chapter 4",
 		Designs:     []string{"cross-sectional"},
@@ -180,7 +200,7 @@ var Methods = []MethodInfo{
 // servesSpec says whether the method serves the specification: its
 // design, goal, outcome and hypothesis, and its matching.
 func (m MethodInfo) servesSpec(s *Spec) bool {
-	if m.Matched != s.Matched || (m.PairsOnly && s.Controls != 1) {
+	if m.Matched != s.Matched || (m.PairsOnly && s.Controls != 1) || m.Continuous != s.ContinuousExposure {
 		return false
 	}
 	return m.serves(s.Design, s.Goal, s.Outcome, s.Hypothesis)
@@ -248,14 +268,16 @@ func TestName(test string) string {
 		return "the log-rank test"
 	case "cluster-t":
 		return "a t test on cluster summaries"
+	case "wald-rate":
+		return "the Wald test of the log rate ratio"
 	case "mcnemar":
 		return "McNemar's test"
 	case "mantel-haenszel":
 		return "the Mantel-Haenszel test stratified by matched set"
 	case "logistic-wald":
-		return "the Wald test of the exposure's coefficient in a logistic regression with the covariates"
+		return "the Wald test of the exposure's coefficient in a logistic regression"
 	case "t-regression":
-		return "the t test of the exposure's coefficient in a linear regression with the covariates"
+		return "the t test of the exposure's coefficient in a linear regression"
 	}
 	return test
 }

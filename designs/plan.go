@@ -237,7 +237,7 @@ func enrolFor(s *Spec, name string, n int, tr *trail) int {
 // the second group ceil(ratio × n* × design effect), then each enrolment
 // ceil(analysable / (1 − attrition)).
 func restFromNStar(s *Spec, nstar float64, n1 int, tr *trail) sizes {
-	if s.Pairing == "paired" {
+	if s.Pairing == "paired" || s.ContinuousExposure {
 		return oneGroup(n1, enrolFor(s, "enrol_first", n1, tr), s.DesignEffect)
 	}
 	if s.Matched {
@@ -290,6 +290,15 @@ func sizesFromEnrolment(s *Spec, tr *trail) (sizes, error) {
 		return "floor(enrol_second × (1 − attrition))"
 	}
 	switch {
+	case s.ContinuousExposure:
+		size, key := s.N, "n"
+		if s.Design == "cross-sectional" {
+			size, key = s.Total, "total"
+		}
+		en := tr.addInt("enrol_first", key+", as given (everyone)", size, inInt(key, size))
+		a := tr.addInt("analysable_first", floorRule("first"), floorTol(float64(en)*(1-s.Attrition)), inInt("enrol_first", en), in("attrition", s.Attrition))
+		sz = oneGroup(a, en, s.DesignEffect)
+		recordEffective(s, tr, sz)
 	case s.Design == "cross-sectional":
 		e, deff := s.ExposurePrevalence, s.DesignEffect
 		a := tr.addInt("analysable_total", "floor(total × (1 − attrition))", floorTol(float64(s.Total)*(1-s.Attrition)), inInt("total", s.Total), in("attrition", s.Attrition))
@@ -533,7 +542,7 @@ func recordEffects(s *Spec, tr *trail, e effects) {
 			tr.add("control_hazard", "−ln(control_survival) / time (exponential survival)", s.ControlHazard, in("control_survival", s.ControlSurvival), in("time", s.SurvivalTime))
 		}
 	}
-	if s.Design == "cross-sectional" {
+	if s.Design == "cross-sectional" && !s.ContinuousExposure {
 		tr.add("ratio", "(1 − exposure_prevalence) / exposure_prevalence: the unexposed per exposed respondent", s.Ratio, in("exposure_prevalence", s.ExposurePrevalence))
 	}
 	if k := comparisons(s); k > 1 {
@@ -643,7 +652,31 @@ func solveCore(s *Spec, m *MethodInfo, ans *Answer, tr *trail, main *solved) (ef
 	if s.Matched {
 		matchedFigures(s, ans, main, e, tr)
 	}
+	if s.Outcome == "rate" && s.Solve != "effect" {
+		rateFigures(s, ans, tr)
+	}
 	return e, nil
+}
+
+// rateFigures records a person-time cohort's person-time and expected
+// events in each group at the analysable sizes and the planned rates.
+func rateFigures(s *Spec, ans *Answer, tr *trail) {
+	r1 := tr.add("exposed_rate", "unexposed_rate × rate_ratio", s.UnexposedRate*s.RateRatio, in("unexposed_rate", s.UnexposedRate), in("rate_ratio", s.RateRatio))
+	ans.PersonTime = make([]float64, 2)
+	ans.GroupEvents = make([]float64, 2)
+	total := 0.0
+	for i, g := range []string{"first", "second"} {
+		n := ans.N[i]
+		pt := tr.add("person_time_"+g, "analysable_"+g+" × person_time", float64(n)*s.PersonTime, inInt("analysable_"+g, n), in("person_time", s.PersonTime))
+		rate, name := s.UnexposedRate, "unexposed_rate"
+		if i == 0 {
+			rate, name = r1, "exposed_rate"
+		}
+		ev := tr.add("expected_events_"+g, "person_time_"+g+" × "+name, pt*rate, in("person_time_"+g, pt), in(name, rate))
+		ans.PersonTime[i], ans.GroupEvents[i] = pt, ev
+		total += ev
+	}
+	ans.ExpectedEvents = ptr(total)
 }
 
 // matchedFigures records the matched sets' figures: the sets, the sets
@@ -819,8 +852,11 @@ func planComparison(s *Spec, res *Result, m *MethodInfo) error {
 		}
 	}
 	describeDesign(s, res, &main)
-	if s.Outcome == "binary" && s.Solve != "effect" {
+	if s.Outcome == "binary" && s.Solve != "effect" && !s.ContinuousExposure && !s.Matched {
 		smallCells(s, res, main.sz)
+	}
+	if a := res.Result; a.GroupEvents != nil && math.Min(a.GroupEvents[0], a.GroupEvents[1]) < 20 {
+		res.Warnings = append(res.Warnings, fmt.Sprintf("Only %.1f and %.1f events are expected in the two groups: with so few events the Wald test's normal approximation overstates the power (a group with no event gives no test at all); check the plan by simulation (enough simulate).", a.GroupEvents[0], a.GroupEvents[1]))
 	}
 	methodTestNotes(s, res)
 	commonNotes(s, res)
@@ -877,8 +913,19 @@ func plannedEffect(s *Spec) *Effect {
 		return meansEffect(s, s.MeanDiff)
 	case "time-to-event":
 		return &Effect{HazardRatio: ptr(s.HazardRatio)}
+	case "rate":
+		return rateEffect(s, s.RateRatio)
+	}
+	if s.ContinuousExposure {
+		return &Effect{OddsRatioPerSD: ptr(s.ORPerSD), EventRate: ptr(s.EventRate)}
 	}
 	return effectOf(s.Design, s.P1, s.P2)
+}
+
+// rateEffect restates a rate ratio: each group's rate and the difference.
+func rateEffect(s *Spec, rr float64) *Effect {
+	r1 := s.UnexposedRate * rr
+	return &Effect{RateRatio: ptr(rr), FirstRate: ptr(r1), SecondRate: ptr(s.UnexposedRate), RateDifference: ptr(r1 - s.UnexposedRate)}
 }
 
 // dilutedEffect restates the effect an intention-to-treat analysis sees.

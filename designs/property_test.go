@@ -29,7 +29,7 @@ func genPlan(r *rand.Rand) randomPlan {
 	f := func(key string, v float64) { fmt.Fprintf(&b, "%s: %.4g\n", key, v) }
 	power := u(0.7, 0.95)
 	effectKey := ""
-	kind := r.IntN(10)
+	kind := r.IntN(13)
 	trialExtras := func(binary bool) {
 		if r.IntN(3) == 0 {
 			f("non_adherence", u(0, 0.25))
@@ -136,6 +136,34 @@ func genPlan(r *rand.Rand) randomPlan {
 		f("sd", sd)
 		f("margin", sd*u(0.2, 0.6))
 		f("ratio", pick(r, 1.0, 2))
+	case 10: // matched case-control sets
+		m := pick(r, 1, 1, 2, 3, 5)
+		or := pick(r, u(0.3, 0.7), u(1.5, 3))
+		method := "dupont"
+		if m == 1 {
+			method = pick(r, "dupont", "connor", "schlesselman-pairs")
+		}
+		fmt.Fprintf(&b, "design: case-control\nmethod: %s\n", method)
+		f("control_exposure", u(0.05, 0.5))
+		f("odds_ratio", or)
+		fmt.Fprintf(&b, "matching: {controls_per_case: %d, exposure_correlation: %.3g}\n", m, u(0, 0.8)*math.Min(math.Sqrt(or), 1/math.Sqrt(or)))
+		effectKey = "odds_ratio"
+	case 11: // events over person-time
+		b.WriteString("design: cohort\noutcome: rate\n")
+		f("unexposed_rate", u(0.01, 2))
+		f("rate_ratio", pick(r, u(0.4, 0.85), u(1.2, 2.5)))
+		f("person_time", u(0.5, 5))
+		f("overdispersion", pick(r, 0, u(0, 1.5)))
+		f("ratio", pick(r, 1.0, 2, 0.5))
+		effectKey = "rate_ratio"
+	case 12: // a continuous exposure
+		fmt.Fprintf(&b, "design: %s\nexposure: continuous\n", pick(r, "cohort", "cross-sectional"))
+		f("event_rate", u(0.03, 0.5))
+		f("odds_ratio_per_sd", pick(r, u(0.5, 0.85), u(1.2, 2)))
+		if r.IntN(3) == 0 {
+			fmt.Fprintf(&b, "adjustment: {r_squared: %.3g}\n", u(0, 0.5))
+		}
+		effectKey = "odds_ratio_per_sd"
 	default: // time-to-event non-inferiority or equivalence
 		hyp := pick(r, "non-inferiority", "equivalence")
 		hib := hyp == "non-inferiority" && r.IntN(3) == 0
@@ -150,13 +178,13 @@ func genPlan(r *rand.Rand) randomPlan {
 		f("accrual", u(0, 12))
 		f("ratio", pick(r, 1.0, 2))
 	}
-	if kind < 5 && !strings.Contains(b.String(), "outcome: time-to-event") && r.IntN(3) == 0 {
+	if (kind < 5 || kind >= 10) && !strings.Contains(b.String(), "outcome: time-to-event") && r.IntN(3) == 0 {
 		f("attrition", u(0, 0.3))
 	}
-	if kind < 5 {
+	if kind < 5 || kind >= 10 {
 		fmt.Fprintf(&b, "alpha: %s\nsides: %d\n", pick(r, "0.05", "0.01", "0.1"), pick(r, 2, 2, 1))
 	}
-	if sp := b.String(); kind != 5 && kind != 9 && !strings.Contains(sp, "cluster:") && !strings.Contains(sp, "pairing:") &&
+	if sp := b.String(); kind != 5 && kind != 9 && kind < 10 && !strings.Contains(sp, "cluster:") && !strings.Contains(sp, "pairing:") &&
 		!strings.Contains(sp, "arms:") && r.IntN(4) == 0 {
 		fmt.Fprintf(&b, "adjustment: {r_squared: %.3g}\n", u(0, 0.6))
 	}
@@ -205,7 +233,7 @@ func TestThreeQuestionsAgree(t *testing.T) {
 		// 1. Power at the solved enrolment.
 		sets := []string{"solve=power", fmt.Sprintf("n=%d", a.Enrol[0])}
 		given := p.spec
-		if len(a.Enrol) == 2 && s.Design != "cross-sectional" {
+		if len(a.Enrol) == 2 && s.Design != "cross-sectional" && !s.Matched {
 			sets = append(sets, fmt.Sprintf("n_second=%d", a.Enrol[1]))
 			// n_second replaces ratio.
 			given = withoutKey(p.spec, "ratio")

@@ -101,6 +101,12 @@ type Answer struct {
 	N0     float64  `json:"n0,omitempty"`
 	Margin *float64 `json:"margin,omitempty"`
 
+	// Person-time cohorts: the person-time of each group and the events
+	// expected in each (the total in ExpectedEvents), at the analysable
+	// sizes.
+	PersonTime  []float64 `json:"person_time,omitempty"`
+	GroupEvents []float64 `json:"expected_events_by_group,omitempty"`
+
 	// Time-to-event: the events required (solving n), the events expected
 	// at the analysable sizes, and the study's duration (accrual plus
 	// follow-up).
@@ -159,6 +165,18 @@ type Effect struct {
 	MeanDifference         *float64 `json:"mean_difference,omitempty"`
 	StandardizedDifference *float64 `json:"standardized_difference,omitempty"`
 	HazardRatio            *float64 `json:"hazard_ratio,omitempty"`
+
+	// Person-time outcomes: the rate ratio, each group's rate (events per
+	// unit of person-time) and their difference (first minus second).
+	RateRatio      *float64 `json:"rate_ratio,omitempty"`
+	FirstRate      *float64 `json:"first_rate,omitempty"`
+	SecondRate     *float64 `json:"second_rate,omitempty"`
+	RateDifference *float64 `json:"rate_difference,omitempty"`
+
+	// A continuous exposure: the odds ratio per standard deviation of the
+	// exposure and the event rate at its mean.
+	OddsRatioPerSD *float64 `json:"odds_ratio_per_sd,omitempty"`
+	EventRate      *float64 `json:"event_rate,omitempty"`
 
 	CaseExposure    *float64 `json:"case_exposure,omitempty"`
 	ControlExposure *float64 `json:"control_exposure,omitempty"`
@@ -249,7 +267,8 @@ func (e Effect) MarshalJSON() ([]byte, error) {
 	type plain Effect
 	c := plain(e)
 	for _, p := range []**float64{&c.FirstRisk, &c.SecondRisk, &c.RiskRatio, &c.RiskDifference, &c.OddsRatio,
-		&c.MeanDifference, &c.StandardizedDifference, &c.HazardRatio, &c.CaseExposure, &c.ControlExposure, &c.CaseOdds, &c.ControlOdds} {
+		&c.MeanDifference, &c.StandardizedDifference, &c.HazardRatio, &c.CaseExposure, &c.ControlExposure, &c.CaseOdds, &c.ControlOdds,
+		&c.RateRatio, &c.FirstRate, &c.SecondRate, &c.RateDifference, &c.OddsRatioPerSD, &c.EventRate} {
 		*p = round12p(*p)
 	}
 	return json.Marshal(c)
@@ -275,6 +294,12 @@ func (a Answer) MarshalJSON() ([]byte, error) {
 	c := plain(a)
 	c.DesignEffect = round12p(c.DesignEffect)
 	c.AlphaPerComparison = round12p(c.AlphaPerComparison)
+	if c.PersonTime != nil {
+		// Products of the inputs: rounded as the restated effects are.
+		c.PersonTime = []float64{round12(c.PersonTime[0]), round12(c.PersonTime[1])}
+		c.GroupEvents = []float64{round12(c.GroupEvents[0]), round12(c.GroupEvents[1])}
+		c.ExpectedEvents = round12p(c.ExpectedEvents)
+	}
 	return json.Marshal(c)
 }
 

@@ -22,8 +22,8 @@ func simModel(s *Spec, res *Result, sizes [2]int, null bool) (simSetup, error) {
 	if s.Hypothesis == "equivalence" && s.Outcome == "continuous" {
 		return unavailable("equivalence of means is not simulated yet; its exact power is already computed by integration (method t)")
 	}
-	if s.Adjusted {
-		return unavailable("an analysis adjusted for covariates is not simulated yet")
+	if s.Adjusted && s.Hypothesis != "superiority" {
+		return unavailable("an adjusted analysis against a margin is not simulated yet")
 	}
 	if s.Hypothesis != "superiority" && s.Cluster != nil {
 		return unavailable("a cluster trial with a margin is not simulated yet; its closed form is a t test of the cluster summaries against the margin")
@@ -68,7 +68,7 @@ func simModel(s *Spec, res *Result, sizes [2]int, null bool) (simSetup, error) {
 		}
 	}
 	eff := [2]float64{float64(sizes[0]) / deff, float64(sizes[1]) / deff}
-	if s.Pairing == "paired" {
+	if s.OneGroup() {
 		eff[1] = eff[0]
 	}
 	c := newCalculator(s, m, ec)
@@ -85,6 +85,30 @@ func simModel(s *Spec, res *Result, sizes [2]int, null bool) (simSetup, error) {
 	sides, dir := s.Sides, 1
 	if s.Sides == 1 && s.Direction != 0 {
 		dir = s.Direction
+	}
+	if s.ContinuousExposure {
+		// Logistic regression on a standard normal exposure (and, with
+		// adjustment, one covariate of the stated R²).
+		c := power.RegressionSim{Outcome: power.OutcomeBinary, Exposure: power.ExposureNormal, N: n1,
+			Intercept: math.Log(s.EventRate / (1 - s.EventRate)), Effect: math.Log(e.orsd), R2: s.AdjustR2, Alpha: e.alpha, Sides: sides, Dir: 1}
+		if s.Sides == 1 && s.Direction != 0 {
+			c.Dir = s.Direction
+		} else if c.Effect < 0 {
+			c.Dir = -1
+		}
+		if null {
+			c.Effect = 0
+			st.null = "no relation (an odds ratio per SD of 1)"
+		}
+		if n1 <= 3 {
+			return unavailable("a logistic regression needs more than three participants")
+		}
+		st.notes = append(st.notes, "The exposure is simulated as standard normal, and the outcome by logistic regression on it with the event rate at its mean; the fit is by Newton-Raphson, and a data set that does not converge (separation) counts as not significant.")
+		st.model = power.NewRegressionSim(c)
+		return st, nil
+	}
+	if s.Adjusted {
+		return adjustedModel(s, st, e, n1, n2, null, sides, dir)
 	}
 	switch s.Outcome {
 	case "binary":
@@ -214,6 +238,25 @@ func simModel(s *Spec, res *Result, sizes [2]int, null bool) (simSetup, error) {
 		}
 		return st, nil
 
+	case "rate":
+		rr := e.rr
+		if s.Sides != 1 && rr < 1 {
+			dir = -1
+		}
+		if null {
+			rr = 1
+			st.null = fmt.Sprintf("no difference (a rate ratio of 1, both rates %s)", trimFloat(s.UnexposedRate))
+		}
+		if s.Overdispersion > 0 {
+			if n1 < 2 || n2 < 2 {
+				return unavailable("negative-binomial counts need at least two participants a group to estimate the overdispersion")
+			}
+			st.notes = append(st.notes, "Each participant's count is negative binomial; the Wald test uses the groups' means and a pooled moment estimate of the overdispersion.")
+		}
+		st.model = power.NewRateSim(power.RateSim{TwoRates: power.TwoRates{UnexposedRate: s.UnexposedRate, RateRatio: rr,
+			PersonTime: s.PersonTime, Overdispersion: s.Overdispersion}, N1: n1, N2: n2, Alpha: e.alpha, Sides: sides, Dir: dir})
+		return st, nil
+
 	case "time-to-event":
 		// Each arm is simulated as a mixture of those receiving the
 		// intervention (hazard HR·h) and those not (hazard h).
@@ -291,3 +334,39 @@ func clusterNotes(s *Spec, st *simSetup, mem int) {
 
 // trimFloat formats a probability briefly: 0.2, 0.125.
 func trimFloat(x float64) string { return fmt.Sprintf("%.4g", x) }
+
+// adjustedModel simulates an analysis adjusted for covariates as a
+// regression of the outcome on the exposure (the first group 1, the
+// second 0) and one covariate Z whose R² with the exposure is the
+// specification's: logistic for a binary outcome (the Wald test of the
+// exposure's coefficient), linear for a continuous one (its t test). Z has
+// no effect of its own on the outcome, which is the setting of the
+// inflation 1/(1 − R²) (Hsieh, Bloch & Larsen 1998).
+func adjustedModel(s *Spec, st simSetup, e effects, n1, n2 int, null bool, sides, dir int) (simSetup, error) {
+	c := power.RegressionSim{Exposure: power.ExposureBinary, N1: n1, N2: n2, R2: s.AdjustR2, Alpha: e.alpha, Sides: sides}
+	switch s.Outcome {
+	case "continuous":
+		c.Outcome, c.Effect, c.SD = power.OutcomeContinuous, e.diff, s.SD1
+		if s.SD1 != s.SD2 {
+			st.notes = append(st.notes, "The linear regression assumes one residual standard deviation; the larger of the two groups' is simulated.")
+			c.SD = math.Max(s.SD1, s.SD2)
+		}
+	default:
+		c.Outcome = power.OutcomeBinary
+		c.Intercept = math.Log(e.p2 / (1 - e.p2))
+		c.Effect = math.Log(power.OddsRatio(e.p1, e.p2))
+	}
+	c.Dir = 1
+	if s.Sides == 1 && s.Direction != 0 {
+		c.Dir = s.Direction
+	} else if c.Effect < 0 {
+		c.Dir = -1
+	}
+	if null {
+		c.Effect = 0
+		st.null = "no difference (the exposure's coefficient 0)"
+	}
+	st.notes = append(st.notes, fmt.Sprintf("The adjusted analysis is simulated as a regression on the exposure and one covariate whose R² with the exposure is %s, with no effect of its own on the outcome.", trimFloat(s.AdjustR2)))
+	st.model = power.NewRegressionSim(c)
+	return st, nil
+}

@@ -83,6 +83,14 @@ type Spec struct {
 	Controls            int
 	ExposureCorrelation float64
 
+	// A continuous exposure (exposure: continuous, binary outcome, cohort
+	// or cross-sectional): logistic regression with the event rate at the
+	// exposure's mean and the odds ratio per standard deviation (Hsieh,
+	// Bloch & Larsen 1998). The sizes are then one group, everyone.
+	ContinuousExposure bool
+	EventRate          float64
+	ORPerSD            float64
+
 	// Precision surveys.
 	ExpectedPrevalence float64
 	// Margin is the half-width of a precision survey's interval, or the
@@ -130,6 +138,12 @@ type Spec struct {
 	WithinCorrelation float64
 	Welch             bool
 
+	// Person-time outcomes (outcome: rate, cohort): the unexposed group's
+	// events per unit of person-time, the rate ratio (exposed over
+	// unexposed), the person-time per participant and the overdispersion
+	// k of negative-binomial counts (variance μ + kμ²; 0 for Poisson).
+	UnexposedRate, RateRatio, PersonTime, Overdispersion float64
+
 	// Time-to-event outcomes.
 	HazardRatio   float64
 	ControlHazard float64 // per time unit
@@ -151,6 +165,10 @@ type Spec struct {
 	// file said of it (empty when the file did not set the key).
 	Overridden map[string]FileValue
 }
+
+// OneGroup says the plan has one group of participants: pairs, or
+// everyone measured on a continuous exposure.
+func (s *Spec) OneGroup() bool { return s.Pairing == "paired" || s.ContinuousExposure }
 
 // FileValue is what the specification file gave for a key that the
 // command line overrode: its value as written and its source.

@@ -62,7 +62,7 @@ func TestParseErrors(t *testing.T) {
 		{"alpha in precision", "version: 1\ndesign: cross-sectional\ngoal: precision\nexpected_prevalence: 0.3\nmargin: 0.05\nalpha: 0.05\n", nil, 6, "alpha", "margin and confidence"},
 		{"solve power precision", "version: 1\ndesign: cross-sectional\ngoal: precision\nexpected_prevalence: 0.3\nsolve: power\n", nil, 5, "solve", "does not apply to a precision survey"},
 		{"source of nothing", trialBase + "sources:\n  control_rsk: audit\n", nil, 7, "sources.control_rsk", `did you mean "control_risk"`},
-		{"outcome unknown", trialBase + "outcome: survival\n", nil, 6, "outcome", "binary, continuous or time-to-event"},
+		{"outcome unknown", trialBase + "outcome: survival\n", nil, 6, "outcome", "binary, continuous, time-to-event or rate"},
 		{"binary key in continuous", "version: 1\ndesign: trial\noutcome: continuous\ncontrol_risk: 0.3\nmean_difference: 2\nsd: 4\npower: 0.8\n", nil, 4, "control_risk", "does not apply to design trial with a continuous outcome"},
 		{"set invalid", trialBase, []string{"alpha=2"}, 0, "alpha", "[1e-20, 0.5]"},
 		{"set no equals", trialBase, []string{"alpha"}, 0, "", "key=value"},

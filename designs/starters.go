@@ -43,11 +43,11 @@ func starterName(design, goal, outcome string) (string, error) {
 	}
 	switch outcome {
 	case "", "binary":
-	case "continuous", "time-to-event":
+	case "continuous", "time-to-event", "rate":
 		switch {
 		case name == "precision":
 			return "", fmt.Errorf("--outcome %s does not apply to a precision survey, which estimates one prevalence; allowed: binary", outcome)
-		case outcome == "continuous" && design != "case-control", outcome == "time-to-event" && design == "trial":
+		case outcome == "continuous" && design != "case-control", outcome == "time-to-event" && design == "trial", outcome == "rate" && design == "cohort":
 			name += "-" + outcome
 		default:
 			return "", fmt.Errorf("--outcome %s does not apply to design %s; allowed: %s", outcome, design, starterOutcomes(name))
@@ -68,6 +68,8 @@ func starterOutcomes(design string) string {
 		return "binary, continuous or time-to-event"
 	case "case-control":
 		return "binary (a case-control study compares exposure between cases and controls)"
+	case "cohort":
+		return "binary, continuous or rate"
 	}
 	return "binary or continuous"
 }

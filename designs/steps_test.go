@@ -47,8 +47,10 @@ func replayStep(st Step) (float64, bool) {
 		return up(g("ratio") * g("enrol_first")), true
 	case rule == "ceil(ratio × analysable_first)":
 		return up(g("ratio") * g("analysable_first")), true
-	case rule == "n, as given", rule == "n, as given (pairs)":
+	case rule == "n, as given", rule == "n, as given (pairs)", rule == "n, as given (everyone)":
 		return g("n"), true
+	case rule == "total, as given (everyone)":
+		return g("total"), true
 	case rule == "n_second, as given":
 		return g("n_second"), true
 	case strings.HasSuffix(st.Name, "_total") && strings.HasPrefix(rule, "(arms − 1) × "):
@@ -89,6 +91,13 @@ func replayStep(st Step) (float64, bool) {
 		return g(a)*g("event_probability_first") + g(b)*g("event_probability_second"), true
 	case strings.HasPrefix(rule, "n_star_unadjusted / (1 − r_squared)"):
 		return g("n_star_unadjusted") / (1 - g("r_squared")), true
+	case rule == "unexposed_rate × rate_ratio":
+		return g("unexposed_rate") * g("rate_ratio"), true
+	case strings.HasPrefix(st.Name, "person_time_") && strings.HasSuffix(rule, " × person_time"):
+		return g(strings.TrimSuffix(rule, " × person_time")) * g("person_time"), true
+	case strings.HasPrefix(st.Name, "expected_events_") && strings.HasPrefix(rule, "person_time_"):
+		parts := strings.SplitN(rule, " × ", 2)
+		return g(parts[0]) * g(parts[1]), true
 	case rule == "analysable_first × discordant_per_set":
 		return g("analysable_first") * g("discordant_per_set"), true
 	case rule == "controls_per_case × analysable_first":

@@ -133,7 +133,7 @@ func (r *reader) selection(s *Spec) (sel selector, ok bool) {
 	precision := s.Goal == "precision"
 	r.precision = precision
 
-	outcome, oe, err := r.choice("outcome", "binary", "binary", "continuous", "time-to-event")
+	outcome, oe, err := r.choice("outcome", "binary", "binary", "continuous", "time-to-event", "rate")
 	switch {
 	case !r.keep(err):
 		ok = false
@@ -143,6 +143,9 @@ func (r *reader) selection(s *Spec) (sel selector, ok bool) {
 		ok = false
 	case design == "case-control" && outcome != "binary":
 		r.refuse(r.errAt(oe, "%s does not apply to a case-control study, which compares exposure between cases and controls; allowed: binary", outcome))
+		ok = false
+	case outcome == "rate" && design != "cohort":
+		r.refuse(r.errAt(oe, "rate applies to design cohort (events over person-time); allowed for design %s: binary or continuous", design))
 		ok = false
 	case outcome == "time-to-event" && design != "trial":
 		r.refuse(r.errAt(oe, "time-to-event applies to design trial; allowed for design %s: binary or continuous", design))
@@ -181,7 +184,17 @@ func (r *reader) selection(s *Spec) (sel selector, ok bool) {
 		ok = false
 	}
 	matched := design == "case-control" && r.entries["matching"] != nil
-	return selector{design: design, goal: goal, outcome: s.Outcome, pairing: s.Pairing, hypothesis: s.Hypothesis, matched: matched}, ok
+	continuous := false
+	if ok && s.Outcome == "binary" && (design == "cohort" || design == "cross-sectional") {
+		x, _, err := r.choice("exposure", "groups", "groups", "continuous")
+		if r.keep(err) {
+			continuous = x == "continuous"
+		} else {
+			ok = false
+		}
+	}
+	s.ContinuousExposure = continuous
+	return selector{design: design, goal: goal, outcome: s.Outcome, pairing: s.Pairing, hypothesis: s.Hypothesis, matched: matched, continuous: continuous}, ok
 }
 
 // reportUnknown reports the keys no specification knows, each with the key

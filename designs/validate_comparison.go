@@ -13,6 +13,8 @@ import (
 // testsFor lists the planned tests that suit an outcome and hypothesis.
 func testsFor(s *Spec) []string {
 	switch {
+	case s.ContinuousExposure:
+		return []string{"logistic-wald"}
 	case s.Matched && s.Controls == 1:
 		return []string{"mcnemar"}
 	case s.Matched:
@@ -34,6 +36,8 @@ func testsFor(s *Spec) []string {
 		return ts
 	case "time-to-event":
 		return []string{"log-rank"}
+	case "rate":
+		return []string{"wald-rate"}
 	}
 	if s.Hypothesis != "superiority" {
 		return []string{"score", "z-unpooled"}
@@ -48,7 +52,7 @@ func testsFor(s *Spec) []string {
 // defaultTest is the planned test assumed unless `test:` says otherwise.
 func defaultTest(s *Spec) string {
 	switch {
-	case s.Adjusted, s.Matched:
+	case s.Adjusted, s.Matched, s.ContinuousExposure:
 		return testsFor(s)[0]
 	case s.Cluster != nil:
 		return "cluster-t"
@@ -156,7 +160,9 @@ func (r *reader) buildComparison(s *Spec) {
 	} else if r.get(ro.size) != nil {
 		s.Ignored = append(s.Ignored, ro.size+" is ignored when solving n")
 	}
-	if s.Design == "cross-sectional" {
+	if s.ContinuousExposure {
+		s.Ratio = 1
+	} else if s.Design == "cross-sectional" {
 		var ok bool
 		s.Ratio = 1
 		if s.ExposurePrevalence, ok = r.probability("exposure_prevalence", "the fraction of the surveyed population that is exposed"); ok {
@@ -198,8 +204,14 @@ func (r *reader) buildComparison(s *Spec) {
 		r.buildContinuous(s)
 	case "time-to-event":
 		r.buildSurvival(s)
+	case "rate":
+		r.buildRate(s)
 	default:
-		r.buildBinary(s)
+		if s.ContinuousExposure {
+			r.buildLogistic(s)
+		} else {
+			r.buildBinary(s)
+		}
 	}
 	r.buildDirection(s)
 	r.checkMatching(s)
@@ -279,6 +291,91 @@ func (r *reader) buildSimulate(s *Spec) {
 	whole("seed", 0, 1<<53, func(x float64) { sim.Seed = uint64(x) })
 	whole("n", 2, MaxSize, func(x float64) { sim.N = int(x) })
 	s.Simulate = sim
+}
+
+// inRate is the range of unexposed_rate: events per unit of person-time.
+func inRate(x float64) bool { return x >= MinRisk && x <= 1e6 }
+
+// inOverdispersion is the range of overdispersion: from 0 to 100.
+func inOverdispersion(x float64) bool { return x >= 0 && x <= 100 }
+
+// maxEventsPerParticipant bounds the events expected per participant
+// (rate × person-time) in either group, so that counts and their sums
+// stay far within float64.
+const maxEventsPerParticipant = 1e6
+
+// buildRate reads the keys of a person-time cohort: the unexposed rate,
+// the rate ratio, the person-time per participant and the overdispersion.
+func (r *reader) buildRate(s *Spec) {
+	rate, rateOK := r.rangeNum("unexposed_rate", 0, inRate)
+	if r.get("unexposed_rate") == nil {
+		r.missing("unexposed_rate", "", "events per unit of person-time among the unexposed, a number from 1e-9 to 1e6 (e.g. 0.02 for 2 per 100 person-years)")
+		rateOK = false
+	}
+	rr, re, err := r.number("rate_ratio")
+	ok := r.keep(err)
+	switch {
+	case !ok:
+	case re == nil:
+		r.missing("rate_ratio", "", "the exposed group's rate over the unexposed group's, "+allowedRatio)
+		ok = false
+	case !inRatio(rr):
+		r.refuse(r.rangeErr(re, rr, allowedRatio, inRatio))
+		ok = false
+	case rr == 1 && s.Solve != "effect":
+		if !r.solveBad {
+			r.refuse(r.errAt(re, "1 means the same rate in both groups: nothing to detect; allowed: a rate ratio other than 1 (or solve: effect)"))
+		}
+		ok = false
+	}
+	pt, ptOK := r.rangeNum("person_time", 0, inTime)
+	if r.get("person_time") == nil {
+		r.missing("person_time", "", "the person-time each participant is followed, in time_unit, "+allowedTime)
+		ptOK = false
+	}
+	s.Overdispersion, _ = r.rangeNum("overdispersion", 0, inOverdispersion)
+	tu, _, terr := r.text("time_unit")
+	if r.keep(terr) {
+		s.TimeUnit = tu
+	}
+	if s.TimeUnit == "" {
+		s.TimeUnit = "time units"
+	}
+	if rateOK && ptOK {
+		s.UnexposedRate, s.PersonTime = rate, pt
+		if ok && rate*pt*math.Max(1, rr) > maxEventsPerParticipant {
+			r.refuse(r.errAt(r.get("person_time"), "%g with unexposed_rate %g and rate_ratio %g expects more than 10⁶ events per participant; allowed: a rate × person_time × rate ratio of at most 10⁶ (choose another time_unit)", pt, rate, rr))
+			ok = false
+		}
+	}
+	if ok {
+		s.RateRatio, s.EffectKey, s.EffectValue = rr, "rate_ratio", rr
+		r.effectOK = true
+	}
+}
+
+// buildLogistic reads the keys of a binary outcome related to a continuous
+// exposure: the event rate at the exposure's mean and the odds ratio per
+// standard deviation of the exposure.
+func (r *reader) buildLogistic(s *Spec) {
+	if p, ok := r.probability("event_rate", "the proportion with the outcome at the mean of the exposure"); ok {
+		s.EventRate = p
+	}
+	or, oe, err := r.number("odds_ratio_per_sd")
+	switch {
+	case !r.keep(err):
+	case oe == nil:
+		r.missing("odds_ratio_per_sd", "", "the odds ratio of the outcome per standard deviation of the exposure, "+allowedRatio)
+	case !inRatio(or):
+		r.refuse(r.rangeErr(oe, or, allowedRatio, inRatio))
+	case or == 1 && s.Solve != "effect":
+		if !r.solveBad {
+			r.refuse(r.errAt(oe, "1 means no relation between the exposure and the outcome: nothing to detect; allowed: an odds ratio per SD other than 1 (or solve: effect)"))
+		}
+	default:
+		s.ORPerSD, s.EffectKey, s.EffectValue = or, "odds_ratio_per_sd", or
+		r.effectOK = true
+	}
 }
 
 // buildMatching reads the matching block of a case-control study: the
@@ -594,6 +691,11 @@ func impliedDirection(s *Spec) int {
 		return sign(s.MeanDiff)
 	case "time-to-event":
 		return sign(s.HazardRatio - 1)
+	case "rate":
+		return sign(s.RateRatio - 1)
+	}
+	if s.ContinuousExposure {
+		return sign(s.ORPerSD - 1)
 	}
 	switch scaleOf(s.EffectKey) {
 	case ScaleRatio, ScaleOdds:

@@ -242,7 +242,7 @@ func Verify(ctx context.Context, s *Spec, res *Result, o SimOptions) error {
 	sizes = alt.sizes
 	sim := &Simulation{Test: s.Test, TestName: TestName(s.Test), Replicates: reps, Seed: seed,
 		N: sizes[:], ClosedFormPower: alt.closed, Notes: slices.Concat(alt.notes, capNotes)}
-	if s.Pairing == "paired" {
+	if s.OneGroup() {
 		sim.N = sizes[:1]
 	}
 	res.Simulation = sim
@@ -506,7 +506,7 @@ func solveBySimulation(ctx context.Context, s *Spec, res *Result, start [2]int, 
 		return nil, err
 	}
 	out := &SimSolved{N: sz[:], Power: r.Power(), SE: r.SE()}
-	if s.Pairing == "paired" {
+	if s.OneGroup() {
 		out.N = sz[:1]
 	}
 	// Slope of the closed-form power in n near the answer.
@@ -521,7 +521,7 @@ func solveBySimulation(ctx context.Context, s *Spec, res *Result, start [2]int, 
 // simSizes returns the group sizes for a first group of n1: the second
 // follows the ratio (at least one member, two for a t test).
 func simSizes(s *Spec, n1 int) [2]int {
-	if s.Pairing == "paired" {
+	if s.OneGroup() {
 		return [2]int{n1, n1}
 	}
 	least := 1

@@ -30,6 +30,9 @@ type methodObject struct {
 	// (matching.controls_per_case 1 to 10), "pairs" for one control per
 	// case only, and omitted for unmatched designs.
 	Matching string `json:"matching,omitempty"`
+	// Exposure is "continuous" for a method of a binary outcome related to
+	// a continuous exposure, and omitted otherwise.
+	Exposure string `json:"exposure,omitempty"`
 }
 
 // methodObjects lists the catalogue in its JSON form: the outcome spelled
@@ -53,6 +56,9 @@ func methodObjects() []methodObject {
 		}
 		if m.DefaultTest != "" {
 			o.DefaultTest = &m.DefaultTest
+		}
+		if m.Continuous {
+			o.Exposure = "continuous"
 		}
 		switch {
 		case m.PairsOnly:
@@ -118,6 +124,9 @@ func writeMethodsText(w io.Writer) error {
 		serves := strings.Join(m.Designs, ", ")
 		if m.Goal != "" {
 			serves += " (goal: " + m.Goal + ")"
+		}
+		if m.Exposure == "continuous" {
+			serves += ", a continuous exposure (exposure: continuous)"
 		}
 		switch m.Matching {
 		case "pairs":

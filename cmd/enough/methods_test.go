@@ -39,7 +39,7 @@ func TestMethodsJSON(t *testing.T) {
 			t.Errorf("%v: hypotheses %v is not a list", o["id"], o["hypotheses"])
 		}
 		for f := range o {
-			if !slices.Contains(fields, f) && f != "goal" && f != "matching" {
+			if !slices.Contains(fields, f) && f != "goal" && f != "matching" && f != "exposure" {
 				t.Errorf("%v: field %s is not documented", o["id"], f)
 			}
 		}

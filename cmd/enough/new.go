@@ -25,6 +25,7 @@ plans as it stands. The starters are:
 
   enough new cohort                                  binary outcome
   enough new cohort --outcome continuous             difference in means
+  enough new cohort --outcome rate                   events over person-time
   enough new case-control                            binary exposure
   enough new trial                                   binary outcome
   enough new trial --outcome continuous              difference in means
@@ -34,7 +35,8 @@ plans as it stands. The starters are:
   enough new cross-sectional --goal precision        estimate one prevalence
 
 --outcome continuous applies to cohort, trial and cross-sectional;
---outcome time-to-event to trial; --goal precision to cross-sectional.
+--outcome time-to-event to trial; --outcome rate to cohort; --goal precision
+to cross-sectional.
 
 With --review, any of these becomes a starter for enough review: a claimed:
 block for the figures the protocol states, and a placeholder "[as stated,

@@ -29,6 +29,13 @@ var keyLabels = map[string]string{
 	"cluster.size_cv":               "coefficient of variation of cluster sizes",
 	"adjustment.r_squared":          "R² of the exposure on the adjustment covariates",
 	"matching.controls_per_case":    "controls matched to each case",
+	"unexposed_rate":                "rate among the unexposed (events per unit of person-time)",
+	"exposure":                      "exposure",
+	"event_rate":                    "proportion with the outcome at the exposure's mean",
+	"odds_ratio_per_sd":             "odds ratio per standard deviation of the exposure",
+	"rate_ratio":                    "rate ratio",
+	"person_time":                   "person-time per participant",
+	"overdispersion":                "overdispersion (negative binomial k)",
 	"matching.exposure_correlation": "correlation of exposure within matched sets",
 }
 
@@ -151,7 +158,7 @@ func build(r *designs.Result) *document {
 	if r.Goal == "precision" && r.Solve == "effect" {
 		solved = "achievable precision"
 	}
-	d.subtitle = fmt.Sprintf("%s plan for %s %s, %s outcome", capitalise(solved), article(what), what, r.Outcome)
+	d.subtitle = fmt.Sprintf("%s plan for %s %s, %s", capitalise(solved), article(what), what, outcomeWords(r))
 
 	d.sections = append(d.sections, section{heading: "Justification for the protocol", paras: []string{paragraph(r)}})
 	d.sections = append(d.sections, assumptionSection(r))
@@ -184,6 +191,18 @@ func build(r *designs.Result) *document {
 		d.footer = append(d.footer, "overridden on the command line: "+strings.Join(r.Overrides, ", "))
 	}
 	return d
+}
+
+// outcomeWords names the plan's outcome in a subtitle: "binary outcome",
+// "events over person-time".
+func outcomeWords(r *designs.Result) string {
+	switch {
+	case r.Outcome == "rate":
+		return "events over person-time"
+	case r.Spec != nil && r.Spec.ContinuousExposure:
+		return "binary outcome and a continuous exposure"
+	}
+	return r.Outcome + " outcome"
 }
 
 // studyKind names the kind of study planned: "parallel-group randomised
@@ -283,6 +302,9 @@ func assumptionSection(r *designs.Result) section {
 func answerSection(r *designs.Result) section {
 	a := r.Result
 	s := section{heading: "Answer"}
+	if r.Spec.ContinuousExposure {
+		return continuousAnswer(r, s)
+	}
 	if r.Goal == "precision" {
 		nonResponse := fmt.Sprintf("allowing for %s non-response", pct(r.Attrition))
 		if r.Attrition == 0 {
@@ -418,7 +440,7 @@ func answerSection(r *designs.Result) section {
 		s.bullets = append(s.bullets, fmt.Sprintf("Without non-adherence and contamination: %s", groups(a.UndilutedN)))
 	}
 	s.afterTable = groupTable(r)
-	if r.Design == "cross-sectional" {
+	if r.Design == "cross-sectional" && !r.Spec.ContinuousExposure {
 		s.after = append(s.after, fmt.Sprintf("The split follows from `exposure_prevalence`, the share of those surveyed expected in the first group (%s).", pct(r.Spec.ExposurePrevalence)))
 	}
 	return s
@@ -506,6 +528,17 @@ func effectSection(r *designs.Result) *section {
 	f, g := groupsOf(r)
 	fb, gb := f.bracketed(), g.bracketed() // for labels in parentheses
 	s := &section{heading: "The planned effect on every scale"}
+	if e.OddsRatioPerSD != nil {
+		or, p := *e.OddsRatioPerSD, *e.EventRate
+		// The odds at one SD above the mean, restated as a proportion
+		// (common practice: p′ = odds′/(1 + odds′)).
+		odds := p / (1 - p) * or
+		s.bullets = []string{
+			fmt.Sprintf("Odds ratio per standard deviation of the exposure: %s", num(or)),
+			fmt.Sprintf("Proportion with the outcome at the exposure's mean: %s; one standard deviation above it: %s; two: %s", pct(p), pct(odds/(1+odds)), pct(odds*or/(1+odds*or))),
+		}
+		return s
+	}
 	if e.MeanDifference != nil {
 		if r.Spec.Pairing != "" && r.Spec.Pairing != "crossover" {
 			s.bullets = []string{
@@ -525,6 +558,16 @@ func effectSection(r *designs.Result) *section {
 		}
 		if d := r.Result.DilutedEffect; d != nil {
 			s.bullets = append(s.bullets, fmt.Sprintf("Seen by an intention-to-treat analysis after dilution: %s", num(*d.MeanDifference)))
+		}
+		return s
+	}
+	if e.RateRatio != nil {
+		unit := singular(r.Spec.TimeUnit)
+		s.bullets = []string{
+			fmt.Sprintf("Rate %s: %s per 100 person-%ss", f.in(), num(100**e.FirstRate), unit),
+			fmt.Sprintf("Rate %s: %s per 100 person-%ss", g.in(), num(100**e.SecondRate), unit),
+			fmt.Sprintf("Rate ratio (%s over %s): %s", fb.label, gb.label, num(*e.RateRatio)),
+			fmt.Sprintf("Rate difference (%s minus %s): %s per 100 person-%ss", fb.label, gb.label, signed(100**e.RateDifference), unit),
 		}
 		return s
 	}
@@ -703,4 +746,43 @@ func matchingCost(r *designs.Result) string {
 		return line + fmt.Sprintf("matching saves %s cases", count(-d))
 	}
 	return line + "matching neither costs nor saves cases"
+}
+
+// continuousAnswer is the answer of a binary outcome related to a
+// continuous exposure: one group, everyone.
+func continuousAnswer(r *designs.Result, s section) section {
+	a := r.Result
+	who, lost := "participants", "attrition"
+	if r.Design == "cross-sectional" {
+		who, lost = "respondents", "non-response"
+	}
+	switch r.Solve {
+	case "n":
+		s.bullets = append(s.bullets,
+			fmt.Sprintf("**Analysable: %s %s**", count(a.N[0]), who),
+			fmt.Sprintf("**Enrolment target: %s**, allowing for %s %s", count(a.EnrolTotal), pct(r.Attrition), lost),
+			fmt.Sprintf("Achieved power at the analysable size: %s (target %s)", pct1(*a.AchievedPower), pct1(*r.Power)),
+			fmt.Sprintf("Unrounded size from the method: %.2f", a.NStar))
+	case "power":
+		s.bullets = append(s.bullets,
+			fmt.Sprintf("**Power: %s**", pct1(*a.AchievedPower)),
+			fmt.Sprintf("Enrolled: %s; analysable after %s %s: %s", count(a.EnrolTotal), pct(r.Attrition), lost, count(a.N[0])))
+	case "effect":
+		d := a.Detectable
+		for _, side := range []struct {
+			v    *float64
+			name string
+		}{{d.Lower, "below no relation"}, {d.Upper, "above no relation"}} {
+			if d.Direction != "" && (d.Direction == "lower") != strings.HasPrefix(side.name, "below") {
+				continue
+			}
+			if side.v == nil {
+				s.bullets = append(s.bullets, fmt.Sprintf("%s: cannot be reached with this size", capitalise(side.name)))
+				continue
+			}
+			s.bullets = append(s.bullets, fmt.Sprintf("**%s: odds ratio %s per standard deviation**", capitalise(side.name), num(*side.v)))
+		}
+		s.bullets = append(s.bullets, fmt.Sprintf("Power: %s; enrolled %s; analysable: %s", pct1(*r.Power), count(a.EnrolTotal), count(a.N[0])))
+	}
+	return s
 }

@@ -34,6 +34,26 @@ func numASCII(x float64) string {
 	return s
 }
 
+// signed formats a difference with three significant digits and its sign:
+// +2, −0.5.
+func signed(d float64) string {
+	d = round12(d)
+	if d > 0 {
+		return "+" + num(d)
+	}
+	return num(d)
+}
+
+// round12 rounds x to 12 significant digits, so that arithmetic noise
+// (100 × 0.2 − 0.00000000000001) is not printed.
+func round12(x float64) float64 {
+	if x == 0 || math.IsInf(x, 0) || math.IsNaN(x) {
+		return x
+	}
+	v, _ := strconv.ParseFloat(strconv.FormatFloat(x, 'g', 12, 64), 64)
+	return v
+}
+
 // pp formats a risk difference in percentage points with a sign.
 func pp(d float64) string {
 	v := trimZeros(strconv.FormatFloat(100*d, 'f', 2, 64))

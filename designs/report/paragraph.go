@@ -2,6 +2,7 @@ package report
 
 import (
 	"fmt"
+	"math"
 	"strconv"
 	"strings"
 
@@ -13,13 +14,45 @@ func paragraph(r *designs.Result) string {
 	if r.Goal == "precision" {
 		return precisionParagraph(r)
 	}
+	if r.Spec != nil && r.Spec.ContinuousExposure {
+		return logisticParagraph(r)
+	}
 	var b strings.Builder
 	intro(&b, r)
 	assume(&b, r)
 	adjustment(&b, r)
 	conclude(&b, r)
 	matchedSentences(&b, r)
+	rateSentences(&b, r)
 	return strings.TrimSpace(b.String())
+}
+
+// amount writes a quantity such as person-time: a whole number with
+// thousands separators, else with three significant digits.
+func amount(x float64) string {
+	if x == math.Trunc(x) && x < 1e15 {
+		return count(int(x))
+	}
+	return num(x)
+}
+
+// rateText writes a rate per unit of person-time as events per 100.
+func rateText(rate float64) string { return num(100 * rate) }
+
+// rateSentences states a person-time cohort's person-time and expected
+// events, as the answer records them.
+func rateSentences(b *strings.Builder, r *designs.Result) {
+	a := r.Result
+	if a.GroupEvents == nil {
+		return
+	}
+	f, g := groupsOf(r)
+	if t := b.String(); t != "" && !strings.HasSuffix(t, " ") {
+		b.WriteString(" ")
+	}
+	unit := singular(r.Spec.TimeUnit)
+	fmt.Fprintf(b, "The analysable participants contribute %s person-%ss %s and %s %s, in which %.1f and %.1f events are expected (%.1f in all).",
+		amount(a.PersonTime[0]), unit, f.in(), amount(a.PersonTime[1]), g.in(), a.GroupEvents[0], a.GroupEvents[1], *a.ExpectedEvents)
 }
 
 // matchedSentences states the matched sets' own figures, as the answer
@@ -55,9 +88,13 @@ func adjustment(b *strings.Builder, r *designs.Result) {
 	unadj, ok1 := stepOutput(r, "n_star_unadjusted")
 	adj, ok2 := stepOutput(r, "n_star")
 	if ok1 && ok2 {
-		f, _ := groupsOf(r)
-		fmt.Fprintf(b, "following Hsieh, Bloch & Larsen (1998), the unadjusted size of %.2f for %s is inflated by 1/(1 − R²) = %.4g to %.2f. ",
-			unadj, f.ref, 1/(1-s.AdjustR2), adj)
+		who := ""
+		if !s.ContinuousExposure {
+			f, _ := groupsOf(r)
+			who = " for " + f.ref
+		}
+		fmt.Fprintf(b, "following Hsieh, Bloch & Larsen (1998), the unadjusted size of %.2f%s is inflated by 1/(1 − R²) = %.4g to %.2f. ",
+			unadj, who, 1/(1-s.AdjustR2), adj)
 		return
 	}
 	fmt.Fprintf(b, "following Hsieh, Bloch & Larsen (1998), the power is that of an unadjusted analysis of 1 − R² = %s of the participants. ", pct(1-s.AdjustR2))
@@ -94,6 +131,10 @@ func methodPhrase(id, name string) string {
 		return "Connor's formula for matched pairs (Connor 1987)"
 	case "schlesselman-pairs":
 		return "Schlesselman's discordant-pairs formula (1982)"
+	case "hsieh":
+		return "the formula of Hsieh, Bloch & Larsen (1998, after Hsieh 1989)"
+	case "log-rate-ratio":
+		return "the formula for the Wald test on the log rate ratio (Breslow & Day 1987; with overdispersion, Zhu & Lakkis 2014)"
 	}
 	return name
 }
@@ -264,6 +305,20 @@ func assume(b *strings.Builder, r *designs.Result) {
 			share(b, r)
 		}
 		assumeMeans(b, r)
+		return
+	case "rate":
+		unit := singular(s.TimeUnit)
+		fmt.Fprintf(b, "We assume %s events per 100 person-%ss %s%s", rateText(s.UnexposedRate), unit, g.in(), source(r, "unexposed_rate"))
+		if r.Solve != "effect" {
+			fmt.Fprintf(b, " and plan for a rate ratio of %s%s (%s per 100 person-%ss %s)", num(s.RateRatio), eff, rateText(s.UnexposedRate*s.RateRatio), unit, f.in())
+		}
+		fmt.Fprintf(b, "; each participant is followed for %s%s", duration(s.PersonTime, s.TimeUnit), source(r, "person_time"))
+		if s.Overdispersion > 0 {
+			fmt.Fprintf(b, ", and counts vary between participants beyond Poisson variation, with an overdispersion of k = %s%s: negative-binomial counts with variance μ + kμ² (Zhu & Lakkis 2014)", num(s.Overdispersion), source(r, "overdispersion"))
+		} else {
+			b.WriteString(", with Poisson counts")
+		}
+		b.WriteString(". ")
 		return
 	case "time-to-event":
 		fmt.Fprintf(b, "We assume exponential survival %s with %s (a hazard of %.4g per %s%s)",
@@ -877,4 +932,62 @@ func article(word string) string {
 		return "an"
 	}
 	return "a"
+}
+
+// logisticParagraph writes the justification of a binary outcome related
+// to a continuous exposure by logistic regression.
+func logisticParagraph(r *designs.Result) string {
+	s := r.Spec
+	a := r.Result
+	var b strings.Builder
+	outcome := "the binary primary outcome"
+	if s.PrimaryOutcome != "" {
+		outcome = "the primary outcome, " + s.PrimaryOutcome + ","
+	}
+	who := "participants"
+	if r.Design == "cross-sectional" {
+		who = "respondents"
+	}
+	fmt.Fprintf(&b, "%s will be related to the exposure, measured on a continuous scale, by logistic regression; the exposure's coefficient will be tested by the Wald test at a %s alpha of %g. ", capitalise(outcome), sidesWord(r.Sides), *r.Alpha)
+	fmt.Fprintf(&b, "We assume that %s of %s at the mean of the exposure have the outcome%s", pct(s.EventRate), who, source(r, "event_rate"))
+	if r.Solve != "effect" {
+		fmt.Fprintf(&b, " and plan for an odds ratio of %s per standard deviation of the exposure%s", num(s.ORPerSD), source(r, "odds_ratio_per_sd"))
+	}
+	b.WriteString(", the exposure being roughly normally distributed. ")
+	adjustment(&b, r)
+	method := methodPhrase(r.Method, r.MethodName)
+	switch r.Solve {
+	case "n":
+		fmt.Fprintf(&b, "To reach a power of at least %s, %s requires %s analysable %s; the achieved power is %s. ",
+			pct1(*r.Power), method, count(a.N[0]), who, pct1(*a.AchievedPower))
+		lost, verb := "attrition", "enrol"
+		if r.Design == "cross-sectional" {
+			lost, verb = "non-response", "invite"
+		}
+		if r.Attrition > 0 {
+			fmt.Fprintf(&b, "Allowing for %s %s%s, we will %s %s.", pct(r.Attrition), lost, source(r, "attrition"), verb, count(a.EnrolTotal))
+		} else {
+			fmt.Fprintf(&b, "No %s is expected, so we will %s %s.", lost, verb, count(a.EnrolTotal))
+		}
+	case "power":
+		fmt.Fprintf(&b, "With %s enrolled and %s analysable, %s gives a power of %s.", count(a.EnrolTotal), count(a.N[0]), method, pct1(*a.AchievedPower))
+	case "effect":
+		fmt.Fprintf(&b, "With %s analysable, %s gives a power of %s for an odds ratio per standard deviation of %s.",
+			count(a.N[0]), method, pct1(*r.Power), orValues("odds ratio", detectableValues(a.Detectable)))
+	}
+	return strings.TrimSpace(b.String())
+}
+
+// detectableValues lists the detectable effects that were reached.
+func detectableValues(d *designs.Detectable) []float64 {
+	var out []float64
+	if d == nil {
+		return out
+	}
+	for _, v := range []*float64{d.Lower, d.Upper} {
+		if v != nil {
+			out = append(out, *v)
+		}
+	}
+	return out
 }

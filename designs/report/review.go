@@ -232,7 +232,7 @@ func reviewSubject(r *designs.Result, in *designs.ReviewInput) string {
 		if r.Goal == "precision" {
 			return article(what) + " " + what + " estimating a prevalence"
 		}
-		return article(what) + " " + what + ", " + r.Outcome + " outcome"
+		return article(what) + " " + what + ", " + outcomeWords(r)
 	}
 	what := designKinds[inValue(in, "design")]
 	if what == "" {

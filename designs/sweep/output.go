@@ -175,7 +175,7 @@ const (
 // METHOD.FIGURE), and the error.
 func Columns(s *designs.Spec, keys []string, simulated bool, methods []string) []string {
 	cols := append([]string{}, keys...)
-	if s.Goal == "precision" || s.Pairing == "paired" {
+	if s.Goal == "precision" || s.OneGroup() {
 		cols = append(cols, ColAnalysable)
 	} else {
 		cols = append(cols, ColAnalysableFirst, ColAnalysableSecond, ColAnalysableTotal)
