@@ -94,3 +94,18 @@ func TestMatchedRefused(t *testing.T) {
 		})
 	}
 }
+
+// A 1:1 plan reports the exact power of McNemar's test at its pairs in
+// the method's reading: for dupont, row mcw_02 of
+// matched_mcnemar_within.tsv (R's full double sum, matched_within_make.R):
+// 0.80035032252775 at 251 pairs for p0 0.25, odds ratio 1.8, φ 0.15.
+func TestMatchedMcNemarExact(t *testing.T) {
+	res := mustPlan(t, "version: 1\ndesign: case-control\ncontrol_exposure: 0.25\nodds_ratio: 1.8\nsolve: power\nn: 251\nmatching: {controls_per_case: 1, exposure_correlation: 0.15}\n")
+	if p := res.Result.McNemarExactPower; p == nil || math.Abs(*p-0.80035032252775) > 1e-9 {
+		t.Errorf("exact McNemar power %v, want 0.80035032252775", p)
+	}
+	three := mustPlan(t, "version: 1\ndesign: case-control\ncontrol_exposure: 0.25\nodds_ratio: 1.8\nsolve: power\nn: 251\nmatching: {controls_per_case: 3}\n")
+	if three.Result.McNemarExactPower != nil {
+		t.Error("a 1:3 plan reports McNemar's exact power")
+	}
+}

@@ -696,6 +696,23 @@ func matchedFigures(s *Spec, ans *Answer, sv *solved, e effects, tr *trail) {
 		v := tr.add("expected_discordant_sets", "analysable_first × discordant_per_set", float64(ans.N[0])*d, inInt("analysable_first", ans.N[0]), in("discordant_per_set", d))
 		ans.ExpectedDiscordantSets = ptr(v)
 	}
+	if s.Controls == 1 && ans.N[0] >= 1 {
+		ms := mc.sets()
+		dir := 1
+		if ms.OddsRatio < 1 {
+			dir = -1
+		}
+		if s.Sides == 1 && s.Direction != 0 {
+			dir = s.Direction
+		}
+		exact := ms.McNemarExactPower
+		if sv.calc.id == "dupont" {
+			exact = ms.McNemarExactPowerWithinSets
+		}
+		if p, err := exact(ans.N[0], e.alpha, s.Sides, dir); err == nil {
+			ans.McNemarExactPower = ptr(p)
+		}
+	}
 	if s.Solve == "n" {
 		tp := power.TwoProportions{P1: e.p1, P2: e.p2, Alpha: e.alpha, Sides: s.Sides}
 		if n, err := power.Fleiss.N(tp, float64(s.Controls), s.Power); err == nil {

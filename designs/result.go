@@ -125,6 +125,12 @@ type Answer struct {
 	Sets                   int      `json:"sets,omitempty"`
 	ExpectedDiscordantSets *float64 `json:"expected_discordant_sets,omitempty"`
 	UnmatchedCases         int      `json:"unmatched_cases,omitempty"`
+	// McNemarExactPower is, for one control per case, the exact power of
+	// McNemar's test at the analysable pairs by enumeration of the
+	// discordant pairs, in the method's reading of the odds ratio (within
+	// pairs for dupont, member by member for connor and
+	// schlesselman-pairs).
+	McNemarExactPower *float64 `json:"mcnemar_exact_power,omitempty"`
 
 	// Cluster designs: the design effect, the clusters per arm and the
 	// participants whole clusters bring.

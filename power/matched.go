@@ -442,7 +442,20 @@ const mcnemarTailCut = 1e-16
 // difference between correlated proportions or percentages.
 // Psychometrika 12:153–157.
 func (s MatchedSets) McNemarExactPower(pairs int, alpha float64, sides, dir int) (float64, error) {
-	return s.mcnemarPower(pairs, alpha, sides, dir, false)
+	return s.mcnemarPower(pairs, alpha, sides, dir, false, false)
+}
+
+// McNemarExactPowerWithinSets is [MatchedSets.McNemarExactPower] in the
+// within-set reading of the odds ratio that Dupont's (1988) formula takes
+// (see [MatchedSim]): a pair is discordant with the model's probability
+// p_d = t_1 ([MatchedSets.DiscordantPerSet]), and a discordant pair's case
+// is the exposed member with probability ψ/(1 + ψ):
+//
+//	power = Σ_d b(d; n, t_1) P(n10 rejects | d),  n10 | d ~ Binomial(d, ψ/(1 + ψ))
+//
+// At Correlation 0 the two readings coincide.
+func (s MatchedSets) McNemarExactPowerWithinSets(pairs int, alpha float64, sides, dir int) (float64, error) {
+	return s.mcnemarPower(pairs, alpha, sides, dir, false, true)
 }
 
 // McNemarBinomialPower is [MatchedSets.McNemarExactPower] for the exact
@@ -455,10 +468,10 @@ func (s MatchedSets) McNemarExactPower(pairs int, alpha float64, sides, dir int)
 // References: McNemar (1947); the binomial (sign) test of the discordant
 // pairs given their number is common practice.
 func (s MatchedSets) McNemarBinomialPower(pairs int, alpha float64, sides, dir int) (float64, error) {
-	return s.mcnemarPower(pairs, alpha, sides, dir, true)
+	return s.mcnemarPower(pairs, alpha, sides, dir, true, false)
 }
 
-func (s MatchedSets) mcnemarPower(pairs int, alpha float64, sides, dir int, binomial bool) (float64, error) {
+func (s MatchedSets) mcnemarPower(pairs int, alpha float64, sides, dir int, binomial, within bool) (float64, error) {
 	checkTest(alpha, sides, dir)
 	if pairs < 1 {
 		panic("power: McNemar's test needs at least one pair")
@@ -469,6 +482,9 @@ func (s MatchedSets) mcnemarPower(pairs int, alpha float64, sides, dir int, bino
 	}
 	pd := p10 + p01
 	pi := p10 / pd
+	if within {
+		pi = s.OddsRatio / (1 + s.OddsRatio)
+	}
 	var crit func(d int) int
 	if binomial {
 		crit = binomialCrit(alpha / float64(sides))

@@ -416,6 +416,9 @@ func answerSection(r *designs.Result) section {
 		if a.UnmatchedCases > 0 {
 			s.bullets = append(s.bullets, matchingCost(r))
 		}
+		if a.McNemarExactPower != nil {
+			s.bullets = append(s.bullets, fmt.Sprintf("Exact power of McNemar's test at %s pairs, by enumeration of the discordant pairs (no normal approximation): %s", count(a.N[0]), pct1(*a.McNemarExactPower)))
+		}
 	}
 	if a.Events > 0 {
 		need, rounded := eventsRequired(r)
