@@ -90,16 +90,8 @@ func simModel(s *Spec, res *Result, sizes [2]int, null bool) (simSetup, error) {
 		// Logistic regression on a standard normal exposure (and, with
 		// adjustment, one covariate of the stated R²).
 		c := power.RegressionSim{Outcome: power.OutcomeBinary, Exposure: power.ExposureNormal, N: n1,
-			Intercept: math.Log(s.EventRate / (1 - s.EventRate)), Effect: math.Log(e.orsd), R2: s.AdjustR2, Alpha: e.alpha, Sides: sides, Dir: 1}
-		if s.Sides == 1 && s.Direction != 0 {
-			c.Dir = s.Direction
-		} else if c.Effect < 0 {
-			c.Dir = -1
-		}
-		if null {
-			c.Effect = 0
-			st.null = "no relation (an odds ratio per SD of 1)"
-		}
+			Intercept: math.Log(s.EventRate / (1 - s.EventRate)), Effect: math.Log(e.orsd), R2: s.AdjustR2, Alpha: e.alpha, Sides: sides}
+		regressionTest(s, &st, &c, null, "no relation (an odds ratio per SD of 1)")
 		if n1 <= 3 {
 			return unavailable("a logistic regression needs more than three participants")
 		}
@@ -356,6 +348,16 @@ func adjustedModel(s *Spec, st simSetup, e effects, n1, n2 int, null bool, sides
 		c.Intercept = math.Log(e.p2 / (1 - e.p2))
 		c.Effect = math.Log(power.OddsRatio(e.p1, e.p2))
 	}
+	regressionTest(s, &st, &c, null, "no difference (the exposure's coefficient 0)")
+	st.notes = append(st.notes, fmt.Sprintf("The adjusted analysis is simulated as a regression on the exposure and one covariate whose R² with the exposure is %s, with no effect of its own on the outcome.", trimFloat(s.AdjustR2)))
+	st.model = power.NewRegressionSim(c)
+	return st, nil
+}
+
+// regressionTest sets the side a regression simulation's one-sided test
+// looks (the specification's direction, else the effect's sign) and, under
+// the null, no effect, which nullWords describes.
+func regressionTest(s *Spec, st *simSetup, c *power.RegressionSim, null bool, nullWords string) {
 	c.Dir = 1
 	if s.Sides == 1 && s.Direction != 0 {
 		c.Dir = s.Direction
@@ -364,9 +366,6 @@ func adjustedModel(s *Spec, st simSetup, e effects, n1, n2 int, null bool, sides
 	}
 	if null {
 		c.Effect = 0
-		st.null = "no difference (the exposure's coefficient 0)"
+		st.null = nullWords
 	}
-	st.notes = append(st.notes, fmt.Sprintf("The adjusted analysis is simulated as a regression on the exposure and one covariate whose R² with the exposure is %s, with no effect of its own on the outcome.", trimFloat(s.AdjustR2)))
-	st.model = power.NewRegressionSim(c)
-	return st, nil
 }

@@ -334,13 +334,7 @@ func (r *reader) buildRate(s *Spec) {
 		ptOK = false
 	}
 	s.Overdispersion, _ = r.rangeNum("overdispersion", 0, inOverdispersion)
-	tu, _, terr := r.text("time_unit")
-	if r.keep(terr) {
-		s.TimeUnit = tu
-	}
-	if s.TimeUnit == "" {
-		s.TimeUnit = "time units"
-	}
+	r.timeUnit(s)
 	if rateOK && ptOK {
 		s.UnexposedRate, s.PersonTime = rate, pt
 		if ok && rate*pt*math.Max(1, rr) > maxEventsPerParticipant {
@@ -1122,6 +1116,11 @@ func (r *reader) buildSurvival(s *Spec) {
 		s.FollowUp = fu
 	}
 	s.Dropout, _ = r.rangeNum("dropout", 0, inFraction0)
+	r.timeUnit(s)
+}
+
+// timeUnit reads the time unit, "time units" when none is given.
+func (r *reader) timeUnit(s *Spec) {
 	tu, _, err := r.text("time_unit")
 	if r.keep(err) {
 		s.TimeUnit = tu

@@ -129,6 +129,10 @@ func sizeWords(res *designs.Result) string {
 	switch {
 	case s.Goal == "precision":
 		return "respondents (analysable)"
+	case s.ContinuousExposure && s.Design == "cross-sectional":
+		return "respondents (analysable)"
+	case s.ContinuousExposure:
+		return "participants (analysable)"
 	case s.Design == "cross-sectional":
 		return "participants in all (analysable)"
 	case s.Pairing == "paired":
@@ -295,7 +299,7 @@ func effectCurve(res *designs.Result, src *Source) (*plot.Plot, error) {
 	if len(res.Result.N) > 0 {
 		n = res.Result.N[0]
 	}
-	p := newPlot(title(res), Words(key), fmt.Sprintf("%s (%s analysable in the first group)", powerWords(s), thousands(n)))
+	p := newPlot(title(res), Words(key), fmt.Sprintf("%s (%s analysable%s)", powerWords(s), thousands(n), map[bool]string{true: "", false: " in the first group"}[s.OneGroup()]))
 	powerAxis(p)
 	line, err := curve(p, pts, 0, false)
 	if err != nil {
