@@ -437,7 +437,7 @@ func (b *Base) CheckKey(key string) error {
 		return fail("has no nested keys; allowed dotted keys: the keys of adjustment, cluster, matching and simulate (cluster.icc)")
 	case head == "sources" || (info.kind == kindMap && !nested):
 		return fail("is not a number (%s); allowed: a numeric key, such as %s", info.allowed, orList(exampleKeys(numeric)))
-	case !b.allowed[head] && b.sel.matched && (head == "ratio" || head == "n_second"):
+	case !b.allowed[head] && b.sel.matched && (head == "ratio" || head == "n_second" || head == "design_effect"):
 		return fail("does not apply with matching, where each case has matching.controls_per_case controls; allowed: matching.controls_per_case")
 	case !b.allowed[head]:
 		where, _ := belongsTo(head, b.sel)

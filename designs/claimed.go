@@ -617,7 +617,7 @@ func (in *ReviewInput) baseEdits(r *reader) []Edit {
 		out = append(out, in.scaleEdit(r)...)
 	default:
 		out = append(out, Set("solve", "n"), Delete("n"), Delete("n_second"))
-		if c.N > 0 && c.NSecond > 0 && r.get("ratio") == nil && !precision {
+		if c.N > 0 && c.NSecond > 0 && r.get("ratio") == nil && !precision && in.matchedSets() == 0 && !in.oneGroup() {
 			// The stated sizes give the allocation.
 			out = append(out, Set("ratio", impliedRatio(c.N, c.NSecond)))
 		}
@@ -663,7 +663,9 @@ func (in *ReviewInput) SizeEdits() []Edit {
 		}
 	case c.N > 0:
 		out = append(out, Set("n", c.N))
-		if c.NSecond > 0 {
+		if c.NSecond > 0 && in.matchedSets() == 0 && !in.oneGroup() {
+			// Matched sets take their controls from the cases (the stated
+			// controls are judged against M × sets).
 			out = append(out, Delete("ratio"), Set("n_second", c.NSecond))
 		}
 		out = append(out, in.noLoss()...)
@@ -726,8 +728,12 @@ func (in *ReviewInput) SplitEdits(total int) []Edit {
 	if in.survey() {
 		return []Edit{Set("total", total)}
 	}
-	if v, _ := in.Value("pairing"); v == "paired" {
+	if in.oneGroup() {
 		return []Edit{Set("n", total)}
+	}
+	if m := in.matchedSets(); m > 0 {
+		// A set is a case and its m controls.
+		return []Edit{Set("n", max(int(math.Round(float64(total)/float64(1+m))), 1))}
 	}
 	num := func(key string, def float64) float64 {
 		if v, ok := in.Value(key); ok {
@@ -769,6 +775,31 @@ func (in *ReviewInput) clusterLoss() float64 {
 func (in *ReviewInput) survey() bool {
 	v, ok := in.Value("design")
 	return ok && v == "cross-sectional"
+}
+
+// matchedSets returns the controls per case of a matched case-control
+// study, or 0 when it is not one.
+func (in *ReviewInput) matchedSets() int {
+	if v, ok := in.Value("design"); !ok || v != "case-control" {
+		return 0
+	}
+	v, ok := in.Value("matching.controls_per_case")
+	if !ok {
+		return 0
+	}
+	m, err := strconv.Atoi(v)
+	if err != nil || m < 1 {
+		return 0
+	}
+	return m
+}
+
+// oneGroup says the stated size is of one group: pairs, or everyone
+// measured on a continuous exposure.
+func (in *ReviewInput) oneGroup() bool {
+	p, _ := in.Value("pairing")
+	e, _ := in.Value("exposure")
+	return p == "paired" || e == "continuous"
 }
 
 // noLoss is the edit that makes the stated sizes the analysable ones: no

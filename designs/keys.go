@@ -331,9 +331,11 @@ func keysFor(sel selector) map[string]bool {
 		delete(ok, "ratio")
 	}
 	if sel.matched {
-		// Each case has its matched controls.
+		// Each case has its matched controls, and the sets are analysed
+		// conditionally: no design effect.
 		delete(ok, "ratio")
 		delete(ok, "n_second")
+		delete(ok, "design_effect")
 	}
 	if sel.outcome == "binary" && (sel.design == "cohort" || sel.design == "cross-sectional") {
 		add("exposure")

@@ -82,7 +82,7 @@ var Methods = []MethodInfo{
 		Designs:     []string{"case-control"},
 		Matched:     true,
 		DefaultTest: "mantel-haenszel",
-		Note:        "the default for matched case-control studies: one case and 1 to 10 controls per set, exposure correlated within sets; the conditional (Mantel-Haenszel) test stratified by set",
+		Note:        "the default for matched case-control studies: one case and 1 to 10 controls per set, exposure correlated within sets; the conditional (Mantel-Haenszel) test stratified by set, which for one control per case is McNemar's test (test mcnemar)",
 	},
 	{
 		ID: "connor", Short: "Connor 1987", Name: "Connor, matched pairs",

@@ -872,6 +872,22 @@ func planComparison(s *Spec, res *Result, m *MethodInfo) error {
 	if s.Outcome == "binary" && s.Solve != "effect" && !s.ContinuousExposure && !s.Matched {
 		smallCells(s, res, main.sz)
 	}
+	if a := res.Result; a.ExpectedDiscordantSets != nil && *a.ExpectedDiscordantSets < 20 {
+		res.Warnings = append(res.Warnings, fmt.Sprintf("Only %.1f discordant sets are expected, the sets that inform the analysis: with so few the normal approximation behind the formula is poor; check the power by simulation (enough simulate).", *a.ExpectedDiscordantSets))
+	}
+	if s.Adjusted && s.Design == "trial" {
+		res.Notes = append(res.Notes, "In a randomised trial the arms are balanced on the covariates by design, so the R² of the arm on them is near 0; adjusting for covariates that predict the outcome adds precision, which this inflation does not model.")
+	}
+	if s.Method == "schlesselman-pairs" && s.ExposureCorrelation > 0 {
+		res.Notes = append(res.Notes, fmt.Sprintf("Schlesselman's formula takes the exposures of a case and its control as independent: it leaves out the correlation of %g given, which dupont and connor use; its discordant pairs are counted with exposures independent.", s.ExposureCorrelation))
+	}
+	if s.Outcome == "rate" && s.Solve == "effect" {
+		if n := res.Result.N; len(n) == 2 {
+			if e0 := float64(n[1]) * s.UnexposedRate * s.PersonTime; e0 < 20 {
+				res.Warnings = append(res.Warnings, fmt.Sprintf("Only %.1f events are expected among the unexposed: with so few events the Wald test's normal approximation overstates the power; check by simulation (enough simulate).", e0))
+			}
+		}
+	}
 	if a := res.Result; a.GroupEvents != nil && math.Min(a.GroupEvents[0], a.GroupEvents[1]) < 20 {
 		res.Warnings = append(res.Warnings, fmt.Sprintf("Only %.1f and %.1f events are expected in the two groups: with so few events the Wald test's normal approximation overstates the power (a group with no event gives no test at all); check the plan by simulation (enough simulate).", a.GroupEvents[0], a.GroupEvents[1]))
 	}
@@ -905,8 +921,12 @@ func ratioName(s *Spec) string {
 
 // unreachableWhy explains an unreachable direction.
 func unreachableWhy(s *Spec, res *Result, side string) string {
-	if s.Outcome != "binary" {
+	switch {
+	case s.Outcome != "binary" || s.ContinuousExposure:
 		return ""
+	case s.Matched && s.ExposureCorrelation > 0:
+		phi := s.ExposureCorrelation
+		return fmt.Sprintf(": with a correlation of exposure of %g within sets the odds ratio must lie between φ² = %.4g and 1/φ² = %.4g (Dupont's model), short of the target power", phi, phi*phi, 1/(phi*phi))
 	}
 	return fmt.Sprintf(": the first group's %s would have to pass %s", outcomeNoun(s), map[string]string{"below": "0", "above": "1"}[side])
 }

@@ -335,6 +335,20 @@ func (r *reader) reportMisplaced(s *Spec, sel selector, allowed map[string]bool)
 			msg = "does not apply to a paired design: each pair holds one of each; allowed: leave ratio out"
 		case (e.key == "ratio" || e.key == "n_second") && sel.matched:
 			msg = "does not apply with matching, where each case has matching.controls_per_case controls; allowed: matching.controls_per_case, and no " + e.key
+		case e.key == "design_effect" && sel.matched:
+			msg = "does not apply with matching, whose sets are analysed conditionally; allowed: leave design_effect out"
+		case sel.continuous && keysFor(selector{design: sel.design, goal: sel.goal, outcome: sel.outcome, hypothesis: sel.hypothesis})[e.key]:
+			msg = "does not apply with exposure: continuous, where everyone is measured on one exposure and there are no groups; allowed: event_rate and odds_ratio_per_sd (or exposure: groups, for two groups)"
+		case e.key == "adjustment" && s.Pairing != "":
+			msg = "does not apply to a paired design, whose analysis is within pairs; allowed: leave adjustment out"
+		case e.key == "adjustment":
+			msg = "does not apply to " + what + "; allowed: adjustment with a binary or continuous outcome of a two-group comparison or a continuous exposure"
+		case e.key == "matching":
+			msg = "does not apply to " + what + "; allowed: matching with design case-control (a binary exposure)"
+		case e.key == "event_rate" || e.key == "odds_ratio_per_sd" || e.key == "exposure":
+			msg += "; allowed: " + e.key + " with a binary outcome of design cohort or cross-sectional (exposure: continuous)"
+		case (s.Outcome == "rate" && outcomeKey(e.key) == "binary") || (s.Outcome != "rate" && outcomeKey(e.key) == "rate"):
+			msg += fmt.Sprintf("; it belongs to outcome %s; allowed: the keys of a %s outcome, or outcome: %s", outcomeKey(e.key), s.Outcome, outcomeKey(e.key))
 		case precision && (e.key == "alpha" || e.key == "power" || e.key == "sides"):
 			msg += "; a precision survey is set by margin and confidence"
 		case e.key == "ratio" && design == "cross-sectional":
@@ -363,6 +377,19 @@ func (r *reader) reportMisplaced(s *Spec, sel selector, allowed map[string]bool)
 		r.refuse(r.errAt(e, "%s", msg))
 		delete(r.entries, e.key)
 	}
+}
+
+// outcomeKey names the outcome a key belongs to when it belongs to one
+// outcome only: rate for the keys of events over person-time, binary for
+// a two-group design's risks; "" otherwise.
+func outcomeKey(key string) string {
+	switch key {
+	case "unexposed_rate", "rate_ratio", "person_time", "overdispersion":
+		return "rate"
+	case "unexposed_risk", "exposed_risk", "risk_ratio", "risk_difference":
+		return "binary"
+	}
+	return ""
 }
 
 // belongsTo says where a key that does not apply to sel belongs: another
@@ -582,6 +609,8 @@ func (r *reader) methodError(s *Spec) *SpecError {
 		what += " and hypothesis " + s.Hypothesis
 	}
 	switch {
+	case s.Matched && s.Controls == 1:
+		what = "a matched case-control study with one control per case"
 	case s.Matched:
 		what = fmt.Sprintf("a matched case-control study with %d controls per case", s.Controls)
 	case s.Design == "case-control":

@@ -338,7 +338,8 @@ func (r *reader) buildRate(s *Spec) {
 	if rateOK && ptOK {
 		s.UnexposedRate, s.PersonTime = rate, pt
 		if ok && rate*pt*math.Max(1, rr) > maxEventsPerParticipant {
-			r.refuse(r.errAt(r.get("person_time"), "%g with unexposed_rate %g and rate_ratio %g expects more than 10⁶ events per participant; allowed: a rate × person_time × rate ratio of at most 10⁶ (choose another time_unit)", pt, rate, rr))
+			r.refuse(r.errAt(r.get("person_time"), "%s with unexposed_rate %s and rate_ratio %s expects more than 10⁶ events per participant; allowed: unexposed_rate × person_time × max(1, rate_ratio) of at most 10⁶ (choose another time_unit)",
+				show(r.get("person_time").node), show(r.get("unexposed_rate").node), show(r.get("rate_ratio").node)))
 			ok = false
 		}
 	}
@@ -385,8 +386,10 @@ func (r *reader) buildMatching(s *Spec) {
 		return
 	}
 	var m, phi float64
-	whole := func(x float64) bool { return x >= 1 && x <= power.MaxMatchedControls && x == math.Trunc(x) }
-	if r.nestedNum("matching", me, "controls_per_case", whole, true, &m) {
+	inControls := func(x float64) bool { return x >= 1 && x <= power.MaxMatchedControls }
+	if e := r.nested["matching"]["controls_per_case"]; e != nil && e.node.Tag == "!!float" {
+		r.refuse(r.errAt(e, "%s is not a whole number; allowed: %s", show(e.node), matchingKeys["controls_per_case"]))
+	} else if r.nestedNum("matching", me, "controls_per_case", inControls, true, &m) {
 		s.Controls = int(m)
 	}
 	if r.nestedNum("matching", me, "exposure_correlation", inFraction0, false, &phi) {
@@ -429,6 +432,10 @@ func (r *reader) buildAdjustment(s *Spec) {
 	switch {
 	case s.Matched:
 		r.refuse(r.errAt(ae, "is not planned for matched sets yet (their analysis is conditional on the set); allowed: no adjustment"))
+	case s.Hypothesis != "superiority":
+		r.refuse(r.errAt(ae, "is not planned for hypothesis %s yet, whose test is against a margin; allowed: no adjustment, or hypothesis superiority", s.Hypothesis))
+	case s.Method == "fleiss-cc":
+		r.refuse(r.errAt(r.get("method"), "fleiss-cc's continuity correction matches Yates' chi-square test, not the Wald test of a regression that adjusts; allowed with adjustment: fleiss or kelsey"))
 	case s.Method == "exact":
 		r.refuse(r.errAt(ae, "does not apply with method exact, whose enumeration of two binomial counts cannot adjust for covariates; allowed: another method, or no adjustment"))
 	case s.Cluster != nil:

@@ -274,7 +274,7 @@ func assumptionSection(r *designs.Result) section {
 	if r.Sides != 0 && !has["sides"] {
 		defaults = append(defaults, sidesWord(r.Sides)+" test")
 	}
-	if r.Ratio != nil && !has["ratio"] && !has["n_second"] && r.Design != "cross-sectional" && r.Spec.Pairing != "paired" && !r.Spec.Matched {
+	if r.Ratio != nil && !has["ratio"] && !has["n_second"] && r.Design != "cross-sectional" && !r.Spec.OneGroup() && !r.Spec.Matched {
 		defaults = append(defaults, "allocation "+allocation(*r.Ratio))
 	}
 	if !has["attrition"] && r.Outcome != "time-to-event" {
@@ -506,7 +506,7 @@ func valueOn(key string, v float64) string {
 		return num(v)
 	case strings.HasSuffix(key, "_difference"):
 		return pp(v)
-	case strings.HasSuffix(key, "_ratio"):
+	case strings.HasSuffix(key, "_ratio"), strings.HasSuffix(key, "_ratio_per_sd"):
 		return num(v)
 	}
 	return pct(v)
@@ -742,11 +742,21 @@ func matchingCost(r *designs.Result) string {
 	d := a.Sets - a.UnmatchedCases
 	line := fmt.Sprintf("An unmatched design with %s per case would need %s cases and %s controls (Fleiss, Levin & Paik 2003, no continuity correction): ",
 		controlsWord(m), count(a.UnmatchedCases), count(m*a.UnmatchedCases))
+	cases := func(n int) string {
+		if n == 1 {
+			return "1 case"
+		}
+		return count(n) + " cases"
+	}
+	cost := "matching costs"
+	if r.Spec.ExposureCorrelation > 0 {
+		cost = "matching with this correlation of exposure costs"
+	}
 	switch {
 	case d > 0:
-		return line + fmt.Sprintf("matching with this correlation of exposure costs %s more cases", count(d))
+		return line + fmt.Sprintf("%s %s more", cost, cases(d))
 	case d < 0:
-		return line + fmt.Sprintf("matching saves %s cases", count(-d))
+		return line + fmt.Sprintf("matching saves %s", cases(-d))
 	}
 	return line + "matching neither costs nor saves cases"
 }
@@ -761,9 +771,13 @@ func continuousAnswer(r *designs.Result, s section) section {
 	}
 	switch r.Solve {
 	case "n":
+		enrol := fmt.Sprintf("**Enrolment target: %s**, allowing for %s %s", count(a.EnrolTotal), pct(r.Attrition), lost)
+		if r.Attrition == 0 {
+			enrol = fmt.Sprintf("**Enrolment target: %s**, no %s expected", count(a.EnrolTotal), lost)
+		}
 		s.bullets = append(s.bullets,
 			fmt.Sprintf("**Analysable: %s %s**", count(a.N[0]), who),
-			fmt.Sprintf("**Enrolment target: %s**, allowing for %s %s", count(a.EnrolTotal), pct(r.Attrition), lost),
+			enrol,
 			fmt.Sprintf("Achieved power at the analysable size: %s (target %s)", pct1(*a.AchievedPower), pct1(*r.Power)),
 			fmt.Sprintf("Unrounded size from the method: %.2f", a.NStar))
 	case "power":

@@ -68,7 +68,7 @@ func matchedSentences(b *strings.Builder, r *designs.Result) {
 	}
 	fmt.Fprintf(b, "These are %s matched sets", count(a.Sets))
 	if a.ExpectedDiscordantSets != nil {
-		fmt.Fprintf(b, ", of which about %.0f are expected to hold both exposed and unexposed members, the sets that inform the analysis", *a.ExpectedDiscordantSets)
+		fmt.Fprintf(b, ", of which about %.1f are expected to hold both exposed and unexposed members, the sets that inform the analysis", *a.ExpectedDiscordantSets)
 	}
 	b.WriteString(".")
 	if a.UnmatchedCases > 0 {
@@ -159,6 +159,9 @@ func intro(b *strings.Builder, r *designs.Result) {
 	if outcome == "" {
 		outcome = "the " + r.Outcome + " primary outcome"
 		subject = "The " + r.Outcome + " primary outcome"
+		if r.Outcome == "rate" {
+			outcome, subject = "the count of events over person-time", "The count of events over person-time"
+		}
 	}
 	f, g := groupsOf(r)
 	alpha := *r.Alpha

@@ -296,16 +296,21 @@ func percentagePoints(p float64) string {
 // figureLabel names a stated figure in the words of the plan.
 func figureLabel(r *designs.Result, name string) string {
 	first, second := "first group", "second group"
-	paired := false
+	paired, everyone := false, false
 	if r != nil && r.Spec != nil {
 		f, g := groupsOf(r)
 		first, second = f.label, g.label
-		paired = r.Spec.Pairing == "paired"
+		paired, everyone = r.Spec.Pairing == "paired", r.Spec.ContinuousExposure
 	}
 	switch name {
 	case "n":
-		if paired {
+		switch {
+		case paired:
 			return "analysable pairs"
+		case everyone:
+			return "analysable participants"
+		case r != nil && r.Spec != nil && r.Spec.Matched:
+			return "analysable sets (cases)"
 		}
 		return "analysable, " + first
 	case "n_second":
@@ -501,10 +506,10 @@ func oneGroupUnit(r *designs.Result) string {
 	if r == nil || r.Spec == nil {
 		return ""
 	}
-	switch r.Spec.Pairing {
-	case "paired":
+	switch {
+	case r.Spec.Pairing == "paired":
 		return "pairs"
-	case "crossover":
+	case r.Spec.Pairing == "crossover", r.Spec.ContinuousExposure:
 		return "participants"
 	}
 	return ""

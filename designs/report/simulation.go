@@ -151,7 +151,11 @@ func simulationSection(r *designs.Result) *section {
 			line += fmt.Sprintf(" (standard error %s points)", strconv.FormatFloat(100*so.SE, 'f', d+1, 64))
 		}
 		if so.NSE > 0 {
-			line += fmt.Sprintf("; Monte-Carlo uncertainty about ±%.0f in the first group", math.Ceil(so.NSE))
+			where := " in the first group"
+			if len(so.N) == 1 {
+				where = ""
+			}
+			line += fmt.Sprintf("; Monte-Carlo uncertainty about ±%.0f%s", math.Ceil(so.NSE), where)
 		}
 		s.bullets = append(s.bullets, line)
 	}

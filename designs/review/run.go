@@ -620,6 +620,12 @@ func (rc *recheck) noun(name string) string {
 	switch {
 	case name == "n" && paired:
 		return "pairs (analysable)"
+	case name == "n" && rc.spec != nil && rc.spec.ContinuousExposure:
+		return "participants (analysable)"
+	case name == "n" && rc.spec != nil && rc.spec.Matched:
+		return "matched sets (analysable)"
+	case name == "n_second" && rc.spec != nil && rc.spec.Matched:
+		return "controls (analysable)"
 	case name == "n":
 		return "first group (analysable)"
 	case name == "n_second":

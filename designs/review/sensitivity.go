@@ -127,7 +127,7 @@ func (rc *recheck) levers() []lever {
 			add("margin", shrink, positive)
 		}
 	default:
-		for _, k := range []string{"risk_ratio", "odds_ratio", "prevalence_ratio", "hazard_ratio"} {
+		for _, k := range []string{"risk_ratio", "odds_ratio", "prevalence_ratio", "hazard_ratio", "rate_ratio", "odds_ratio_per_sd"} {
 			add(k, towardsOne, always)
 		}
 		for _, k := range []string{"risk_difference", "prevalence_difference", "mean_difference"} {
@@ -156,6 +156,13 @@ func (rc *recheck) levers() []lever {
 	for _, k := range []string{"baseline_correlation", "within_correlation"} {
 		add(k, shrink, positive)
 	}
+	// The correlation of exposure within matched sets and the R² of the
+	// exposure on the covariates: larger, fewer informative sets and less
+	// information (those beyond their ranges are left out by the plan's
+	// own refusal).
+	add("matching.exposure_correlation", fraction, positive)
+	add("adjustment.r_squared", fraction, positive)
+	add("overdispersion", grow, positive)
 
 	// The reference value, in whichever direction raises the size.
 	both := func(x, f float64) []float64 { return []float64{x * (1 - f), x * (1 + f)} }
@@ -175,6 +182,10 @@ func (rc *recheck) levers() []lever {
 		add("control_median", both, positive)
 		add("control_survival", risk, always)
 	case s.Outcome == "continuous":
+	case s.Outcome == "rate":
+		add("unexposed_rate", both, positive)
+	case s.ContinuousExposure:
+		add("event_rate", risk, always)
 	default:
 		if s.ReferenceKey != "" {
 			add(s.ReferenceKey, risk, always)

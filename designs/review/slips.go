@@ -88,7 +88,7 @@ func (p *Protocol) value(key string) (float64, bool) {
 // twoGroups tells whether the plan has two groups of its own (not a
 // precision survey or a paired design).
 func (p *Protocol) twoGroups() bool {
-	return p.Spec.Goal != "precision" && p.Spec.Pairing != "paired"
+	return p.Spec.Goal != "precision" && !p.Spec.OneGroup()
 }
 
 // superiority tells whether the plan tests for a difference.
@@ -359,7 +359,7 @@ var Slips = []Slip{
 		Request: "Recompute the sample size for the planned unequal allocation; the stated figure matches equal groups.",
 		Edits: func(p *Protocol) ([]designs.Edit, bool) {
 			switch {
-			case !p.twoGroups():
+			case !p.twoGroups() || p.Spec.Matched:
 				return nil, false
 			case p.Spec.Design == "cross-sectional":
 				if math.Abs(p.Spec.ExposurePrevalence-0.5) < 1e-12 {
@@ -465,6 +465,48 @@ var Slips = []Slip{
 				return nil, false
 			}
 			return []designs.Edit{designs.Set("alpha", a)}, true
+		},
+	},
+	// adjustment-ignored: the size computed without the inflation for the
+	// adjustment for covariates (Hsieh, Bloch & Larsen 1998): every figure
+	// recomputed without the adjustment block.
+	{
+		ID: "adjustment-ignored", Group: "adjustment",
+		Says:    "no inflation for the adjustment for covariates (1/(1 − R²))",
+		Request: "Confirm whether the sample size allows for the adjustment for covariates that the analysis makes: with the stated R² of the exposure on the covariates the size is inflated by 1/(1 − R²) (Hsieh, Bloch & Larsen 1998).",
+		Edits: func(p *Protocol) ([]designs.Edit, bool) {
+			if !p.Spec.Adjusted || p.Spec.AdjustR2 == 0 {
+				return nil, false
+			}
+			return []designs.Edit{designs.Delete("adjustment")}, true
+		},
+	},
+	// overdispersion-ignored: counts of events planned as Poisson where
+	// the protocol states negative-binomial overdispersion: every figure
+	// recomputed with overdispersion 0.
+	{
+		ID: "overdispersion-ignored", Group: "variance",
+		Says:    "Poisson counts where the protocol states overdispersion",
+		Request: "Confirm whether the sample size allows for the overdispersion of the counts the protocol states: a negative-binomial variance μ + kμ² needs more participants than Poisson counts (Zhu & Lakkis 2014).",
+		Edits: func(p *Protocol) ([]designs.Edit, bool) {
+			if p.Spec.Outcome != "rate" || p.Spec.Overdispersion == 0 {
+				return nil, false
+			}
+			return []designs.Edit{designs.Set("overdispersion", 0)}, true
+		},
+	},
+	// correlation-ignored: matched sets planned as if exposure were
+	// independent within sets: every figure recomputed with
+	// exposure_correlation 0.
+	{
+		ID: "correlation-ignored", Group: "correlation",
+		Says:    "the correlation of exposure within matched sets left out",
+		Request: "Confirm whether the sample size allows for the correlation of exposure between cases and their matched controls that the protocol states: correlated exposure leaves fewer discordant sets and needs more of them (Dupont 1988).",
+		Edits: func(p *Protocol) ([]designs.Edit, bool) {
+			if !p.Spec.Matched || p.Spec.ExposureCorrelation == 0 {
+				return nil, false
+			}
+			return []designs.Edit{designs.Set("matching.exposure_correlation", 0)}, true
 		},
 	},
 }
