@@ -33,6 +33,12 @@ func amount(x float64) string {
 	if x == math.Trunc(x) && x < 1e15 {
 		return count(int(x))
 	}
+	if x >= 100 && x < 1e15 {
+		// Person-time is a sum: keep its fraction, and the separators.
+		whole := math.Floor(x)
+		frac := strings.TrimPrefix(trimZeros(strconv.FormatFloat(x-whole, 'f', 2, 64)), "0")
+		return count(int(whole)) + frac
+	}
 	return num(x)
 }
 
@@ -51,8 +57,12 @@ func rateSentences(b *strings.Builder, r *designs.Result) {
 		b.WriteString(" ")
 	}
 	unit := singular(r.Spec.TimeUnit)
-	fmt.Fprintf(b, "The analysable participants contribute %s person-%ss %s and %s %s, in which %.1f and %.1f events are expected (%.1f in all).",
-		amount(a.PersonTime[0]), unit, f.in(), amount(a.PersonTime[1]), g.in(), a.GroupEvents[0], a.GroupEvents[1], *a.ExpectedEvents)
+	all := fmt.Sprintf(" (%.1f in all)", *a.ExpectedEvents)
+	if r.Solve == "power" {
+		all = "" // the total is in the sentence before
+	}
+	fmt.Fprintf(b, "The analysable participants contribute %s person-%ss %s and %s %s, in which %.1f and %.1f events are expected%s.",
+		amount(a.PersonTime[0]), unit, f.in(), amount(a.PersonTime[1]), g.in(), a.GroupEvents[0], a.GroupEvents[1], all)
 }
 
 // matchedSentences states the matched sets' own figures, as the answer
