@@ -195,6 +195,22 @@ var Methods = []MethodInfo{
 		DefaultTest: "",
 		Note:        "size to estimate one prevalence within a margin; finite population correction and design effect",
 	},
+	{
+		ID: "wilson", Short: "Wilson 1927", Name: "Wilson score interval",
+		Citation:    "Wilson EB (1927). Probable inference, the law of succession, and statistical inference. J Am Stat Assoc 22:209-212",
+		Designs:     []string{"cross-sectional"},
+		Goal:        "precision",
+		DefaultTest: "",
+		Note:        "the smallest n whose Wilson interval at the expected count n × p has half-width at most the margin; sound near 0 and 1, where the Wald interval is not",
+	},
+	{
+		ID: "clopper-pearson", Short: "Clopper & Pearson 1934", Name: "Clopper-Pearson (exact) interval",
+		Citation:    "Clopper CJ, Pearson ES (1934). The use of confidence or fiducial limits illustrated in the case of the binomial. Biometrika 26:404-413",
+		Designs:     []string{"cross-sectional"},
+		Goal:        "precision",
+		DefaultTest: "",
+		Note:        "the smallest n whose Clopper-Pearson interval (beta quantiles, the expected count n × p need not be whole) has half-width at most the margin; conservative",
+	},
 }
 
 // servesSpec says whether the method serves the specification: its

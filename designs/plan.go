@@ -1153,10 +1153,12 @@ func planPrecision(s *Spec, res *Result) error {
 		}
 	}
 	d := *ans.Margin
-	if d >= p || d >= 1-p {
+	if s.Method != "wald" {
+		// Wilson and Clopper-Pearson intervals stay within [0, 1].
+	} else if d >= p || d >= 1-p {
 		res.Warnings = append(res.Warnings, fmt.Sprintf("The margin (%.3g) is not smaller than the expected prevalence or its complement: the Wald interval would cross 0 or 1; an exact (Clopper-Pearson) or Wilson interval suits better.", d))
 	}
-	if eff := float64(ans.Total) / s.DesignEffect; eff*math.Min(p, 1-p) < 10 {
+	if eff := float64(ans.Total) / s.DesignEffect; s.Method == "wald" && eff*math.Min(p, 1-p) < 10 {
 		res.Warnings = append(res.Warnings, "Fewer than 10 expected cases (or non-cases) among the effective respondents: the Wald interval is unreliable here.")
 	}
 	if s.DesignEffect > 1 {
@@ -1176,14 +1178,34 @@ func precisionCore(s *Spec, ans *Answer, tr *trail) error {
 		z = power.ZAlpha(1-s.Confidence, 2)
 	}
 	p := s.ExpectedPrevalence
+	interval, _ := power.ParseIntervalMethod(s.Method)
 	switch s.Solve {
 	case "n":
 		n0, n := power.PrecisionN(pr, s.Margin)
+		if interval != power.WaldInterval {
+			// The smallest whole n whose interval at the expected count
+			// has half-width within the margin; then the design effect
+			// and the finite population correction as for Wald.
+			m, err := interval.N(p, s.Margin, s.Confidence)
+			if err != nil {
+				return &PlanError{File: s.File, Msg: fmt.Sprintf("no survey of at most 10⁹ respondents reaches a %s interval of ±%g; allowed: a larger margin", MethodByID(s.Method).Name, s.Margin), Err: err}
+			}
+			n0 = float64(m)
+			n = n0 * s.DesignEffect
+			if s.Population > 0 {
+				n = n / (1 + (n-1)/float64(s.Population))
+			}
+		}
 		if err := checkSizes(s, n, n/(1-s.Attrition)); err != nil {
 			return err
 		}
-		tr.add("z", "the standard normal quantile at (1 + confidence) / 2", z, in("confidence", s.Confidence))
-		tr.add("n0", "z² × expected_prevalence × (1 − expected_prevalence) / margin² (simple random sampling; Cochran 1977)", n0, in("z", z), in("expected_prevalence", p), in("margin", s.Margin))
+		if interval == power.WaldInterval {
+			tr.add("z", "the standard normal quantile at (1 + confidence) / 2", z, in("confidence", s.Confidence))
+			tr.add("n0", "z² × expected_prevalence × (1 − expected_prevalence) / margin² (simple random sampling; Cochran 1977)", n0, in("z", z), in("expected_prevalence", p), in("margin", s.Margin))
+		} else {
+			tr.add("n0", fmt.Sprintf("the smallest whole number of respondents whose %s at the expected count n0 × expected_prevalence has half-width at most the margin (simple random sampling; %s)", MethodByID(s.Method).Name, MethodByID(s.Method).Short),
+				n0, in("expected_prevalence", p), in("margin", s.Margin), in("confidence", s.Confidence))
+		}
 		next := "n0"
 		if s.DesignEffect != 1 {
 			tr.add("n_design", "n0 × design_effect", n0*s.DesignEffect, in("n0", n0), in("design_effect", s.DesignEffect))
@@ -1221,10 +1243,34 @@ func precisionCore(s *Spec, ans *Answer, tr *trail) error {
 			next = "n0"
 		}
 		rule := "z × sqrt(expected_prevalence × (1 − expected_prevalence) / " + next + ")"
-		if s.Population > 0 && a >= s.Population {
-			rule = "0: every member of the population responds (a census)"
+		margin := power.PrecisionMargin(pr, float64(a))
+		if interval != power.WaldInterval {
+			rule = fmt.Sprintf("half the width of the %s at the expected count %s × expected_prevalence (%s)", MethodByID(s.Method).Name, next, MethodByID(s.Method).Short)
+			margin = interval.HalfWidth(p, nv, s.Confidence)
 		}
-		ans.Margin = ptr(tr.add("margin", rule, power.PrecisionMargin(pr, float64(a)), in("z", z), in("expected_prevalence", p), in(next, nv)))
+		if s.Population > 0 && a >= s.Population {
+			rule, margin = "0: every member of the population responds (a census)", 0
+		}
+		ans.Margin = ptr(tr.add("margin", rule, margin, in("z", z), in("expected_prevalence", p), in(next, nv)))
+	}
+	// The interval expected at the plan: the method's limits at the
+	// expected count of the simple random sample the plan is worth.
+	eff := ans.N0
+	if s.Solve == "effect" {
+		eff = float64(ans.Total) / s.DesignEffect
+	}
+	if tr != nil && eff > 0 && !(s.Population > 0 && ans.Total >= s.Population) {
+		lo, hi := interval.Limits(eff*p, eff, s.Confidence)
+		name := "n0"
+		if s.Solve == "effect" {
+			name = "effective_respondents"
+			tr.add(name, "analysable_first / design_effect", eff, inInt("analysable_first", ans.Total), in("design_effect", s.DesignEffect))
+		}
+		rule := fmt.Sprintf("the %%s limit of the %s at the expected count %s × expected_prevalence", MethodByID(s.Method).Name, name)
+		ans.ExpectedInterval = []float64{
+			tr.add("expected_lower", fmt.Sprintf(rule, "lower"), lo, in(name, eff), in("expected_prevalence", p), in("confidence", s.Confidence)),
+			tr.add("expected_upper", fmt.Sprintf(rule, "upper"), hi, in(name, eff), in("expected_prevalence", p), in("confidence", s.Confidence)),
+		}
 	}
 	return nil
 }

@@ -97,9 +97,13 @@ type Answer struct {
 	// Detectable is the smallest detectable effect (solving effect).
 	Detectable *Detectable `json:"detectable,omitempty"`
 
-	// Precision surveys.
-	N0     float64  `json:"n0,omitempty"`
-	Margin *float64 `json:"margin,omitempty"`
+	// Precision surveys: the simple-random-sampling size, the margin, and
+	// the interval expected at the plan (the method's limits at the
+	// expected count), a planning value, not a guarantee for the observed
+	// prevalence.
+	N0               float64   `json:"n0,omitempty"`
+	Margin           *float64  `json:"margin,omitempty"`
+	ExpectedInterval []float64 `json:"expected_interval,omitempty"`
 
 	// Person-time cohorts: the person-time of each group and the events
 	// expected in each (the total in ExpectedEvents), at the analysable

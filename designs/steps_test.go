@@ -98,6 +98,8 @@ func replayStep(st Step) (float64, bool) {
 	case strings.HasPrefix(st.Name, "expected_events_") && strings.HasPrefix(rule, "person_time_"):
 		parts := strings.SplitN(rule, " × ", 2)
 		return g(parts[0]) * g(parts[1]), true
+	case rule == "analysable_first / design_effect" && st.Name == "effective_respondents":
+		return g("analysable_first") / g("design_effect"), true
 	case rule == "analysable_first × discordant_per_set":
 		return g("analysable_first") * g("discordant_per_set"), true
 	case rule == "controls_per_case × analysable_first":
@@ -160,7 +162,7 @@ func replayStep(st Step) (float64, bool) {
 // computedSteps are the steps that a method computes (checked against
 // outside values elsewhere); every other step must replay by arithmetic.
 var computedSteps = map[string]bool{
-	"n_star": true, "n_star_unadjusted": true, "discordant_per_set": true, "events_star": true, "achieved_power": true, "power": true,
+	"n_star": true, "n_star_unadjusted": true, "discordant_per_set": true, "n0": true, "expected_lower": true, "expected_upper": true, "events_star": true, "achieved_power": true, "power": true,
 	"event_probability_first": true, "event_probability_second": true,
 	"detectable_lower": true, "detectable_upper": true, "diluted_lower": true, "diluted_upper": true,
 	"z": true, "margin": true, "analysable_first": true,

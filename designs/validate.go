@@ -539,7 +539,7 @@ func (r *reader) probability(key, what string) (float64, bool) {
 
 func (r *reader) buildPrecision(s *Spec) {
 	var err *SpecError
-	if s.Method, _, err = r.choice("method", "wald", "wald"); err != nil {
+	if s.Method, _, err = r.choice("method", "wald", "wald", "wilson", "clopper-pearson"); err != nil {
 		r.refuse(r.methodError(s))
 		s.Method = "wald"
 	}

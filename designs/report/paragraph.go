@@ -903,15 +903,28 @@ func precisionParagraph(r *designs.Result) string {
 	if outcome == "" {
 		outcome = "the binary outcome under study"
 	}
-	fmt.Fprintf(&b, "The primary outcome is %s, expected in about %s of the population%s; the survey will estimate this proportion with a %s confidence interval (Wald, normal approximation; Cochran 1977). ",
-		outcome, pct(s.ExpectedPrevalence), source(r, "expected_prevalence"), pct(s.Confidence))
+	interval := map[string]string{
+		"wald":            "Wald, normal approximation; Cochran 1977",
+		"wilson":          "the Wilson score interval; Wilson 1927",
+		"clopper-pearson": "the Clopper-Pearson interval from beta quantiles; Clopper & Pearson 1934",
+	}[r.Method]
+	fmt.Fprintf(&b, "The primary outcome is %s, expected in about %s of the population%s; the survey will estimate this proportion with a %s confidence interval (%s). ",
+		outcome, pct(s.ExpectedPrevalence), source(r, "expected_prevalence"), pct(s.Confidence), interval)
 	marg := strings.TrimSuffix(pct(*a.Margin), "%")
+	n0 := fmt.Sprintf("n₀ = %.2f, rounded up to", a.N0)
+	if r.Method != "wald" {
+		n0 = fmt.Sprintf("n₀ = %s respondents (the smallest whose interval at the expected count has half-width within the margin), hence", count(int(a.N0)))
+	}
 	if r.Solve == "n" {
 		adjusted := r.DesignEff != 1 || s.Population > 0
 		if !adjusted {
-			fmt.Fprintf(&b, "For a margin of ±%s percentage points, simple random sampling needs n₀ = %.2f, rounded up to %s respondents. ", marg, a.N0, count(a.Total))
+			fmt.Fprintf(&b, "For a margin of ±%s percentage points, simple random sampling needs %s %s respondents. ", marg, n0, count(a.Total))
 		} else {
-			fmt.Fprintf(&b, "For a margin of ±%s percentage points, simple random sampling would need n₀ = %.2f", marg, a.N0)
+			if r.Method == "wald" {
+				fmt.Fprintf(&b, "For a margin of ±%s percentage points, simple random sampling would need n₀ = %.2f", marg, a.N0)
+			} else {
+				fmt.Fprintf(&b, "For a margin of ±%s percentage points, simple random sampling would need n₀ = %s respondents (the smallest whose interval at the expected count has half-width within the margin)", marg, count(int(a.N0)))
+			}
 			var changes []string
 			if r.DesignEff != 1 {
 				changes = append(changes, fmt.Sprintf("the design effect of %g%s raises this", r.DesignEff, source(r, "design_effect")))
@@ -935,6 +948,9 @@ func precisionParagraph(r *designs.Result) string {
 			fmt.Fprintf(&b, ", with a design effect of %g%s", r.DesignEff, source(r, "design_effect"))
 		}
 		fmt.Fprintf(&b, ", the estimate will lie within ±%s percentage points of the true proportion at that confidence level.", marg)
+	}
+	if e := a.ExpectedInterval; len(e) == 2 {
+		fmt.Fprintf(&b, " At the expected prevalence the interval is expected to run from %s to %s; this is a planning value at the expected prevalence, not a guarantee for the prevalence observed, whose interval will be wider or narrower with it.", pct(e[0]), pct(e[1]))
 	}
 	return b.String()
 }

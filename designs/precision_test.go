@@ -1,0 +1,52 @@
+package designs
+
+import (
+	"fmt"
+	"math"
+	"testing"
+
+	"enough/power/reftable"
+)
+
+// One prevalence to a margin by each interval against R's brute-force scan
+// (intervals_n.tsv, testdata/reference/intervals_make.R: the first n whose
+// half-width at the expected count n × p is within the margin): the
+// respondents needed, with no design effect, population or non-response,
+// are that n for wilson and clopper-pearson, and ceil(Cochran's n0) for
+// wald.
+func TestPrecisionIntervalsAgainstReference(t *testing.T) {
+	checked := 0
+	for _, row := range reftable.Load(t, "intervals_n.tsv") {
+		spec := fmt.Sprintf("version: 1\ndesign: cross-sectional\ngoal: precision\nexpected_prevalence: %s\nmargin: %s\nconfidence: %s\nmethod: %s\n",
+			row["p"], row["margin"], row["confidence"], row["method"])
+		res := mustPlan(t, spec)
+		if got, want := res.Result.Total, row.I(t, "n"); got != want {
+			t.Errorf("%s: %d respondents, want %d (%s)", row["id"], got, want, row["source"])
+		}
+		// The margin achieved at that size is the interval's half-width
+		// there (the row's hw_n), solving effect at the same total.
+		back := mustPlan(t, spec+fmt.Sprintf("solve: effect\ntotal: %s\n", row["n"]))
+		if got, want := *back.Result.Margin, row.F(t, "hw_n"); math.Abs(got-want) > 1e-12+1e-9*want {
+			t.Errorf("%s: margin %v at n, want %v", row["id"], got, want)
+		}
+		checked++
+	}
+	if checked < 50 {
+		t.Errorf("only %d rows", checked)
+	}
+}
+
+// The design effect, the finite population and non-response act on the
+// method's simple-random-sampling size as they do for Wald (common
+// practice arithmetic on row n_wilson_p0.01_m0.01_c0.95, 454 respondents):
+// 454 × 1.5 = 681; 681 / (1 + 680/5000) = 599.47, rounded up 600; 600 /
+// 0.8 = 750 to invite.
+func TestPrecisionIntervalInflation(t *testing.T) {
+	res := mustPlan(t, "version: 1\ndesign: cross-sectional\ngoal: precision\nexpected_prevalence: 0.01\nmargin: 0.01\nmethod: wilson\ndesign_effect: 1.5\npopulation: 5000\nattrition: 0.2\n")
+	if a := res.Result; a.N0 != 454 || a.Total != 600 || a.EnrolTotal != 750 {
+		t.Errorf("n0 %v, respondents %d, invited %d; want 454, 600, 750", a.N0, a.Total, a.EnrolTotal)
+	}
+	if len(res.Result.ExpectedInterval) != 2 {
+		t.Errorf("no expected interval: %v", res.Result.ExpectedInterval)
+	}
+}
