@@ -317,6 +317,11 @@ func keysFor(sel selector) map[string]bool {
 	add(commonKeys...)
 	if sel.design == "cross-sectional" && sel.goal == "precision" {
 		add(precisionKeys...)
+		if sel.outcome == "continuous" {
+			// A mean: its standard deviation in place of a prevalence.
+			delete(ok, "expected_prevalence")
+			add("sd")
+		}
 		return ok
 	}
 	r := roles[sel.design]

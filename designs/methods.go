@@ -196,6 +196,15 @@ var Methods = []MethodInfo{
 		Note:        "size to estimate one prevalence within a margin; finite population correction and design effect",
 	},
 	{
+		ID: "t-interval", Short: "Student 1908", Name: "t interval for a mean",
+		Citation:    "Student (1908). The probable error of a mean. Biometrika 6:1-25",
+		Designs:     []string{"cross-sectional"},
+		Goal:        "precision",
+		Outcome:     "continuous",
+		DefaultTest: "",
+		Note:        "the smallest n ≥ 2 with t(1 − α/2, n − 1) × sd / √n at most the margin, found by iterating on n from the normal answer",
+	},
+	{
 		ID: "wilson", Short: "Wilson 1927", Name: "Wilson score interval",
 		Citation:    "Wilson EB (1927). Probable inference, the law of succession, and statistical inference. J Am Stat Assoc 22:209-212",
 		Designs:     []string{"cross-sectional"},

@@ -1178,6 +1178,9 @@ func precisionCore(s *Spec, ans *Answer, tr *trail) error {
 		z = power.ZAlpha(1-s.Confidence, 2)
 	}
 	p := s.ExpectedPrevalence
+	if s.Outcome == "continuous" {
+		return meanPrecisionCore(s, ans, tr)
+	}
 	interval, _ := power.ParseIntervalMethod(s.Method)
 	switch s.Solve {
 	case "n":
@@ -1271,6 +1274,69 @@ func precisionCore(s *Spec, ans *Answer, tr *trail) error {
 			tr.add("expected_lower", fmt.Sprintf(rule, "lower"), lo, in(name, eff), in("expected_prevalence", p), in("confidence", s.Confidence)),
 			tr.add("expected_upper", fmt.Sprintf(rule, "upper"), hi, in(name, eff), in("expected_prevalence", p), in("confidence", s.Confidence)),
 		}
+	}
+	return nil
+}
+
+// meanPrecisionCore is precisionCore for one mean to within ± margin by
+// the t interval: n0 the smallest n ≥ 2 with t(1 − α/2, n − 1) sd / √n ≤
+// margin (simple random sampling), then the design effect, the finite
+// population correction and non-response as for a prevalence; solving
+// effect, the half-width at the effective respondents.
+func meanPrecisionCore(s *Spec, ans *Answer, tr *trail) error {
+	sd := s.SD1
+	switch s.Solve {
+	case "n":
+		m, err := power.MeanPrecisionN(sd, s.Margin, s.Confidence)
+		if err != nil {
+			return &PlanError{File: s.File, Msg: fmt.Sprintf("no survey of at most 10⁹ respondents estimates the mean within ±%g; allowed: a larger margin", s.Margin), Err: err}
+		}
+		n0 := float64(m)
+		n := n0 * s.DesignEffect
+		if s.Population > 0 {
+			n = n / (1 + (n-1)/float64(s.Population))
+		}
+		if err := checkSizes(s, n, n/(1-s.Attrition)); err != nil {
+			return err
+		}
+		tr.add("n0", "the smallest whole number of respondents n0 ≥ 2 with t(1 − (1 − confidence)/2, n0 − 1) × sd / √n0 at most the margin (simple random sampling; the t interval, Student 1908)", n0, in("sd", sd), in("margin", s.Margin), in("confidence", s.Confidence))
+		next := "n0"
+		if s.DesignEffect != 1 {
+			tr.add("n_design", "n0 × design_effect", n0*s.DesignEffect, in("n0", n0), in("design_effect", s.DesignEffect))
+			next = "n_design"
+		}
+		if s.Population > 0 {
+			tr.add("n_population", next+" / (1 + ("+next+" − 1) / population) (finite population correction)", n, in(next, n0*s.DesignEffect), inInt("population", s.Population))
+			next = "n_population"
+		}
+		a := tr.addInt("analysable_first", "ceil("+next+"): the respondents needed", ceilTol(n), in(next, n))
+		ans.N0, ans.NStar = n0, n
+		ans.N, ans.Total = append(ans.N[:0], a), a
+		ans.Enrol = append(ans.Enrol[:0], tr.addInt("enrol_first", "ceil(analysable_first / (1 − attrition)): the people to invite, allowing for non-response", ceilTol(float64(a)/(1-s.Attrition)), inInt("analysable_first", a), in("attrition", s.Attrition)))
+		ans.EnrolTotal = ans.Enrol[0]
+		ans.Margin = ptr(s.Margin)
+	case "effect":
+		a := tr.addInt("analysable_first", "floor(total × (1 − attrition)): the respondents expected", floorTol(float64(s.Total)*(1-s.Attrition)), inInt("total", s.Total), in("attrition", s.Attrition))
+		if a < 2 {
+			return &SpecError{File: s.File, Key: "total", Msg: "after non-response fewer than two respondents are left, too few for a t interval; allowed: a larger total"}
+		}
+		ans.N, ans.Total = append(ans.N[:0], a), a
+		ans.Enrol, ans.EnrolTotal = append(ans.Enrol[:0], s.Total), s.Total
+		next, nv := "analysable_first", float64(a)
+		if s.Population > 0 && nv < float64(s.Population) {
+			nv = tr.add("n_before_population", "analysable_first × (population − 1) / (population − analysable_first) (undoing the finite population correction)", nv*float64(s.Population-1)/(float64(s.Population)-nv), inInt("analysable_first", a), inInt("population", s.Population))
+			next = "n_before_population"
+		}
+		if s.DesignEffect != 1 {
+			nv = tr.add("n0", next+" / design_effect", nv/s.DesignEffect, in(next, nv), in("design_effect", s.DesignEffect))
+			next = "n0"
+		}
+		margin := power.MeanHalfWidth(sd, math.Max(nv, 2), s.Confidence)
+		rule := "t(1 − (1 − confidence)/2, " + next + " − 1) × sd / √" + next + " (the t interval)"
+		if s.Population > 0 && a >= s.Population {
+			rule, margin = "0: every member of the population responds (a census)", 0
+		}
+		ans.Margin = ptr(tr.add("margin", rule, margin, in("sd", sd), in("confidence", s.Confidence), in(next, nv)))
 	}
 	return nil
 }

@@ -50,3 +50,26 @@ func TestPrecisionIntervalInflation(t *testing.T) {
 		t.Errorf("no expected interval: %v", res.Result.ExpectedInterval)
 	}
 }
+
+// One mean to within ± margin by the t interval against R's scan
+// (intervals_mean.tsv, intervals_make.R: the first n ≥ 2 with
+// qt(1 − α/2, n − 1) × sd / √n within the margin), and the margin solved
+// back at that size.
+func TestPrecisionMeanAgainstReference(t *testing.T) {
+	rows := reftable.Load(t, "intervals_mean.tsv")
+	for _, row := range rows {
+		spec := fmt.Sprintf("version: 1\ndesign: cross-sectional\ngoal: precision\noutcome: continuous\nsd: %s\nmargin: %s\nconfidence: %s\n",
+			row["sd"], row["margin"], row["confidence"])
+		res := mustPlan(t, spec)
+		if got, want := res.Result.Total, row.I(t, "n"); got != want {
+			t.Errorf("%s: %d respondents, want %d (%s)", row["id"], got, want, row["source"])
+		}
+		back := mustPlan(t, spec+"solve: effect\ntotal: "+row["n"]+"\n")
+		if got, want := *back.Result.Margin, row.F(t, "hw_n"); math.Abs(got-want) > 1e-9*want {
+			t.Errorf("%s: margin %v at n, want %v", row["id"], got, want)
+		}
+	}
+	if len(rows) < 10 {
+		t.Errorf("only %d rows", len(rows))
+	}
+}

@@ -138,8 +138,8 @@ func (r *reader) selection(s *Spec) (sel selector, ok bool) {
 	case !r.keep(err):
 		ok = false
 	case !ok:
-	case precision && outcome != "binary":
-		r.refuse(r.errAt(oe, "%s does not apply to a precision survey, which estimates one prevalence; allowed: binary", outcome))
+	case precision && outcome != "binary" && outcome != "continuous":
+		r.refuse(r.errAt(oe, "%s does not apply to a precision survey, which estimates one prevalence or one mean; allowed: binary or continuous", outcome))
 		ok = false
 	case design == "case-control" && outcome != "binary":
 		r.refuse(r.errAt(oe, "%s does not apply to a case-control study, which compares exposure between cases and controls; allowed: binary", outcome))
@@ -539,11 +539,28 @@ func (r *reader) probability(key, what string) (float64, bool) {
 
 func (r *reader) buildPrecision(s *Spec) {
 	var err *SpecError
-	if s.Method, _, err = r.choice("method", "wald", "wald", "wilson", "clopper-pearson"); err != nil {
-		r.refuse(r.methodError(s))
-		s.Method = "wald"
+	methods := []string{"wald", "wald", "wilson", "clopper-pearson"}
+	if s.Outcome == "continuous" {
+		methods = []string{"t-interval", "t-interval"}
 	}
-	s.ExpectedPrevalence, _ = r.probability("expected_prevalence", "the prevalence you expect to estimate")
+	if s.Method, _, err = r.choice("method", methods[0], methods[1:]...); err != nil {
+		r.refuse(r.methodError(s))
+		s.Method = methods[0]
+	}
+	if s.Outcome == "continuous" {
+		sd, sde, err := r.number("sd")
+		switch {
+		case !r.keep(err):
+		case sde == nil:
+			r.missing("sd", "", "the standard deviation of the measurement, a number above 0")
+		case !inPositive(sd):
+			r.refuse(r.rangeErr(sde, sd, "a number above 0", inPositive))
+		default:
+			s.SD1, s.SD2, s.RawSD1, s.RawSD2 = sd, sd, sd, sd
+		}
+	} else {
+		s.ExpectedPrevalence, _ = r.probability("expected_prevalence", "the prevalence you expect to estimate")
+	}
 	s.Confidence, _ = r.rangeNum("confidence", 0.95, inConfidence)
 	pop, pe, err := r.whole("population")
 	popOK := r.keep(err)
@@ -554,6 +571,12 @@ func (r *reader) buildPrecision(s *Spec) {
 		s.Population = pop
 	}
 	r.marginKind = "fraction"
+	inMargin, allowedMargin := inSurveyMargin, "a number in (0, 0.5)"
+	if s.Outcome == "continuous" {
+		// A mean's margin is in the measurement's units.
+		r.marginKind = ""
+		inMargin, allowedMargin = func(x float64) bool { return x > 0 && x <= MaxStandardized*s.SD1 && !math.IsInf(x, 0) }, "a number above 0, in the measurement's units, at most 100 standard deviations"
+	}
 	switch s.Solve {
 	case "n":
 		m, me, err := r.number("margin")
@@ -561,10 +584,10 @@ func (r *reader) buildPrecision(s *Spec) {
 		case !r.keep(err):
 		case me == nil:
 			if !r.solveBad {
-				r.missing("margin", "required when solving n", "the half-width of the confidence interval, a number in (0, 0.5)")
+				r.missing("margin", "required when solving n", "the half-width of the confidence interval, "+allowedMargin)
 			}
-		case !inSurveyMargin(m):
-			r.refuse(r.rangeErr(me, m, "a number in (0, 0.5)", inSurveyMargin))
+		case !inMargin(m):
+			r.refuse(r.rangeErr(me, m, allowedMargin, inMargin))
 		default:
 			s.Margin = m
 		}

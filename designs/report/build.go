@@ -310,18 +310,30 @@ func answerSection(r *designs.Result) section {
 		if r.Attrition == 0 {
 			nonResponse = "no non-response expected"
 		}
+		// A prevalence's margin is in percentage points, a mean's in the
+		// measurement's units.
+		marginText := strings.TrimSuffix(pct(*a.Margin), "%") + " percentage points"
+		if r.Outcome == "continuous" {
+			marginText = num(*a.Margin)
+		}
 		if r.Solve == "n" {
 			unrounded := fmt.Sprintf("n₀ = %.2f, rounded up", a.N0)
+			if r.Method != "wald" {
+				unrounded = fmt.Sprintf("n₀ = %s, the smallest whole number for the margin", count(int(a.N0)))
+			}
 			if r.DesignEff != 1 || r.Spec.Population > 0 {
 				unrounded = fmt.Sprintf("unrounded %.2f; n₀ = %.2f before the design effect and the finite population correction", a.NStar, a.N0)
+			}
+			if e := a.ExpectedInterval; len(e) == 2 {
+				unrounded += fmt.Sprintf("; the interval expected at the expected prevalence: %s to %s", pct(e[0]), pct(e[1]))
 			}
 			s.bullets = append(s.bullets,
 				fmt.Sprintf("**Respondents needed: %s** (%s)", count(a.Total), unrounded),
 				fmt.Sprintf("**People to invite: %s**, %s", count(a.EnrolTotal), nonResponse),
-				fmt.Sprintf("Margin: ±%s at %s confidence", strings.TrimSuffix(pct(*a.Margin), "%")+" percentage points", pct(r.Spec.Confidence)))
+				fmt.Sprintf("Margin: ±%s at %s confidence", marginText, pct(r.Spec.Confidence)))
 		} else {
 			s.bullets = append(s.bullets,
-				fmt.Sprintf("**Achievable margin: ±%s percentage points** at %s confidence", strings.TrimSuffix(pct(*a.Margin), "%"), pct(r.Spec.Confidence)))
+				fmt.Sprintf("**Achievable margin: ±%s** at %s confidence", marginText, pct(r.Spec.Confidence)))
 			if r.Attrition > 0 {
 				s.bullets = append(s.bullets, fmt.Sprintf("Invited: %s; expected respondents after %s non-response: %s", count(a.EnrolTotal), pct(r.Attrition), count(a.Total)))
 			} else {

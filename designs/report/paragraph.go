@@ -899,6 +899,9 @@ func precisionParagraph(r *designs.Result) string {
 	s := r.Spec
 	a := r.Result
 	var b strings.Builder
+	if r.Outcome == "continuous" {
+		return meanPrecisionParagraph(r)
+	}
 	outcome := s.PrimaryOutcome
 	if outcome == "" {
 		outcome = "the binary outcome under study"
@@ -1019,4 +1022,49 @@ func detectableValues(d *designs.Detectable) []float64 {
 		}
 	}
 	return out
+}
+
+// meanPrecisionParagraph is the justification of a survey that estimates
+// one mean to within ± margin by the t interval.
+func meanPrecisionParagraph(r *designs.Result) string {
+	s := r.Spec
+	a := r.Result
+	var b strings.Builder
+	outcome := s.PrimaryOutcome
+	if outcome == "" {
+		outcome = "the measurement under study"
+	}
+	fmt.Fprintf(&b, "The primary outcome is %s, with a standard deviation of about %s%s; the survey will estimate its mean with a %s confidence interval (the t interval; Student 1908). ",
+		outcome, num(s.SD1), source(r, "sd"), pct(s.Confidence))
+	if r.Solve == "n" {
+		fmt.Fprintf(&b, "For a margin of ±%s, simple random sampling needs n₀ = %s respondents, the smallest for which t × sd / √n₀ is within the margin", num(s.Margin), count(int(a.N0)))
+		var changes []string
+		if r.DesignEff != 1 {
+			changes = append(changes, fmt.Sprintf("the design effect of %g%s raises this", r.DesignEff, source(r, "design_effect")))
+		}
+		if s.Population > 0 {
+			changes = append(changes, fmt.Sprintf("the finite population of %s lowers it", count(s.Population)))
+		}
+		if len(changes) > 0 {
+			fmt.Fprintf(&b, "; %s, to %.2f, rounded up to %s respondents. ", strings.Join(changes, " and "), a.NStar, count(a.Total))
+		} else {
+			b.WriteString(". ")
+		}
+		if r.Attrition > 0 {
+			fmt.Fprintf(&b, "Allowing for %s non-response%s, %s people will be invited.", pct(r.Attrition), source(r, "attrition"), count(a.EnrolTotal))
+		} else {
+			fmt.Fprintf(&b, "No non-response is expected, so %s people will be invited.", count(a.EnrolTotal))
+		}
+	} else {
+		fmt.Fprintf(&b, "Inviting %s people", count(a.EnrolTotal))
+		if r.Attrition > 0 {
+			fmt.Fprintf(&b, " and expecting %s non-response%s (%s respondents)", pct(r.Attrition), source(r, "attrition"), count(a.Total))
+		}
+		if r.DesignEff > 1 {
+			fmt.Fprintf(&b, ", with a design effect of %g%s", r.DesignEff, source(r, "design_effect"))
+		}
+		fmt.Fprintf(&b, ", the interval will reach about ±%s around the mean at that confidence level.", num(*a.Margin))
+	}
+	b.WriteString(" The margin assumes the standard deviation stated; the interval observed will be wider if the spread is larger.")
+	return b.String()
 }
