@@ -575,7 +575,11 @@ func (r *reader) buildPrecision(s *Spec) {
 	if s.Outcome == "continuous" {
 		// A mean's margin is in the measurement's units.
 		r.marginKind = ""
-		inMargin, allowedMargin = func(x float64) bool { return x > 0 && x <= MaxStandardized*s.SD1 && !math.IsInf(x, 0) }, "a number above 0, in the measurement's units, at most 100 standard deviations"
+		inMargin, allowedMargin = func(x float64) bool {
+			// Judged against the standard deviation only when it is known:
+			// a bad sd is reported once, not again through the margin.
+			return x > 0 && !math.IsInf(x, 0) && (s.SD1 == 0 || x <= MaxStandardized*s.SD1)
+		}, "a number above 0, in the measurement's units, at most 100 standard deviations"
 	}
 	switch s.Solve {
 	case "n":
