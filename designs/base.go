@@ -361,7 +361,7 @@ func (b *Base) prepareFast() {
 		case nested && head == "cluster":
 			ok = s.Cluster != nil && (given || f == fkClusterSizeCV)
 		case nested && head == "simulate":
-			ok = s.Simulate != nil
+			ok = s.Simulate != nil && s.Goal != "precision"
 		}
 		if ok {
 			b.fast[name] = f

@@ -293,7 +293,7 @@ var roles = map[string]designRoles{
 
 // precisionKeys are the keys of a cross-sectional survey that estimates one
 // prevalence.
-var precisionKeys = []string{"goal", "total", "expected_prevalence", "margin", "confidence", "population"}
+var precisionKeys = []string{"goal", "total", "expected_prevalence", "margin", "confidence", "population", "simulate"}
 
 // selector is what decides which keys a specification may use.
 type selector struct {

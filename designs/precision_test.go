@@ -1,6 +1,7 @@
 package designs
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"testing"
@@ -71,5 +72,45 @@ func TestPrecisionMeanAgainstReference(t *testing.T) {
 	}
 	if len(rows) < 10 {
 		t.Errorf("only %d rows", len(rows))
+	}
+}
+
+// A precision survey's simulation: how often the interval meets the margin
+// and how often it covers, against the exact rates R computes
+// (intervals_sim_prop.tsv, intervals_make.R: sum(dbinom(0:n) × success)),
+// within 4 Monte-Carlo standard errors of 20,000 replicates; the survey is
+// simulated at simulate.n.
+func TestVerifyPrecisionAgainstReference(t *testing.T) {
+	rows := reftable.Load(t, "intervals_sim_prop.tsv")
+	seen := 0
+	for _, row := range rows {
+		if row["method"] == "" || row.I(t, "n") > 5000 {
+			continue
+		}
+		spec := fmt.Sprintf("version: 1\ndesign: cross-sectional\ngoal: precision\nexpected_prevalence: %s\nmargin: %s\nconfidence: %s\nmethod: %s\nsimulate: {replicates: 20000, seed: 7, n: %s}\n",
+			row["p"], row["margin"], row["confidence"], row["method"], row["n"])
+		s, err := Parse("p.yaml", []byte(spec), nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		res, err := Plan(s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := Verify(context.Background(), s, res, SimOptions{}); err != nil {
+			t.Fatal(err)
+		}
+		got := res.Simulation.WithinMargin
+		if row["mode"] == "coverage" {
+			got = res.Simulation.Coverage
+		}
+		want := row.F(t, "exact")
+		if se := math.Sqrt(want * (1 - want) / 20000); got == nil || math.Abs(*got-want) > 4*se+1e-12 {
+			t.Errorf("%s %s: simulated %v, exact %v (4 SE %.4f) (%s)", row["id"], row["mode"], got, want, 4*se, row["source"])
+		}
+		seen++
+	}
+	if seen < 6 {
+		t.Errorf("only %d rows", seen)
 	}
 }

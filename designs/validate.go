@@ -607,6 +607,7 @@ func (r *reader) buildPrecision(s *Spec) {
 			r.refuse(r.errAt(r.get("total"), "%d is more than the population of %d; allowed: at most the population", s.Total, s.Population))
 		}
 	}
+	r.buildSimulate(s)
 }
 
 // methodError explains why the method key is refused.

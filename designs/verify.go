@@ -140,6 +140,17 @@ type Simulation struct {
 	Notes []string `json:"notes,omitempty"`
 	// Solved is the sample size found by simulation (solving n).
 	Solved *SimSolved `json:"solved,omitempty"`
+
+	// A precision survey's simulation: how often the interval's
+	// half-width is within the margin, and how often it covers the true
+	// value, each with its standard error and 95% score interval (the
+	// power fields are then null).
+	WithinMargin   *float64  `json:"within_margin,omitempty"`
+	WithinMarginSE *float64  `json:"within_margin_se,omitempty"`
+	WithinMarginCI []float64 `json:"within_margin_ci,omitempty"`
+	Coverage       *float64  `json:"coverage,omitempty"`
+	CoverageSE     *float64  `json:"coverage_se,omitempty"`
+	CoverageCI     []float64 `json:"coverage_ci,omitempty"`
 }
 
 // SimSolved is the smallest first-group size whose simulated power reaches
@@ -173,7 +184,7 @@ type simSetup struct {
 // asked for that many.
 func Verify(ctx context.Context, s *Spec, res *Result, o SimOptions) error {
 	if s.Goal == "precision" {
-		return &InputError{Msg: s.File + ": simulate: a precision survey has no test to simulate; allowed: a two-group comparison"}
+		return verifyPrecision(ctx, s, res, o)
 	}
 	if s.Solve == "effect" {
 		return &InputError{Msg: s.File + ": simulate: solve effect gives two detectable effects, not one to simulate; allowed: solve n or power (set the effect key to the detectable effect and solve: power to verify it)"}
@@ -529,4 +540,102 @@ func simSizes(s *Spec, n1 int) [2]int {
 		least = 2
 	}
 	return [2]int{n1, max(least, ceilTol(s.Ratio*float64(n1)))}
+}
+
+// verifyPrecision verifies a precision survey by simulation: it draws the
+// survey's data at the effective respondents (the analysable ones over the
+// design effect, a simple random sample; or simulate.n) many times,
+// computes the planned interval each time, and counts how often its
+// half-width is within the plan's margin and how often it covers the true
+// prevalence or mean. Both runs use the same seed, so they see the same
+// data sets.
+func verifyPrecision(ctx context.Context, s *Spec, res *Result, o SimOptions) error {
+	if err := o.check(s.File); err != nil {
+		return err
+	}
+	reps, seed := int64(10000), uint64(1)
+	// The simple random sample the plan is worth: n0 solving n; solving
+	// effect, the respondents with the finite population correction
+	// undone and divided by the design effect.
+	worth := res.Result.N0
+	if s.Solve == "effect" {
+		worth = float64(res.Result.Total)
+		if N := float64(s.Population); N > 0 && worth < N {
+			worth = worth * (N - 1) / (N - worth)
+		}
+		worth /= s.DesignEffect
+	}
+	n := int(math.Round(worth))
+	if s.Simulate != nil {
+		reps, seed = s.Simulate.Replicates, s.Simulate.Seed
+		if s.Simulate.N > 0 {
+			n = s.Simulate.N
+		}
+	}
+	if o.Replicates > 0 {
+		reps = o.Replicates
+	}
+	if o.SeedSet {
+		seed = o.Seed
+	}
+	maxReps := o.MaxReplicates
+	if maxReps == 0 {
+		maxReps = DefaultMaxReplicates
+	}
+	switch {
+	case reps > maxReps:
+		return &InputError{Msg: fmt.Sprintf("%s: simulate: %d replicates are more than the limit of %d; allowed: fewer, or raise --max-replicates", s.File, reps, maxReps)}
+	case reps < 100:
+		return &InputError{Msg: fmt.Sprintf("%s: simulate: %d replicates are too few; allowed: at least 100", s.File, reps)}
+	case res.Result.Margin == nil || *res.Result.Margin <= 0:
+		return &InputError{Msg: s.File + ": simulate: a census has no sampling error to simulate; allowed: a survey of part of the population"}
+	case n < 2:
+		return &InputError{Msg: s.File + ": simulate: fewer than two effective respondents; allowed: a larger survey"}
+	}
+	margin := *res.Result.Margin
+	notes := []string{}
+	if s.DesignEffect != 1 || s.Population > 0 {
+		notes = append(notes, fmt.Sprintf("The design effect and the finite population correction are simulated through the simple random sample from an infinite population that the plan is worth, %s respondents.", thousands(n)))
+	}
+	model := func(cover bool) power.Model {
+		if s.Outcome == "continuous" {
+			return power.NewMeanPrecisionSim(power.MeanPrecisionSim{N: n, SD: s.SD1, Confidence: s.Confidence, Margin: margin, Coverage: cover})
+		}
+		m, _ := power.ParseIntervalMethod(s.Method)
+		return power.NewProportionPrecisionSim(power.ProportionPrecisionSim{N: n, P: s.ExpectedPrevalence, Confidence: s.Confidence, Interval: m, Margin: margin, Coverage: cover})
+	}
+	workers, capNotes, err := o.workerCount(s.File, power.WorkerBytes(model(false)), [2]int{n, n})
+	if err != nil {
+		return err
+	}
+	sim := &Simulation{Test: s.Method, TestName: MethodByID(s.Method).Name, Replicates: reps, Seed: seed, N: []int{n},
+		Notes: slices.Concat(notes, capNotes)}
+	res.Simulation = sim
+	run := func(label string, cover bool) (power.SimResult, error) {
+		c := power.SimConfig{Replicates: reps, Seed: seed, Workers: workers}
+		if o.Progress != nil {
+			c.Progress = func(done int64) { o.Progress(label, done, reps) }
+		}
+		return power.Simulate(ctx, model(cover), c)
+	}
+	r1, err1 := run("within the margin", false)
+	sim.Replicates = r1.Replicates
+	if r1.Replicates > 0 {
+		lo, hi := r1.CI()
+		sim.WithinMargin, sim.WithinMarginSE, sim.WithinMarginCI = ptr(r1.Power()), ptr(r1.SE()), []float64{lo, hi}
+	}
+	if err1 != nil {
+		sim.Partial = true
+		return ErrStopped
+	}
+	r2, err2 := run("coverage", true)
+	if r2.Replicates > 0 {
+		lo, hi := r2.CI()
+		sim.Coverage, sim.CoverageSE, sim.CoverageCI = ptr(r2.Power()), ptr(r2.SE()), []float64{lo, hi}
+	}
+	if err2 != nil {
+		sim.Partial = true
+		return ErrStopped
+	}
+	return nil
 }

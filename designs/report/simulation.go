@@ -110,6 +110,9 @@ func simulationSection(r *designs.Result) *section {
 		return nil
 	}
 	s := &section{heading: "Verification by simulation"}
+	if v.WithinMargin != nil || (r.Goal == "precision" && v.Partial) {
+		return precisionSimulation(r, s)
+	}
 	sizes := count(v.N[0])
 	if len(v.N) == 2 {
 		sizes = fmt.Sprintf("%s and %s", count(v.N[0]), count(v.N[1]))
@@ -160,5 +163,32 @@ func simulationSection(r *designs.Result) *section {
 		s.bullets = append(s.bullets, line)
 	}
 	s.bullets = append(s.bullets, v.Notes...)
+	return s
+}
+
+// precisionSimulation reports a precision survey's simulation: how often
+// the interval met the margin and how often it covered the truth.
+func precisionSimulation(r *designs.Result, s *section) *section {
+	v := r.Simulation
+	truth := "the true prevalence"
+	margin := strings.TrimSuffix(pct(*r.Result.Margin), "%") + " percentage points"
+	if r.Outcome == "continuous" {
+		truth, margin = "the true mean", num(*r.Result.Margin)
+	}
+	if v.Partial {
+		s.paras = append(s.paras, fmt.Sprintf("**Partial:** the simulation was stopped after %s replicates; the figures below rest on those alone.", count(int(v.Replicates))))
+	}
+	if v.WithinMargin != nil {
+		d := simDecimals(*v.WithinMarginSE, v.WithinMarginCI)
+		s.bullets = append(s.bullets, fmt.Sprintf("Surveys of %s respondents whose %s has half-width within ±%s (%s replicates, seed %d): %s",
+			count(v.N[0]), v.TestName, margin, count(int(v.Replicates)), v.Seed, estimateText(*v.WithinMargin, *v.WithinMarginSE, v.WithinMarginCI, v.Replicates, d, true, true)))
+	}
+	if v.Coverage != nil {
+		d := simDecimals(*v.CoverageSE, v.CoverageCI)
+		s.bullets = append(s.bullets, fmt.Sprintf("Intervals covering %s, against the nominal %s: %s", truth, pct(r.Spec.Confidence),
+			estimateText(*v.Coverage, *v.CoverageSE, v.CoverageCI, v.Replicates, d, false, true)))
+	}
+	s.bullets = append(s.bullets, "The plan is sized at the expected value: about half the surveys give an interval a little wider than the margin and half a little narrower; the share within the margin says how far the plan can be relied on.")
+	s.bullets = append(s.bullets, sentences(v.Notes)...)
 	return s
 }

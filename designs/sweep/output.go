@@ -152,21 +152,23 @@ func gridSize(g Grid) int {
 
 // The figure columns of a sweep's table (README, "Sweeping assumptions").
 const (
-	ColAnalysable       = "analysable"        // one group (a precision survey, a paired design): analysable size
-	ColAnalysableFirst  = "analysable_first"  // analysable size of the first group
-	ColAnalysableSecond = "analysable_second" // analysable size of the second group
-	ColAnalysableTotal  = "analysable_total"  // analysable total (every arm)
-	ColEnrolTotal       = "enrol_total"       // enrolment total, after attrition
-	ColAchievedPower    = "achieved_power"    // power at the analysable sizes (solve n or power)
-	ColDetectableLower  = "detectable_lower"  // smallest detectable effect below no difference (solve effect)
-	ColDetectableUpper  = "detectable_upper"  // smallest detectable effect above no difference (solve effect)
-	ColAchievedMargin   = "achieved_margin"   // a precision survey's margin at its size (solve effect)
-	ColEventsRequired   = "events_required"   // time-to-event, solve n: events required
-	ColClustersFirst    = "clusters_first"    // cluster trials: clusters in the first arm
-	ColClustersSecond   = "clusters_second"   // cluster trials: clusters in the second arm
-	ColSimulatedPower   = "simulated_power"   // simulated sweeps: simulated power
-	ColSimulatedSE      = "simulated_se"      // simulated sweeps: its Monte-Carlo standard error
-	ColError            = "error"             // why the point could not be planned (empty when planned)
+	ColAnalysable       = "analysable"              // one group (a precision survey, a paired design): analysable size
+	ColAnalysableFirst  = "analysable_first"        // analysable size of the first group
+	ColAnalysableSecond = "analysable_second"       // analysable size of the second group
+	ColAnalysableTotal  = "analysable_total"        // analysable total (every arm)
+	ColEnrolTotal       = "enrol_total"             // enrolment total, after attrition
+	ColAchievedPower    = "achieved_power"          // power at the analysable sizes (solve n or power)
+	ColDetectableLower  = "detectable_lower"        // smallest detectable effect below no difference (solve effect)
+	ColDetectableUpper  = "detectable_upper"        // smallest detectable effect above no difference (solve effect)
+	ColAchievedMargin   = "achieved_margin"         // a precision survey's margin at its size (solve effect)
+	ColEventsRequired   = "events_required"         // time-to-event, solve n: events required
+	ColClustersFirst    = "clusters_first"          // cluster trials: clusters in the first arm
+	ColClustersSecond   = "clusters_second"         // cluster trials: clusters in the second arm
+	ColSimulatedPower   = "simulated_power"         // simulated sweeps: simulated power
+	ColSimulatedSE      = "simulated_se"            // simulated sweeps: its Monte-Carlo standard error
+	ColWithinMargin     = "simulated_within_margin" // simulated precision sweeps: the share of surveys whose interval meets the margin
+	ColCoverage         = "simulated_coverage"      // simulated precision sweeps: the share of intervals covering the truth
+	ColError            = "error"                   // why the point could not be planned (empty when planned)
 )
 
 // Columns returns the table's columns for a sweep of s: the varied keys as
@@ -197,7 +199,10 @@ func Columns(s *designs.Spec, keys []string, simulated bool, methods []string) [
 	if s.Cluster != nil {
 		cols = append(cols, ColClustersFirst, ColClustersSecond)
 	}
-	if simulated {
+	switch {
+	case simulated && s.Goal == "precision":
+		cols = append(cols, ColWithinMargin, ColCoverage)
+	case simulated:
 		cols = append(cols, ColSimulatedPower, ColSimulatedSE)
 	}
 	for _, m := range methods {
@@ -530,6 +535,17 @@ func figure(name string) (func(r *Record) Value, bool) {
 		return answer(func(a *designs.Answer) Value { return nth(a.Clusters, 0) }), true
 	case ColClustersSecond:
 		return answer(func(a *designs.Answer) Value { return nth(a.Clusters, 1) }), true
+	case ColWithinMargin, ColCoverage:
+		cover := name == ColCoverage
+		return func(r *Record) Value {
+			if r.Simulation == nil {
+				return Value{}
+			}
+			if cover {
+				return number(r.Simulation.Coverage)
+			}
+			return number(r.Simulation.WithinMargin)
+		}, true
 	case ColSimulatedPower, ColSimulatedSE:
 		se := name == ColSimulatedSE
 		return func(r *Record) Value {
