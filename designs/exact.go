@@ -12,7 +12,7 @@ import (
 // why not.
 func exactFits(s *Spec) error {
 	switch {
-	case s.Outcome != "binary" || s.Goal == "precision":
+	case s.Outcome != "binary" || s.Goal == "precision" || s.Goal == "accuracy":
 		return fmt.Errorf("exact power serves two groups with a binary outcome")
 	case s.Hypothesis != "superiority":
 		return fmt.Errorf("exact power serves superiority tests; for %s use the closed form or simulate", s.Hypothesis)

@@ -110,7 +110,7 @@ var specKeys = map[string]keyInfo{
 	"title":           {kindText, "a line of text"},
 	"design":          {kindText, "cohort, case-control, trial or cross-sectional"},
 	"outcome":         {kindText, "binary, continuous, time-to-event or rate"},
-	"goal":            {kindText, "comparison or precision"},
+	"goal":            {kindText, "comparison, precision or accuracy"},
 	"solve":           {kindText, "n, power or effect"},
 	"method":          {kindText, "a method of `enough methods` that serves the design"},
 	"test":            {kindText, "chi-square, chi-square-yates, fisher or z-unpooled"},
@@ -166,6 +166,9 @@ var specKeys = map[string]keyInfo{
 	"unexposed_rate":       {kindNumber, "events per unit of person-time among the unexposed, a number from 1e-9 to 1e6"},
 	"rate_ratio":           {kindNumber, allowedRatio},
 	"exposure":             {kindText, "groups or continuous"},
+	"sensitivity":          {kindNumber, allowedRisk},
+	"specificity":          {kindNumber, allowedRisk},
+	"condition_prevalence": {kindNumber, allowedRisk},
 	"odds_ratio_per_sd":    {kindNumber, allowedRatio},
 	"event_rate":           {kindNumber, allowedRisk},
 	"person_time":          {kindNumber, "the person-time each participant is followed, in time_unit, " + allowedTime},
@@ -315,6 +318,11 @@ func keysFor(sel selector) map[string]bool {
 		}
 	}
 	add(commonKeys...)
+	if sel.design == "cross-sectional" && sel.goal == "accuracy" {
+		add("total", "sensitivity", "specificity", "condition_prevalence", "margin", "confidence", "simulate", "goal")
+		delete(ok, "design_effect")
+		return ok
+	}
 	if sel.design == "cross-sectional" && sel.goal == "precision" {
 		add(precisionKeys...)
 		if sel.outcome == "continuous" {

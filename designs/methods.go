@@ -196,6 +196,14 @@ var Methods = []MethodInfo{
 		Note:        "size to estimate one prevalence within a margin; finite population correction and design effect",
 	},
 	{
+		ID: "buderer", Short: "Buderer 1996", Name: "Buderer, sensitivity and specificity to a margin",
+		Citation:    "Buderer NMF (1996). Statistical methodology: I. Incorporating the prevalence of disease into the sample size calculation for sensitivity and specificity. Acad Emerg Med 3:895-900",
+		Designs:     []string{"cross-sectional"},
+		Goal:        "accuracy",
+		DefaultTest: "",
+		Note:        "the participants to estimate sensitivity and specificity within a margin (Wald intervals), given the prevalence of the condition: the larger of z² Se(1 − Se)/(margin² prevalence) and z² Sp(1 − Sp)/(margin² (1 − prevalence))",
+	},
+	{
 		ID: "t-interval", Short: "Student 1908", Name: "t interval for a mean",
 		Citation:    "Student (1908). The probable error of a mean. Biometrika 6:1-25",
 		Designs:     []string{"cross-sectional"},

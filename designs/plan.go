@@ -68,6 +68,19 @@ func Plan(s *Spec) (*Result, error) {
 	if s.Goal == "precision" {
 		return res, planPrecision(s, res)
 	}
+	if s.Goal == "accuracy" {
+		tr := &trail{}
+		defer func() { res.Steps = tr.steps }()
+		if err := accuracyCore(s, &res.Result, tr); err != nil {
+			return res, err
+		}
+		a := res.Result
+		if d := float64(a.Total) * s.ConditionPrevalence; d < 30 {
+			res.Warnings = append(res.Warnings, fmt.Sprintf("About %.1f of those tested are expected to have the condition: with so few the Wald interval of sensitivity is unreliable; check by simulation (enough simulate).", d))
+		}
+		res.Notes = append(res.Notes, "The prevalence of the condition is that among those tested; a sample enriched for the condition (cases and non-cases recruited separately) changes it, and with it the size.")
+		return res, nil
+	}
 	res.Alpha, res.Sides, res.Ratio = ptr(s.Alpha), s.Sides, ptr(s.Ratio)
 	ro := roles[s.Design]
 	if s.Pairing == "crossover" {
@@ -759,7 +772,7 @@ func designFigures(s *Spec, ans *Answer, sv *solved) {
 // method, nor for a precision survey.
 func OtherMethods(s *Spec) []*MethodInfo {
 	others := []*MethodInfo{}
-	if s.Cluster != nil || s.Goal == "precision" {
+	if s.Cluster != nil || s.Goal == "precision" || s.Goal == "accuracy" {
 		return others
 	}
 	for i := range Methods {
@@ -1337,6 +1350,45 @@ func meanPrecisionCore(s *Spec, ans *Answer, tr *trail) error {
 			rule, margin = "0: every member of the population responds (a census)", 0
 		}
 		ans.Margin = ptr(tr.add("margin", rule, margin, in("sd", sd), in("confidence", s.Confidence), in(next, nv)))
+	}
+	return nil
+}
+
+// accuracyCore computes a study of diagnostic accuracy (Buderer 1996): the
+// participants to estimate sensitivity and specificity within the margin
+// by Wald intervals, given the prevalence of the condition among those
+// tested (solving n: the larger of the two sizes, then non-response), or
+// the margin each reaches with the participants given (solving effect).
+func accuracyCore(s *Spec, ans *Answer, tr *trail) error {
+	da := power.DiagnosticAccuracy{Sensitivity: s.Sensitivity, Specificity: s.Specificity, Prevalence: s.ConditionPrevalence, Confidence: s.Confidence}
+	z := power.ZAlpha(1-s.Confidence, 2)
+	se, sp, prev := s.Sensitivity, s.Specificity, s.ConditionPrevalence
+	tr.add("z", "the standard normal quantile at (1 + confidence) / 2", z, in("confidence", s.Confidence))
+	switch s.Solve {
+	case "n":
+		nSe, nSp := da.N(s.Margin)
+		if err := checkSizes(s, nSe, nSp, math.Max(nSe, nSp)/(1-s.Attrition)); err != nil {
+			return err
+		}
+		nSe = tr.add("n_sensitivity", "z² × sensitivity × (1 − sensitivity) / (margin² × condition_prevalence) (Buderer 1996)", nSe, in("z", z), in("sensitivity", se), in("margin", s.Margin), in("condition_prevalence", prev))
+		nSp = tr.add("n_specificity", "z² × specificity × (1 − specificity) / (margin² × (1 − condition_prevalence)) (Buderer 1996)", nSp, in("z", z), in("specificity", sp), in("margin", s.Margin), in("condition_prevalence", prev))
+		a := tr.addInt("analysable_first", "ceil(max(n_sensitivity, n_specificity)): the participants needed", ceilTol(math.Max(nSe, nSp)), in("n_sensitivity", nSe), in("n_specificity", nSp))
+		ans.NSensitivity, ans.NSpecificity, ans.NStar = ptr(nSe), ptr(nSp), math.Max(nSe, nSp)
+		ans.N, ans.Total = append(ans.N[:0], a), a
+		ans.Enrol = append(ans.Enrol[:0], tr.addInt("enrol_first", "ceil(analysable_first / (1 − attrition)): the people to test, allowing for non-response", ceilTol(float64(a)/(1-s.Attrition)), inInt("analysable_first", a), in("attrition", s.Attrition)))
+		ans.EnrolTotal = ans.Enrol[0]
+		ans.Margin = ptr(s.Margin)
+	case "effect":
+		a := tr.addInt("analysable_first", "floor(total × (1 − attrition)): the participants expected", floorTol(float64(s.Total)*(1-s.Attrition)), inInt("total", s.Total), in("attrition", s.Attrition))
+		if a < 1 {
+			return &SpecError{File: s.File, Key: "total", Msg: "after non-response nobody is left; allowed: a larger total"}
+		}
+		ans.N, ans.Total = append(ans.N[:0], a), a
+		ans.Enrol, ans.EnrolTotal = append(ans.Enrol[:0], s.Total), s.Total
+		mSe := tr.add("margin_sensitivity", "z × sqrt(sensitivity × (1 − sensitivity) / (analysable_first × condition_prevalence)) (Buderer 1996)", z*math.Sqrt(se*(1-se)/(float64(a)*prev)), in("z", z), in("sensitivity", se), inInt("analysable_first", a), in("condition_prevalence", prev))
+		mSp := tr.add("margin_specificity", "z × sqrt(specificity × (1 − specificity) / (analysable_first × (1 − condition_prevalence))) (Buderer 1996)", z*math.Sqrt(sp*(1-sp)/(float64(a)*(1-prev))), in("z", z), in("specificity", sp), inInt("analysable_first", a), in("condition_prevalence", prev))
+		ans.MarginSensitivity, ans.MarginSpecificity = ptr(mSe), ptr(mSp)
+		ans.Margin = ptr(math.Max(mSe, mSp))
 	}
 	return nil
 }

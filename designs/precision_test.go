@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"strings"
 	"testing"
 
 	"enough/power/reftable"
@@ -112,5 +113,47 @@ func TestVerifyPrecisionAgainstReference(t *testing.T) {
 	}
 	if seen < 6 {
 		t.Errorf("only %d rows", seen)
+	}
+}
+
+// Diagnostic accuracy against R (intervals_buderer.tsv, intervals_make.R:
+// Buderer 1996 written with qnorm): both unrounded sizes, and the
+// participants needed, ceil of the larger.
+func TestAccuracyAgainstReference(t *testing.T) {
+	rows := reftable.Load(t, "intervals_buderer.tsv")
+	for _, row := range rows {
+		spec := fmt.Sprintf("version: 1\ndesign: cross-sectional\ngoal: accuracy\nsensitivity: %s\nspecificity: %s\ncondition_prevalence: %s\nmargin: %s\nconfidence: %s\n",
+			row["sens"], row["spec"], row["prevalence"], row["margin"], row["confidence"])
+		res := mustPlan(t, spec)
+		a := res.Result
+		nSe, nSp := row.F(t, "n_sens"), row.F(t, "n_spec")
+		if math.Abs(*a.NSensitivity-nSe) > 1e-9*nSe || math.Abs(*a.NSpecificity-nSp) > 1e-9*nSp {
+			t.Errorf("%s: sizes %v and %v, want %v and %v (%s)", row["id"], *a.NSensitivity, *a.NSpecificity, nSe, nSp, row["source"])
+		}
+		if want := int(math.Ceil(math.Max(nSe, nSp) - 1e-9)); a.Total != want {
+			t.Errorf("%s: %d participants, want %d", row["id"], a.Total, want)
+		}
+	}
+	if len(rows) < 3 {
+		t.Errorf("only %d rows", len(rows))
+	}
+}
+
+// The refusals of a study of diagnostic accuracy, one line each.
+func TestAccuracyRefused(t *testing.T) {
+	base := "version: 1\ndesign: cross-sectional\ngoal: accuracy\nsensitivity: 0.9\nspecificity: 0.8\ncondition_prevalence: 0.2\n"
+	for _, tt := range []struct{ name, spec, want string }{
+		{"no margin", base, "margin"},
+		{"sensitivity 1", "version: 1\ndesign: cross-sectional\ngoal: accuracy\nsensitivity: 1\nspecificity: 0.8\ncondition_prevalence: 0.2\nmargin: 0.05\n", "sensitivity"},
+		{"continuous", base + "outcome: continuous\nmargin: 0.05\n", "binary"},
+		{"trial", "version: 1\ndesign: trial\ngoal: accuracy\n", "goal"},
+		{"power", base + "margin: 0.05\npower: 0.8\n", "power"},
+	} {
+		t.Run(tt.name, func(t *testing.T) {
+			_, err := Parse("a.yaml", []byte(tt.spec), nil)
+			if err == nil || !strings.Contains(err.Error(), tt.want) {
+				t.Fatalf("error %v, want one containing %q", err, tt.want)
+			}
+		})
 	}
 }

@@ -28,7 +28,7 @@ func Quick(s *Spec) (*Answer, error) {
 // allocating them: a sweep gives each point its room in blocks it
 // allocates at once. On an error, a holds what was computed before it.
 func QuickInto(s *Spec, a *Answer) error {
-	if s.Solve == "effect" || s.Goal == "precision" {
+	if s.Solve == "effect" || s.Goal == "precision" || s.Goal == "accuracy" {
 		a.AchievedPower = nil // no power to put in the room
 	}
 	switch {
@@ -44,6 +44,8 @@ func QuickInto(s *Spec, a *Answer) error {
 		return nil
 	case s.Goal == "precision":
 		return precisionCore(s, a, nil)
+	case s.Goal == "accuracy":
+		return accuracyCore(s, a, nil)
 	}
 	var main solved
 	_, err := solveCore(s, MethodByID(s.Method), a, nil, &main)

@@ -105,6 +105,14 @@ type Answer struct {
 	Margin           *float64  `json:"margin,omitempty"`
 	ExpectedInterval []float64 `json:"expected_interval,omitempty"`
 
+	// Diagnostic accuracy: the unrounded sizes for sensitivity and for
+	// specificity (solving n; the larger drives the total), or the margins
+	// each reaches (solving effect; Margin is then the larger).
+	NSensitivity      *float64 `json:"n_sensitivity,omitempty"`
+	NSpecificity      *float64 `json:"n_specificity,omitempty"`
+	MarginSensitivity *float64 `json:"margin_sensitivity,omitempty"`
+	MarginSpecificity *float64 `json:"margin_specificity,omitempty"`
+
 	// Person-time cohorts: the person-time of each group and the events
 	// expected in each (the total in ExpectedEvents), at the analysable
 	// sizes.

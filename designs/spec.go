@@ -91,6 +91,10 @@ type Spec struct {
 	EventRate          float64
 	ORPerSD            float64
 
+	// Diagnostic accuracy (goal: accuracy): the expected sensitivity and
+	// specificity and the prevalence of the condition in the sample.
+	Sensitivity, Specificity, ConditionPrevalence float64
+
 	// Precision surveys.
 	ExpectedPrevalence float64
 	// Margin is the half-width of a precision survey's interval, or the

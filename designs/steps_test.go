@@ -100,6 +100,20 @@ func replayStep(st Step) (float64, bool) {
 		return g(parts[0]) * g(parts[1]), true
 	case rule == "analysable_first / design_effect" && st.Name == "effective_respondents":
 		return g("analysable_first") / g("design_effect"), true
+	case strings.HasPrefix(rule, "z² × sensitivity × (1 − sensitivity) / (margin² × condition_prevalence)"):
+		return g("z") * g("z") * g("sensitivity") * (1 - g("sensitivity")) / (g("margin") * g("margin") * g("condition_prevalence")), true
+	case strings.HasPrefix(rule, "z² × specificity × (1 − specificity) / (margin² × (1 − condition_prevalence))"):
+		return g("z") * g("z") * g("specificity") * (1 - g("specificity")) / (g("margin") * g("margin") * (1 - g("condition_prevalence"))), true
+	case strings.HasPrefix(rule, "ceil(max(n_sensitivity, n_specificity))"):
+		return up(math.Max(g("n_sensitivity"), g("n_specificity"))), true
+	case strings.HasPrefix(rule, "z × sqrt(sensitivity × (1 − sensitivity) / (analysable_first × condition_prevalence))"):
+		return g("z") * math.Sqrt(g("sensitivity")*(1-g("sensitivity"))/(g("analysable_first")*g("condition_prevalence"))), true
+	case strings.HasPrefix(rule, "z × sqrt(specificity × (1 − specificity) / (analysable_first × (1 − condition_prevalence)))"):
+		return g("z") * math.Sqrt(g("specificity")*(1-g("specificity"))/(g("analysable_first")*(1-g("condition_prevalence")))), true
+	case strings.HasPrefix(rule, "floor(total × (1 − attrition)): the participants expected"):
+		return down(g("total") * (1 - g("attrition"))), true
+	case strings.HasPrefix(rule, "ceil(analysable_first / (1 − attrition)): the people to test"):
+		return up(g("analysable_first") / (1 - g("attrition"))), true
 	case rule == "analysable_first × discordant_per_set":
 		return g("analysable_first") * g("discordant_per_set"), true
 	case rule == "controls_per_case × analysable_first":

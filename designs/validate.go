@@ -51,7 +51,7 @@ func (r *reader) build() *Spec {
 	allowed := keysFor(sel)
 	r.reportUnknown(&sel, allowed)
 	r.reportMisplaced(s, sel, allowed)
-	precision := s.Goal == "precision"
+	precision := s.Goal == "precision" || s.Goal == "accuracy"
 
 	// solve
 	solves := []string{"n", "power", "effect"}
@@ -88,9 +88,12 @@ func (r *reader) build() *Spec {
 	s.Attrition, _ = r.rangeNum("attrition", 0, inFraction0)
 	s.DesignEffect, _ = r.rangeNum("design_effect", 1, inDesignEffect)
 
-	if precision {
+	switch {
+	case s.Goal == "accuracy":
+		r.buildAccuracy(s)
+	case precision:
 		r.buildPrecision(s)
-	} else {
+	default:
 		r.buildComparison(s)
 	}
 	r.checkSources()
@@ -122,7 +125,7 @@ func (r *reader) selection(s *Spec) (sel selector, ok bool) {
 	goal := "comparison"
 	if ge := r.entries["goal"]; ge != nil && ok && design != "cross-sectional" {
 		r.refuse(r.errAt(ge, "applies only to design cross-sectional; a %s study always compares two groups", design))
-	} else if g, _, err := r.choice("goal", "comparison", "comparison", "precision"); r.keep(err) {
+	} else if g, _, err := r.choice("goal", "comparison", "comparison", "precision", "accuracy"); r.keep(err) {
 		goal = g
 	} else {
 		ok = false
@@ -130,7 +133,7 @@ func (r *reader) selection(s *Spec) (sel selector, ok bool) {
 	if design == "cross-sectional" {
 		s.Goal = goal
 	}
-	precision := s.Goal == "precision"
+	precision := s.Goal == "precision" || s.Goal == "accuracy"
 	r.precision = precision
 
 	outcome, oe, err := r.choice("outcome", "binary", "binary", "continuous", "time-to-event", "rate")
@@ -138,6 +141,9 @@ func (r *reader) selection(s *Spec) (sel selector, ok bool) {
 	case !r.keep(err):
 		ok = false
 	case !ok:
+	case s.Goal == "accuracy" && outcome != "binary":
+		r.refuse(r.errAt(oe, "%s does not apply to a study of diagnostic accuracy, whose test result and condition are both yes or no; allowed: binary", outcome))
+		ok = false
 	case precision && outcome != "binary" && outcome != "continuous":
 		r.refuse(r.errAt(oe, "%s does not apply to a precision survey, which estimates one prevalence or one mean; allowed: binary or continuous", outcome))
 		ok = false
@@ -535,6 +541,47 @@ func (r *reader) probability(key, what string) (float64, bool) {
 		return 0, false
 	}
 	return x, true
+}
+
+// buildAccuracy reads a study of diagnostic accuracy: the expected
+// sensitivity and specificity, the prevalence of the condition among those
+// tested, the margin (solving n) or the total (solving effect) and the
+// confidence.
+func (r *reader) buildAccuracy(s *Spec) {
+	r.marginKind = "fraction"
+	var err *SpecError
+	if s.Method, _, err = r.choice("method", "buderer", "buderer"); err != nil {
+		r.refuse(r.methodError(s))
+		s.Method = "buderer"
+	}
+	s.Sensitivity, _ = r.probability("sensitivity", "the sensitivity the test is expected to have")
+	s.Specificity, _ = r.probability("specificity", "the specificity the test is expected to have")
+	s.ConditionPrevalence, _ = r.probability("condition_prevalence", "the prevalence of the condition among those to be tested")
+	s.Confidence, _ = r.rangeNum("confidence", 0.95, inConfidence)
+	switch s.Solve {
+	case "n":
+		m, me, err := r.number("margin")
+		switch {
+		case !r.keep(err):
+		case me == nil:
+			if !r.solveBad {
+				r.missing("margin", "required when solving n", "the half-width of the intervals of sensitivity and specificity, a number in (0, 0.5)")
+			}
+		case !inSurveyMargin(m):
+			r.refuse(r.rangeErr(me, m, "a number in (0, 0.5)", inSurveyMargin))
+		default:
+			s.Margin = m
+		}
+		if r.get("total") != nil {
+			s.Ignored = append(s.Ignored, "total is ignored when solving n")
+		}
+	case "effect":
+		r.size(s, "total", "required when solving effect", "the number of people to be tested")
+		if r.get("margin") != nil {
+			s.Ignored = append(s.Ignored, "margin is ignored when solving effect (the margins are what is solved)")
+		}
+	}
+	r.buildSimulate(s)
 }
 
 func (r *reader) buildPrecision(s *Spec) {

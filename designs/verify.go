@@ -183,7 +183,7 @@ type simSetup struct {
 // (marked partial): the first ones of the run, exactly those of a run
 // asked for that many.
 func Verify(ctx context.Context, s *Spec, res *Result, o SimOptions) error {
-	if s.Goal == "precision" {
+	if s.Goal == "precision" || s.Goal == "accuracy" {
 		return verifyPrecision(ctx, s, res, o)
 	}
 	if s.Solve == "effect" {
@@ -558,7 +558,9 @@ func verifyPrecision(ctx context.Context, s *Spec, res *Result, o SimOptions) er
 	// effect, the respondents with the finite population correction
 	// undone and divided by the design effect.
 	worth := res.Result.N0
-	if s.Solve == "effect" {
+	if s.Goal == "accuracy" {
+		worth = float64(res.Result.Total)
+	} else if s.Solve == "effect" {
 		worth = float64(res.Result.Total)
 		if N := float64(s.Population); N > 0 && worth < N {
 			worth = worth * (N - 1) / (N - worth)
@@ -594,10 +596,16 @@ func verifyPrecision(ctx context.Context, s *Spec, res *Result, o SimOptions) er
 	}
 	margin := *res.Result.Margin
 	notes := []string{}
-	if s.DesignEffect != 1 || s.Population > 0 {
+	if s.Goal == "accuracy" {
+		notes = append(notes, "Each simulated study draws those with the condition, then the true positives and true negatives; it counts as within the margin when both Wald intervals are, and as covering when both cover (a study with nobody, or everybody, with the condition fails both).")
+	} else if s.DesignEffect != 1 || s.Population > 0 {
 		notes = append(notes, fmt.Sprintf("The design effect and the finite population correction are simulated through the simple random sample from an infinite population that the plan is worth, %s respondents.", thousands(n)))
 	}
 	model := func(cover bool) power.Model {
+		if s.Goal == "accuracy" {
+			return power.NewDiagnosticPrecisionSim(power.DiagnosticPrecisionSim{DiagnosticAccuracy: power.DiagnosticAccuracy{Sensitivity: s.Sensitivity,
+				Specificity: s.Specificity, Prevalence: s.ConditionPrevalence, Confidence: s.Confidence}, N: n, Margin: margin, Coverage: cover})
+		}
 		if s.Outcome == "continuous" {
 			return power.NewMeanPrecisionSim(power.MeanPrecisionSim{N: n, SD: s.SD1, Confidence: s.Confidence, Margin: margin, Coverage: cover})
 		}

@@ -49,7 +49,7 @@ func methodObjects() []methodObject {
 			o.Outcome = "binary"
 		}
 		switch {
-		case m.Goal == "precision":
+		case m.Goal == "precision" || m.Goal == "accuracy":
 			o.Hypotheses = []string{}
 		case o.Hypotheses == nil:
 			o.Hypotheses = []string{"superiority"}

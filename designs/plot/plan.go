@@ -44,6 +44,8 @@ func PlanFrom(res *designs.Result, src *Source) (*plot.Plot, error) {
 	}
 	s := res.Spec
 	switch {
+	case s.Goal == "accuracy":
+		return nil, errors.New("a study of diagnostic accuracy has no curve to draw yet")
 	case s.Goal == "precision":
 		return marginCurve(res)
 	case s.Solve == "effect":

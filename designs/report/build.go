@@ -31,6 +31,9 @@ var keyLabels = map[string]string{
 	"matching.controls_per_case":    "controls matched to each case",
 	"unexposed_rate":                "rate among the unexposed (events per unit of person-time)",
 	"exposure":                      "exposure",
+	"sensitivity":                   "expected sensitivity",
+	"specificity":                   "expected specificity",
+	"condition_prevalence":          "prevalence of the condition among those tested",
 	"event_rate":                    "proportion with the outcome at the exposure's mean",
 	"odds_ratio_per_sd":             "odds ratio per standard deviation of the exposure",
 	"rate_ratio":                    "rate ratio",
@@ -197,6 +200,8 @@ func build(r *designs.Result) *document {
 // "events over person-time".
 func outcomeWords(r *designs.Result) string {
 	switch {
+	case r.Goal == "accuracy":
+		return "sensitivity and specificity"
 	case r.Outcome == "rate":
 		return "events over person-time"
 	case r.Spec != nil && r.Spec.ContinuousExposure:
@@ -217,6 +222,8 @@ func studyKind(r *designs.Result) string {
 		return "paired (before-after or matched) study"
 	case r.Spec.Matched:
 		return fmt.Sprintf("matched case-control study (1:%d matched sets)", r.Spec.Controls)
+	case r.Goal == "accuracy":
+		return "study of diagnostic accuracy"
 	case r.Spec.Cluster != nil:
 		return "cluster-randomised trial"
 	}
@@ -257,7 +264,7 @@ func assumptionSection(r *designs.Result) section {
 			src = "not stated"
 		}
 		label := keyLabel(r, a.Key)
-		if a.Key == "margin" && r.Goal != "precision" {
+		if a.Key == "margin" && r.Goal != "precision" && r.Goal != "accuracy" {
 			label = r.Spec.Hypothesis + " margin"
 		}
 		rows = append(rows, []string{label, "`" + a.Key + "`", a.Value, src})
@@ -304,6 +311,19 @@ func answerSection(r *designs.Result) section {
 	s := section{heading: "Answer"}
 	if r.Spec.ContinuousExposure {
 		return continuousAnswer(r, s)
+	}
+	if r.Goal == "accuracy" {
+		if r.Solve == "n" {
+			s.bullets = append(s.bullets,
+				fmt.Sprintf("**Participants needed: %s** (the larger of %.2f for sensitivity and %.2f for specificity, rounded up)", count(a.Total), *a.NSensitivity, *a.NSpecificity),
+				fmt.Sprintf("**People to test: %s**, allowing for %s loss", count(a.EnrolTotal), pct(r.Attrition)),
+				fmt.Sprintf("Margin: ±%s percentage points for each, at %s confidence", strings.TrimSuffix(pct(*a.Margin), "%"), pct(r.Spec.Confidence)))
+		} else {
+			s.bullets = append(s.bullets,
+				fmt.Sprintf("**Margin for sensitivity: ±%s percentage points**; for specificity: ±%s, at %s confidence", strings.TrimSuffix(pct(*a.MarginSensitivity), "%"), strings.TrimSuffix(pct(*a.MarginSpecificity), "%"), pct(r.Spec.Confidence)),
+				fmt.Sprintf("Tested: %s; usable: %s", count(a.EnrolTotal), count(a.Total)))
+		}
+		return s
 	}
 	if r.Goal == "precision" {
 		nonResponse := fmt.Sprintf("allowing for %s non-response", pct(r.Attrition))

@@ -14,6 +14,9 @@ func paragraph(r *designs.Result) string {
 	if r.Goal == "precision" {
 		return precisionParagraph(r)
 	}
+	if r.Goal == "accuracy" {
+		return accuracyParagraph(r)
+	}
 	if r.Spec != nil && r.Spec.ContinuousExposure {
 		return logisticParagraph(r)
 	}
@@ -1066,5 +1069,35 @@ func meanPrecisionParagraph(r *designs.Result) string {
 		fmt.Fprintf(&b, ", the interval will reach about ±%s around the mean at that confidence level.", num(*a.Margin))
 	}
 	b.WriteString(" The margin assumes the standard deviation stated; the interval observed will be wider if the spread is larger.")
+	return b.String()
+}
+
+// accuracyParagraph is the justification of a study of diagnostic
+// accuracy sized for its sensitivity and specificity (Buderer 1996).
+func accuracyParagraph(r *designs.Result) string {
+	s := r.Spec
+	a := r.Result
+	var b strings.Builder
+	fmt.Fprintf(&b, "The study will estimate the sensitivity and specificity of the test, expected to be about %s%s and %s%s, each with a %s Wald confidence interval; the condition is expected in %s of those tested%s (Buderer 1996). ",
+		pct(s.Sensitivity), source(r, "sensitivity"), pct(s.Specificity), source(r, "specificity"), pct(s.Confidence), pct(s.ConditionPrevalence), source(r, "condition_prevalence"))
+	marg := strings.TrimSuffix(pct(s.Margin), "%")
+	switch r.Solve {
+	case "n":
+		fmt.Fprintf(&b, "For a margin of ±%s percentage points, the sensitivity needs %.2f participants (enough to include about %.1f with the condition) and the specificity %.2f; the larger, rounded up, is %s participants.",
+			marg, *a.NSensitivity, *a.NSensitivity*s.ConditionPrevalence, *a.NSpecificity, count(a.Total))
+		if r.Attrition > 0 {
+			fmt.Fprintf(&b, " Allowing for %s non-response or unusable results%s, %s people will be tested.", pct(r.Attrition), source(r, "attrition"), count(a.EnrolTotal))
+		} else {
+			fmt.Fprintf(&b, " No loss is expected, so %s people will be tested.", count(a.EnrolTotal))
+		}
+	case "effect":
+		fmt.Fprintf(&b, "Testing %s people", count(a.EnrolTotal))
+		if r.Attrition > 0 {
+			fmt.Fprintf(&b, " and expecting %s to be lost (%s with usable results)", pct(r.Attrition), count(a.Total))
+		}
+		fmt.Fprintf(&b, ", the sensitivity will be estimated within about ±%s percentage points and the specificity within ±%s.",
+			strings.TrimSuffix(pct(*a.MarginSensitivity), "%"), strings.TrimSuffix(pct(*a.MarginSpecificity), "%"))
+	}
+	b.WriteString(" These are planning values at the expected sensitivity, specificity and prevalence, not guarantees for the values observed.")
 	return b.String()
 }

@@ -172,7 +172,10 @@ func precisionSimulation(r *designs.Result, s *section) *section {
 	v := r.Simulation
 	truth := "the true prevalence"
 	margin := strings.TrimSuffix(pct(*r.Result.Margin), "%") + " percentage points"
-	if r.Outcome == "continuous" {
+	switch {
+	case r.Goal == "accuracy":
+		truth = "both the true sensitivity and specificity"
+	case r.Outcome == "continuous":
 		truth, margin = "the true mean", num(*r.Result.Margin)
 	}
 	if v.Partial {
@@ -180,8 +183,12 @@ func precisionSimulation(r *designs.Result, s *section) *section {
 	}
 	if v.WithinMargin != nil {
 		d := simDecimals(*v.WithinMarginSE, v.WithinMarginCI)
-		s.bullets = append(s.bullets, fmt.Sprintf("Surveys of %s respondents whose %s has half-width within ±%s (%s replicates, seed %d): %s",
-			count(v.N[0]), v.TestName, margin, count(int(v.Replicates)), v.Seed, estimateText(*v.WithinMargin, *v.WithinMarginSE, v.WithinMarginCI, v.Replicates, d, true, true)))
+		what := fmt.Sprintf("Surveys of %s respondents whose %s has half-width", count(v.N[0]), v.TestName)
+		if r.Goal == "accuracy" {
+			what = fmt.Sprintf("Studies of %s participants whose intervals of sensitivity and specificity both have half-width", count(v.N[0]))
+		}
+		s.bullets = append(s.bullets, fmt.Sprintf("%s within ±%s (%s replicates, seed %d): %s",
+			what, margin, count(int(v.Replicates)), v.Seed, estimateText(*v.WithinMargin, *v.WithinMarginSE, v.WithinMarginCI, v.Replicates, d, true, true)))
 	}
 	if v.Coverage != nil {
 		d := simDecimals(*v.CoverageSE, v.CoverageCI)

@@ -177,14 +177,14 @@ const (
 // METHOD.FIGURE), and the error.
 func Columns(s *designs.Spec, keys []string, simulated bool, methods []string) []string {
 	cols := append([]string{}, keys...)
-	if s.Goal == "precision" || s.OneGroup() {
+	if s.Goal == "precision" || s.Goal == "accuracy" || s.OneGroup() {
 		cols = append(cols, ColAnalysable)
 	} else {
 		cols = append(cols, ColAnalysableFirst, ColAnalysableSecond, ColAnalysableTotal)
 	}
 	cols = append(cols, ColEnrolTotal)
 	switch {
-	case s.Goal == "precision":
+	case s.Goal == "precision" || s.Goal == "accuracy":
 		if s.Solve == "effect" {
 			cols = append(cols, ColAchievedMargin)
 		}
@@ -200,7 +200,7 @@ func Columns(s *designs.Spec, keys []string, simulated bool, methods []string) [
 		cols = append(cols, ColClustersFirst, ColClustersSecond)
 	}
 	switch {
-	case simulated && s.Goal == "precision":
+	case simulated && (s.Goal == "precision" || s.Goal == "accuracy"):
 		cols = append(cols, ColWithinMargin, ColCoverage)
 	case simulated:
 		cols = append(cols, ColSimulatedPower, ColSimulatedSE)
