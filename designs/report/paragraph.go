@@ -1078,8 +1078,12 @@ func accuracyParagraph(r *designs.Result) string {
 	s := r.Spec
 	a := r.Result
 	var b strings.Builder
-	fmt.Fprintf(&b, "The study will estimate the sensitivity and specificity of the test, expected to be about %s%s and %s%s, each with a %s Wald confidence interval; the condition is expected in %s of those tested%s (Buderer 1996). ",
-		pct(s.Sensitivity), source(r, "sensitivity"), pct(s.Specificity), source(r, "specificity"), pct(s.Confidence), pct(s.ConditionPrevalence), source(r, "condition_prevalence"))
+	test := "the test"
+	if s.PrimaryOutcome != "" {
+		test = "the test for " + s.PrimaryOutcome
+	}
+	fmt.Fprintf(&b, "The study will estimate the sensitivity and specificity of %s, expected to be about %s%s and %s%s, each with a %s Wald confidence interval; the condition is expected in %s of those tested%s (Buderer 1996). ",
+		test, pct(s.Sensitivity), source(r, "sensitivity"), pct(s.Specificity), source(r, "specificity"), pct(s.Confidence), pct(s.ConditionPrevalence), source(r, "condition_prevalence"))
 	marg := strings.TrimSuffix(pct(s.Margin), "%")
 	switch r.Solve {
 	case "n":
