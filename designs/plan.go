@@ -1222,22 +1222,7 @@ func precisionCore(s *Spec, ans *Answer, tr *trail) error {
 			tr.add("n0", fmt.Sprintf("the smallest whole number of respondents whose %s at the expected count n0 × expected_prevalence has half-width at most the margin (simple random sampling; %s)", MethodByID(s.Method).Name, MethodByID(s.Method).Short),
 				n0, in("expected_prevalence", p), in("margin", s.Margin), in("confidence", s.Confidence))
 		}
-		next := "n0"
-		if s.DesignEffect != 1 {
-			tr.add("n_design", "n0 × design_effect", n0*s.DesignEffect, in("n0", n0), in("design_effect", s.DesignEffect))
-			next = "n_design"
-		}
-		if s.Population > 0 {
-			nd := n0 * s.DesignEffect
-			tr.add("n_population", next+" / (1 + ("+next+" − 1) / population) (finite population correction)", n, in(next, nd), inInt("population", s.Population))
-			next = "n_population"
-		}
-		a := tr.addInt("analysable_first", "ceil("+next+"): the respondents needed", ceilTol(n), in(next, n))
-		ans.N0, ans.NStar = n0, n
-		ans.N, ans.Total = append(ans.N[:0], a), a
-		ans.Enrol = append(ans.Enrol[:0], tr.addInt("enrol_first", "ceil(analysable_first / (1 − attrition)): the people to invite, allowing for non-response", ceilTol(float64(a)/(1-s.Attrition)), inInt("analysable_first", a), in("attrition", s.Attrition)))
-		ans.EnrolTotal = ans.Enrol[0]
-		ans.Margin = ptr(s.Margin)
+		surveySizes(s, ans, tr, n0, n)
 	case "effect":
 		a := tr.addInt("analysable_first", "floor(total × (1 − attrition)): the respondents expected", floorTol(float64(s.Total)*(1-s.Attrition)), inInt("total", s.Total), in("attrition", s.Attrition))
 		if a < 1 {
@@ -1313,21 +1298,7 @@ func meanPrecisionCore(s *Spec, ans *Answer, tr *trail) error {
 			return err
 		}
 		tr.add("n0", "the smallest whole number of respondents n0 ≥ 2 with t(1 − (1 − confidence)/2, n0 − 1) × sd / √n0 at most the margin (simple random sampling; the t interval, Student 1908)", n0, in("sd", sd), in("margin", s.Margin), in("confidence", s.Confidence))
-		next := "n0"
-		if s.DesignEffect != 1 {
-			tr.add("n_design", "n0 × design_effect", n0*s.DesignEffect, in("n0", n0), in("design_effect", s.DesignEffect))
-			next = "n_design"
-		}
-		if s.Population > 0 {
-			tr.add("n_population", next+" / (1 + ("+next+" − 1) / population) (finite population correction)", n, in(next, n0*s.DesignEffect), inInt("population", s.Population))
-			next = "n_population"
-		}
-		a := tr.addInt("analysable_first", "ceil("+next+"): the respondents needed", ceilTol(n), in(next, n))
-		ans.N0, ans.NStar = n0, n
-		ans.N, ans.Total = append(ans.N[:0], a), a
-		ans.Enrol = append(ans.Enrol[:0], tr.addInt("enrol_first", "ceil(analysable_first / (1 − attrition)): the people to invite, allowing for non-response", ceilTol(float64(a)/(1-s.Attrition)), inInt("analysable_first", a), in("attrition", s.Attrition)))
-		ans.EnrolTotal = ans.Enrol[0]
-		ans.Margin = ptr(s.Margin)
+		surveySizes(s, ans, tr, n0, n)
 	case "effect":
 		a := tr.addInt("analysable_first", "floor(total × (1 − attrition)): the respondents expected", floorTol(float64(s.Total)*(1-s.Attrition)), inInt("total", s.Total), in("attrition", s.Attrition))
 		if a < 2 {
@@ -1391,4 +1362,26 @@ func accuracyCore(s *Spec, ans *Answer, tr *trail) error {
 		ans.Margin = ptr(math.Max(mSe, mSp))
 	}
 	return nil
+}
+
+// surveySizes records a survey's sizes from its simple-random-sampling size
+// n0 and n, n0 after the design effect and the finite population
+// correction: the respondents needed ⌈n⌉ and those to invite, allowing for
+// non-response; the margin is the specification's.
+func surveySizes(s *Spec, ans *Answer, tr *trail, n0, n float64) {
+	next := "n0"
+	if s.DesignEffect != 1 {
+		tr.add("n_design", "n0 × design_effect", n0*s.DesignEffect, in("n0", n0), in("design_effect", s.DesignEffect))
+		next = "n_design"
+	}
+	if s.Population > 0 {
+		tr.add("n_population", next+" / (1 + ("+next+" − 1) / population) (finite population correction)", n, in(next, n0*s.DesignEffect), inInt("population", s.Population))
+		next = "n_population"
+	}
+	a := tr.addInt("analysable_first", "ceil("+next+"): the respondents needed", ceilTol(n), in(next, n))
+	ans.N0, ans.NStar = n0, n
+	ans.N, ans.Total = append(ans.N[:0], a), a
+	ans.Enrol = append(ans.Enrol[:0], tr.addInt("enrol_first", "ceil(analysable_first / (1 − attrition)): the people to invite, allowing for non-response", ceilTol(float64(a)/(1-s.Attrition)), inInt("analysable_first", a), in("attrition", s.Attrition)))
+	ans.EnrolTotal = ans.Enrol[0]
+	ans.Margin = ptr(s.Margin)
 }

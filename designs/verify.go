@@ -192,26 +192,9 @@ func Verify(ctx context.Context, s *Spec, res *Result, o SimOptions) error {
 	if err := o.check(s.File); err != nil {
 		return err
 	}
-	reps, seed := int64(10000), uint64(1)
-	n1 := 0
-	if s.Simulate != nil {
-		reps, seed, n1 = s.Simulate.Replicates, s.Simulate.Seed, s.Simulate.N
-	}
-	if o.Replicates > 0 {
-		reps = o.Replicates
-	}
-	if o.SeedSet {
-		seed = o.Seed
-	}
-	maxReps := o.MaxReplicates
-	if maxReps == 0 {
-		maxReps = DefaultMaxReplicates
-	}
-	if reps > maxReps {
-		return &InputError{Msg: fmt.Sprintf("%s: simulate: %d replicates are more than the limit of %d; allowed: fewer, or raise --max-replicates", s.File, reps, maxReps)}
-	}
-	if reps < 100 {
-		return &InputError{Msg: fmt.Sprintf("%s: simulate: %d replicates are too few; allowed: at least 100", s.File, reps)}
+	reps, seed, n1, err := simSettings(s, o)
+	if err != nil {
+		return err
 	}
 	now := o.Now
 	if now == nil {
@@ -553,7 +536,6 @@ func verifyPrecision(ctx context.Context, s *Spec, res *Result, o SimOptions) er
 	if err := o.check(s.File); err != nil {
 		return err
 	}
-	reps, seed := int64(10000), uint64(1)
 	// The simple random sample the plan is worth: n0 solving n; solving
 	// effect, the respondents with the finite population correction
 	// undone and divided by the design effect.
@@ -568,27 +550,14 @@ func verifyPrecision(ctx context.Context, s *Spec, res *Result, o SimOptions) er
 		worth /= s.DesignEffect
 	}
 	n := int(math.Round(worth))
-	if s.Simulate != nil {
-		reps, seed = s.Simulate.Replicates, s.Simulate.Seed
-		if s.Simulate.N > 0 {
-			n = s.Simulate.N
-		}
+	reps, seed, simN, err := simSettings(s, o)
+	if err != nil {
+		return err
 	}
-	if o.Replicates > 0 {
-		reps = o.Replicates
-	}
-	if o.SeedSet {
-		seed = o.Seed
-	}
-	maxReps := o.MaxReplicates
-	if maxReps == 0 {
-		maxReps = DefaultMaxReplicates
+	if simN > 0 {
+		n = simN
 	}
 	switch {
-	case reps > maxReps:
-		return &InputError{Msg: fmt.Sprintf("%s: simulate: %d replicates are more than the limit of %d; allowed: fewer, or raise --max-replicates", s.File, reps, maxReps)}
-	case reps < 100:
-		return &InputError{Msg: fmt.Sprintf("%s: simulate: %d replicates are too few; allowed: at least 100", s.File, reps)}
 	case res.Result.Margin == nil || *res.Result.Margin <= 0:
 		return &InputError{Msg: s.File + ": simulate: a census has no sampling error to simulate; allowed: a survey of part of the population"}
 	case n < 2:
@@ -646,4 +615,32 @@ func verifyPrecision(ctx context.Context, s *Spec, res *Result, o SimOptions) er
 		return ErrStopped
 	}
 	return nil
+}
+
+// simSettings returns the replicates and seed of a simulation (the flags,
+// else the simulate block, else 10,000 and 1) and the size to simulate at
+// (simulate.n, 0 for the plan's), refusing replicates beyond the limit or
+// below 100.
+func simSettings(s *Spec, o SimOptions) (reps int64, seed uint64, n int, err error) {
+	reps, seed = 10000, 1
+	if s.Simulate != nil {
+		reps, seed, n = s.Simulate.Replicates, s.Simulate.Seed, s.Simulate.N
+	}
+	if o.Replicates > 0 {
+		reps = o.Replicates
+	}
+	if o.SeedSet {
+		seed = o.Seed
+	}
+	maxReps := o.MaxReplicates
+	if maxReps == 0 {
+		maxReps = DefaultMaxReplicates
+	}
+	switch {
+	case reps > maxReps:
+		return 0, 0, 0, &InputError{Msg: fmt.Sprintf("%s: simulate: %d replicates are more than the limit of %d; allowed: fewer, or raise --max-replicates", s.File, reps, maxReps)}
+	case reps < 100:
+		return 0, 0, 0, &InputError{Msg: fmt.Sprintf("%s: simulate: %d replicates are too few; allowed: at least 100", s.File, reps)}
+	}
+	return reps, seed, n, nil
 }
