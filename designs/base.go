@@ -345,7 +345,7 @@ func (b *Base) prepareFast() {
 		head, _, nested := strings.Cut(name, ".")
 		ok := given || absentOK[f]
 		switch {
-		case s.Matched, s.Outcome == "rate", s.ContinuousExposure, s.Goal == "precision" && s.Outcome == "continuous", s.Goal == "accuracy":
+		case s.Matched, s.Outcome == "rate", s.ContinuousExposure, s.Goal == "precision" && (s.Outcome == "continuous" || s.Design != "cross-sectional"), s.Goal == "accuracy":
 			// The within-set correlation's bound follows the odds ratio
 			// and the controls per case set the sizes; a rate's effect is
 			// no risk: every key of these plans is rebuilt.

@@ -166,6 +166,7 @@ var specKeys = map[string]keyInfo{
 	"unexposed_rate":       {kindNumber, "events per unit of person-time among the unexposed, a number from 1e-9 to 1e6"},
 	"rate_ratio":           {kindNumber, allowedRatio},
 	"exposure":             {kindText, "groups or continuous"},
+	"precision_ratio":      {kindNumber, "the ratio of the upper to the lower limit of the ratio's confidence interval, a number above 1 and at most 1000 (e.g. 2: the upper limit twice the lower)"},
 	"sensitivity":          {kindNumber, allowedRisk},
 	"specificity":          {kindNumber, allowedRisk},
 	"condition_prevalence": {kindNumber, allowedRisk},
@@ -318,6 +319,13 @@ func keysFor(sel selector) map[string]bool {
 		}
 	}
 	add(commonKeys...)
+	if (sel.design == "cohort" || sel.design == "case-control") && sel.goal == "precision" {
+		r := roles[sel.design]
+		add("n", "ratio", "precision_ratio", "confidence", "first_group", "second_group", "simulate", "goal", r.reference)
+		add(r.effects...)
+		delete(ok, "design_effect")
+		return ok
+	}
 	if sel.design == "cross-sectional" && sel.goal == "accuracy" {
 		add("total", "sensitivity", "specificity", "condition_prevalence", "margin", "confidence", "simulate", "goal")
 		delete(ok, "design_effect")

@@ -196,6 +196,22 @@ var Methods = []MethodInfo{
 		Note:        "size to estimate one prevalence within a margin; finite population correction and design effect",
 	},
 	{
+		ID: "katz", Short: "Katz et al. 1978", Name: "Katz, log risk ratio interval",
+		Citation:    "Katz D, Baptista J, Azen SP, Pike MC (1978). Obtaining confidence intervals for the risk ratio in cohort studies. Biometrics 34:469-474",
+		Designs:     []string{"cohort"},
+		Goal:        "precision",
+		DefaultTest: "",
+		Note:        "a risk ratio estimated to a stated precision (upper over lower limit of its log-scale Wald interval): n1 = z² ((1 − p1)/p1 + (1 − p2)/(r p2)) / (ln ρ / 2)²",
+	},
+	{
+		ID: "woolf", Short: "Woolf 1955", Name: "Woolf, log odds ratio interval",
+		Citation:    "Woolf B (1955). On estimating the relation between blood group and disease. Ann Hum Genet 19:251-253",
+		Designs:     []string{"case-control"},
+		Goal:        "precision",
+		DefaultTest: "",
+		Note:        "an odds ratio estimated to a stated precision (upper over lower limit of its log-scale Wald interval): n1 = z² (1/(p1 q1) + 1/(r p0 q0)) / (ln ρ / 2)²",
+	},
+	{
 		ID: "buderer", Short: "Buderer 1996", Name: "Buderer, sensitivity and specificity to a margin",
 		Citation:    "Buderer NMF (1996). Statistical methodology: I. Incorporating the prevalence of disease into the sample size calculation for sensitivity and specificity. Acad Emerg Med 3:895-900",
 		Designs:     []string{"cross-sectional"},
@@ -240,10 +256,7 @@ func (m MethodInfo) servesSpec(s *Spec) bool {
 }
 
 func (m MethodInfo) serves(design, goal, outcome, hypothesis string) bool {
-	if m.Goal != "" && design == "cross-sectional" && goal != m.Goal {
-		return false
-	}
-	if m.Goal == "precision" && design != "cross-sectional" {
+	if orDefault(m.Goal, "comparison") != orDefault(goal, "comparison") {
 		return false
 	}
 	if orDefault(m.Outcome, "binary") != orDefault(outcome, "binary") {

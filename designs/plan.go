@@ -65,6 +65,21 @@ func Plan(s *Spec) (*Result, error) {
 		res.Power = ptr(s.Power)
 	}
 	res.Assumptions = assumptions(s)
+	if s.Goal == "precision" && s.Design != "cross-sectional" {
+		ro := roles[s.Design]
+		res.Ratio = ptr(s.Ratio)
+		res.FirstGroup, res.SecondGroup = orDefault(s.FirstGroup, ro.first), orDefault(s.SecondGroup, ro.second)
+		tr := &trail{}
+		defer func() { res.Steps = tr.steps }()
+		if err := ratioPrecisionCore(s, &res.Result, tr); err != nil {
+			return res, err
+		}
+		res.Result.Effect = plannedEffect(s)
+		if a := res.Result; a.N[0] > 0 && math.Min(float64(a.N[0])*math.Min(s.P1, 1-s.P1), float64(a.N[1])*math.Min(s.P2, 1-s.P2)) < 10 {
+			res.Warnings = append(res.Warnings, "Fewer than 10 events (or non-events) are expected in a group: the log-scale Wald interval is unreliable with so few; check by simulation (enough simulate).")
+		}
+		return res, nil
+	}
 	if s.Goal == "precision" {
 		return res, planPrecision(s, res)
 	}
@@ -1384,4 +1399,47 @@ func surveySizes(s *Spec, ans *Answer, tr *trail, n0, n float64) {
 	ans.Enrol = append(ans.Enrol[:0], tr.addInt("enrol_first", "ceil(analysable_first / (1 − attrition)): the people to invite, allowing for non-response", ceilTol(float64(a)/(1-s.Attrition)), inInt("analysable_first", a), in("attrition", s.Attrition)))
 	ans.EnrolTotal = ans.Enrol[0]
 	ans.Margin = ptr(s.Margin)
+}
+
+// ratioPrecisionCore computes a risk ratio (cohort; Katz et al. 1978) or
+// odds ratio (case-control; Woolf 1955) to a stated precision, the ratio ρ
+// of the upper to the lower limit of its log-scale Wald interval: solving
+// n, n1* = z² (V1 + V2/r) / (ln ρ / 2)², rounded as any n* (the second
+// group ⌈r n1*⌉, then attrition); solving effect, the ρ the enrolment
+// reaches. Both record the interval expected around the planned ratio.
+func ratioPrecisionCore(s *Spec, ans *Answer, tr *trail) error {
+	rp := power.RatioPrecision{Measure: power.MeasureRiskRatio, P1: s.P1, P2: s.P2, Confidence: s.Confidence}
+	if s.Design == "case-control" {
+		rp.Measure = power.MeasureOddsRatio
+	}
+	ins := []Input{in("first_risk", s.P1), in("second_risk", s.P2), in("confidence", s.Confidence)}
+	var sz sizes
+	switch s.Solve {
+	case "n":
+		n1 := rp.N1(s.PrecisionRatio, s.Ratio)
+		tr.add("n_star", fmt.Sprintf("the unrounded size of the first group whose %s's interval has upper/lower = precision_ratio (%s)", map[bool]string{true: "odds ratio", false: "risk ratio"}[rp.Measure == power.MeasureOddsRatio], MethodByID(s.Method).Short),
+			n1, append(ins, in("precision_ratio", s.PrecisionRatio), in("ratio", s.Ratio))...)
+		var err error
+		if sz, err = sizesFromNStar(s, n1, tr); err != nil {
+			return err
+		}
+		ans.NStar = n1
+	default:
+		var err error
+		if sz, err = sizesFromEnrolment(s, tr); err != nil {
+			return err
+		}
+	}
+	fillSizes(s, ans, &sz)
+	n := sz.n()
+	if s.Solve == "n" {
+		recordTotals(s, tr, "analysable", n)
+		recordTotals(s, tr, "enrol", sz.enrol())
+	}
+	rho := tr.add("precision_ratio_achieved", "exp(2 z SE) at the analysable sizes: the upper over the lower limit of the interval", rp.Rho(float64(n[0]), float64(n[1])),
+		append([]Input{inInt("analysable_first", n[0]), inInt("analysable_second", n[1])}, ins...)...)
+	ans.PrecisionRatio = ptr(rho)
+	ratio := rp.Ratio()
+	ans.ExpectedInterval = []float64{ratio / math.Sqrt(rho), ratio * math.Sqrt(rho)}
+	return nil
 }

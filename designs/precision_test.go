@@ -157,3 +157,40 @@ func TestAccuracyRefused(t *testing.T) {
 		})
 	}
 }
+
+// A ratio to a stated precision against R (intervals_ratio.tsv,
+// intervals_make.R: n1 by the closed form with Katz et al. 1978 or Woolf
+// 1955, ρ at ⌈n1⌉ and ⌈r n1⌉, checked there against glm's standard
+// errors): the sizes ⌈n1⌉ and ⌈r n1⌉ and the achieved ρ.
+func TestRatioPrecisionAgainstReference(t *testing.T) {
+	rows := reftable.Load(t, "intervals_ratio.tsv")
+	for _, row := range rows {
+		var spec string
+		if row["measure"] == "risk-ratio" {
+			spec = fmt.Sprintf("version: 1\ndesign: cohort\ngoal: precision\nunexposed_risk: %s\nexposed_risk: %s\n", row["p2"], row["p1"])
+		} else {
+			spec = fmt.Sprintf("version: 1\ndesign: case-control\ngoal: precision\ncontrol_exposure: %s\ncase_exposure: %s\n", row["p2"], row["p1"])
+		}
+		spec += fmt.Sprintf("ratio: %s\nconfidence: %s\nprecision_ratio: %s\n", row["r"], row["confidence"], row["rho"])
+		res := mustPlan(t, spec)
+		a := res.Result
+		n1 := row.F(t, "n1")
+		// The second group is ⌈r × n1*⌉, as in every plan (README,
+		// "Rounding and inflation"); the table's n2_ceil is r × ⌈n1⌉.
+		want := []int{row.I(t, "n1_ceil"), int(math.Ceil(row.F(t, "r")*n1 - 1e-9))}
+		if a.N[0] != want[0] || a.N[1] != want[1] || math.Abs(a.NStar-n1) > 1e-9*n1 {
+			t.Errorf("%s: n %v (n* %v), want %v (n* %v) (%s)", row["id"], a.N, a.NStar, want, n1, row["source"])
+		}
+		if float64(a.N[1]) == row.F(t, "n2_ceil") {
+			if rho := row.F(t, "rho_ceil"); math.Abs(*a.PrecisionRatio-rho) > 1e-9*rho {
+				t.Errorf("%s: ρ %v, want %v", row["id"], *a.PrecisionRatio, rho)
+			}
+		}
+		if *a.PrecisionRatio > row.F(t, "rho")+1e-12 {
+			t.Errorf("%s: ρ %v above the target %s", row["id"], *a.PrecisionRatio, row["rho"])
+		}
+	}
+	if len(rows) < 4 {
+		t.Errorf("only %d rows", len(rows))
+	}
+}

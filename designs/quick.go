@@ -42,6 +42,8 @@ func QuickInto(s *Spec, a *Answer) error {
 		a.AchievedPower, a.Detectable, a.Events, a.Clusters, a.Pairs = r.AchievedPower, r.Detectable, r.Events, r.Clusters, r.Pairs
 		a.N0, a.Margin = r.N0, r.Margin
 		return nil
+	case s.Goal == "precision" && s.Design != "cross-sectional":
+		return ratioPrecisionCore(s, a, nil)
 	case s.Goal == "precision":
 		return precisionCore(s, a, nil)
 	case s.Goal == "accuracy":

@@ -108,6 +108,11 @@ type Answer struct {
 	// Diagnostic accuracy: the unrounded sizes for sensitivity and for
 	// specificity (solving n; the larger drives the total), or the margins
 	// each reaches (solving effect; Margin is then the larger).
+	// A ratio to a stated precision: the upper over the lower limit of its
+	// interval at the analysable sizes (ExpectedInterval holds the limits
+	// around the planned ratio).
+	PrecisionRatio *float64 `json:"precision_ratio,omitempty"`
+
 	NSensitivity      *float64 `json:"n_sensitivity,omitempty"`
 	NSpecificity      *float64 `json:"n_specificity,omitempty"`
 	MarginSensitivity *float64 `json:"margin_sensitivity,omitempty"`

@@ -91,6 +91,11 @@ type Spec struct {
 	EventRate          float64
 	ORPerSD            float64
 
+	// A ratio to a stated precision (goal: precision on a cohort or
+	// case-control study): the ratio of the upper to the lower limit of its
+	// interval.
+	PrecisionRatio float64
+
 	// Diagnostic accuracy (goal: accuracy): the expected sensitivity and
 	// specificity and the prevalence of the condition in the sample.
 	Sensitivity, Specificity, ConditionPrevalence float64

@@ -78,7 +78,7 @@ func TestParseErrors(t *testing.T) {
 		{"synonym of the reference", "version: 1\ndesign: trial\nbaseline_risk: 0.3\nrisk_ratio: 0.75\npower: 0.8\n", nil, 3, "baseline_risk", `did you mean "control_risk"?`},
 		{"dropout in a binary plan", trialBase + "dropout: 0.1\n", nil, 6, "dropout", `did you mean "attrition"?`},
 		{"icc at the top level", trialBase + "icc: 0.05\n", nil, 6, "icc", "did you mean cluster: {icc: 0.05}? (icc belongs inside the cluster map)"},
-		{"goal on a trial, whatever its value", trialBase + "goal: precison\n", nil, 6, "goal", "applies only to design cross-sectional"},
+		{"goal on a trial, whatever its value", trialBase + "goal: precison\n", nil, 6, "goal", "applies only to designs cross-sectional, cohort and case-control"},
 		{"percentage number", "version: 1\ndesign: trial\ncontrol_risk: 30\nrisk_ratio: 0.75\npower: 0.8\n", nil, 3, "control_risk", "did you mean 0.3?"},
 		{"percentage of a ratio", "version: 1\ndesign: trial\ncontrol_risk: 0.3\nrisk_ratio: 75%\npower: 0.8\n", nil, 4, "risk_ratio", "a ratio, not a percentage"},
 		{"binary file", "version: 1\x00\x00\x00", nil, 0, "", "is not a text file"},

@@ -91,6 +91,8 @@ func (r *reader) build() *Spec {
 	switch {
 	case s.Goal == "accuracy":
 		r.buildAccuracy(s)
+	case precision && s.Design != "cross-sectional":
+		r.buildRatioPrecision(s)
 	case precision:
 		r.buildPrecision(s)
 	default:
@@ -123,14 +125,18 @@ func (r *reader) selection(s *Spec) (sel selector, ok bool) {
 	}
 
 	goal := "comparison"
-	if ge := r.entries["goal"]; ge != nil && ok && design != "cross-sectional" {
-		r.refuse(r.errAt(ge, "applies only to design cross-sectional; a %s study always compares two groups", design))
-	} else if g, _, err := r.choice("goal", "comparison", "comparison", "precision", "accuracy"); r.keep(err) {
-		goal = g
-	} else {
+	ratioGoal := design == "cohort" || design == "case-control"
+	if ge := r.entries["goal"]; ge != nil && ok && design != "cross-sectional" && !ratioGoal {
+		r.refuse(r.errAt(ge, "applies only to designs cross-sectional, cohort and case-control; a %s study always compares two groups", design))
+	} else if g, ge, err := r.choice("goal", "comparison", "comparison", "precision", "accuracy"); !r.keep(err) {
 		ok = false
+	} else if ratioGoal && g == "accuracy" {
+		r.refuse(r.errAt(ge, "accuracy applies to design cross-sectional; allowed for design %s: comparison, or precision (a ratio estimated to a stated precision)", design))
+		ok = false
+	} else {
+		goal = g
 	}
-	if design == "cross-sectional" {
+	if design == "cross-sectional" || (ratioGoal && goal == "precision") {
 		s.Goal = goal
 	}
 	precision := s.Goal == "precision" || s.Goal == "accuracy"
@@ -141,6 +147,9 @@ func (r *reader) selection(s *Spec) (sel selector, ok bool) {
 	case !r.keep(err):
 		ok = false
 	case !ok:
+	case s.Goal == "precision" && design != "cross-sectional" && outcome != "binary":
+		r.refuse(r.errAt(oe, "%s does not apply to a ratio estimated to a stated precision, which is a risk or odds ratio; allowed: binary", outcome))
+		ok = false
 	case s.Goal == "accuracy" && outcome != "binary":
 		r.refuse(r.errAt(oe, "%s does not apply to a study of diagnostic accuracy, whose test result and condition are both yes or no; allowed: binary", outcome))
 		ok = false
@@ -543,6 +552,50 @@ func (r *reader) probability(key, what string) (float64, bool) {
 	return x, true
 }
 
+// inPrecisionRatio is the range of precision_ratio: above 1, at most 1000.
+func inPrecisionRatio(x float64) bool { return x > 1 && x <= MaxRatio }
+
+// buildRatioPrecision reads a risk ratio (cohort) or odds ratio
+// (case-control) to be estimated to a stated precision: the ratio of the
+// upper to the lower limit of its interval, the groups' risks or
+// exposures, the allocation and the confidence.
+func (r *reader) buildRatioPrecision(s *Spec) {
+	s.Hypothesis = "superiority"
+	def := map[string]string{"cohort": "katz", "case-control": "woolf"}[s.Design]
+	var err *SpecError
+	if s.Method, _, err = r.choice("method", def, def); err != nil {
+		r.refuse(r.methodError(s))
+		s.Method = def
+	}
+	s.Ratio, _ = r.rangeNum("ratio", 1, inRatio)
+	s.Confidence, _ = r.rangeNum("confidence", 0.95, inConfidence)
+	switch s.Solve {
+	case "n":
+		x, e, err := r.number("precision_ratio")
+		switch {
+		case !r.keep(err):
+		case e == nil:
+			if !r.solveBad {
+				r.missing("precision_ratio", "required when solving n", specKeys["precision_ratio"].allowed)
+			}
+		case !inPrecisionRatio(x):
+			r.refuse(r.rangeErr(e, x, specKeys["precision_ratio"].allowed, inPrecisionRatio))
+		default:
+			s.PrecisionRatio = x
+		}
+		if r.get("n") != nil {
+			s.Ignored = append(s.Ignored, "n is ignored when solving n")
+		}
+	case "effect":
+		r.size(s, "n", "required when solving effect", "the number enrolled in the "+roles[s.Design].first)
+		if r.get("precision_ratio") != nil {
+			s.Ignored = append(s.Ignored, "precision_ratio is ignored when solving effect (the precision is what is solved)")
+		}
+	}
+	r.buildBinary(s)
+	r.buildSimulate(s)
+}
+
 // buildAccuracy reads a study of diagnostic accuracy: the expected
 // sensitivity and specificity, the prevalence of the condition among those
 // tested, the margin (solving n) or the total (solving effect) and the
@@ -769,8 +822,9 @@ func (r *reader) effectToP1(s *Spec, e *entry, p2OK bool) bool {
 		return false
 	}
 	if math.Abs(p1-p2) < 1e-12 {
-		if s.Hypothesis != "superiority" {
-			// No true difference: the usual assumption of such trials.
+		if s.Hypothesis != "superiority" || s.Goal == "precision" {
+			// No true difference: the usual assumption of such trials, and
+			// a ratio of 1 estimated to a precision.
 			s.P1 = p2
 			return true
 		}

@@ -540,8 +540,8 @@ func verifyPrecision(ctx context.Context, s *Spec, res *Result, o SimOptions) er
 	// effect, the respondents with the finite population correction
 	// undone and divided by the design effect.
 	worth := res.Result.N0
-	if s.Goal == "accuracy" {
-		worth = float64(res.Result.Total)
+	if s.Goal == "accuracy" || (s.Goal == "precision" && s.Design != "cross-sectional") {
+		worth = float64(res.Result.N[0])
 	} else if s.Solve == "effect" {
 		worth = float64(res.Result.Total)
 		if N := float64(s.Population); N > 0 && worth < N {
@@ -558,19 +558,45 @@ func verifyPrecision(ctx context.Context, s *Spec, res *Result, o SimOptions) er
 		n = simN
 	}
 	switch {
-	case res.Result.Margin == nil || *res.Result.Margin <= 0:
+	case (s.Design == "cross-sectional" || s.Goal != "precision") && (res.Result.Margin == nil || *res.Result.Margin <= 0):
 		return &InputError{Msg: s.File + ": simulate: a census has no sampling error to simulate; allowed: a survey of part of the population"}
 	case n < 2:
 		return &InputError{Msg: s.File + ": simulate: fewer than two effective respondents; allowed: a larger survey"}
 	}
-	margin := *res.Result.Margin
+	margin := 0.0
+	if res.Result.Margin != nil {
+		margin = *res.Result.Margin
+	}
 	notes := []string{}
 	if s.Goal == "accuracy" {
 		notes = append(notes, "Each simulated study draws those with the condition, then the true positives and true negatives; it counts as within the margin when both Wald intervals are, and as covering when both cover (a study with nobody, or everybody, with the condition fails both).")
 	} else if s.DesignEffect != 1 || s.Population > 0 {
 		notes = append(notes, fmt.Sprintf("The design effect and the finite population correction are simulated through the simple random sample from an infinite population that the plan is worth, %s respondents.", thousands(n)))
 	}
+	ratioModel := s.Design != "cross-sectional" && s.Goal == "precision"
+	if ratioModel {
+		n = res.Result.N[0]
+		if simN > 0 {
+			n = simN
+		}
+		notes = append(notes, "Each simulated study draws the two groups' counts and computes the log-scale interval; a table with an empty cell gives no interval and counts as neither within the target nor covering.")
+	}
 	model := func(cover bool) power.Model {
+		if ratioModel {
+			rp := power.RatioPrecision{Measure: power.MeasureRiskRatio, P1: s.P1, P2: s.P2, Confidence: s.Confidence}
+			if s.Design == "case-control" {
+				rp.Measure = power.MeasureOddsRatio
+			}
+			target := s.PrecisionRatio
+			if s.Solve == "effect" {
+				target = *res.Result.PrecisionRatio
+			}
+			n2 := max(1, int(math.Ceil(s.Ratio*float64(n)-1e-9)))
+			if simN == 0 {
+				n2 = res.Result.N[1]
+			}
+			return power.NewRatioPrecisionSim(power.RatioPrecisionSim{RatioPrecision: rp, N1: n, N2: n2, Rho: target, Coverage: cover})
+		}
 		if s.Goal == "accuracy" {
 			return power.NewDiagnosticPrecisionSim(power.DiagnosticPrecisionSim{DiagnosticAccuracy: power.DiagnosticAccuracy{Sensitivity: s.Sensitivity,
 				Specificity: s.Specificity, Prevalence: s.ConditionPrevalence, Confidence: s.Confidence}, N: n, Margin: margin, Coverage: cover})

@@ -32,6 +32,7 @@ var keyLabels = map[string]string{
 	"unexposed_rate":                "rate among the unexposed (events per unit of person-time)",
 	"exposure":                      "exposure",
 	"sensitivity":                   "expected sensitivity",
+	"precision_ratio":               "upper over lower limit of the interval (target)",
 	"specificity":                   "expected specificity",
 	"condition_prevalence":          "prevalence of the condition among those tested",
 	"event_rate":                    "proportion with the outcome at the exposure's mean",
@@ -202,6 +203,10 @@ func outcomeWords(r *designs.Result) string {
 	switch {
 	case r.Goal == "accuracy":
 		return "sensitivity and specificity"
+	case r.Goal == "precision" && r.Design == "cohort":
+		return "a risk ratio to a stated precision"
+	case r.Goal == "precision" && r.Design == "case-control":
+		return "an odds ratio to a stated precision"
 	case r.Outcome == "rate":
 		return "events over person-time"
 	case r.Spec != nil && r.Spec.ContinuousExposure:
@@ -311,6 +316,23 @@ func answerSection(r *designs.Result) section {
 	s := section{heading: "Answer"}
 	if r.Spec.ContinuousExposure {
 		return continuousAnswer(r, s)
+	}
+	if r.Goal == "precision" && r.Design != "cross-sectional" {
+		if r.Solve == "n" {
+			s.bullets = append(s.bullets,
+				fmt.Sprintf("**Analysable: %s, %s in total**", groupSizes(r, a.N), count(a.Total)),
+				fmt.Sprintf("**Enrolment target: %s, %s in total**", groupSizes(r, a.Enrol), count(a.EnrolTotal)),
+				fmt.Sprintf("Upper over lower limit at these numbers: %s (target %s)", num(*a.PrecisionRatio), num(r.Spec.PrecisionRatio)))
+		} else {
+			s.bullets = append(s.bullets,
+				fmt.Sprintf("**Upper over lower limit of the interval: %s**", num(*a.PrecisionRatio)),
+				fmt.Sprintf("Enrolled: %s; analysable: %s", groupSizes(r, a.Enrol), groupSizes(r, a.N)))
+		}
+		if iv := a.ExpectedInterval; len(iv) == 2 {
+			s.bullets = append(s.bullets, fmt.Sprintf("Interval expected around the planned ratio: %s to %s", num(iv[0]), num(iv[1])))
+		}
+		s.afterTable = groupTable(r)
+		return s
 	}
 	if r.Goal == "accuracy" {
 		if r.Solve == "n" {

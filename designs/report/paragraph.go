@@ -144,6 +144,10 @@ func methodPhrase(id, name string) string {
 		return "Connor's formula for matched pairs (Connor 1987)"
 	case "schlesselman-pairs":
 		return "Schlesselman's discordant-pairs formula (1982)"
+	case "katz":
+		return "the log risk ratio interval of Katz et al. (1978)"
+	case "woolf":
+		return "Woolf's log odds ratio interval (1955)"
 	case "hsieh":
 		return "the formula of Hsieh, Bloch & Larsen (1998, after Hsieh 1989)"
 	case "log-rate-ratio":
@@ -905,6 +909,9 @@ func precisionParagraph(r *designs.Result) string {
 	if r.Outcome == "continuous" {
 		return meanPrecisionParagraph(r)
 	}
+	if r.Design != "cross-sectional" {
+		return ratioPrecisionParagraph(r)
+	}
 	outcome := s.PrimaryOutcome
 	if outcome == "" {
 		outcome = "the binary outcome under study"
@@ -1103,5 +1110,41 @@ func accuracyParagraph(r *designs.Result) string {
 			strings.TrimSuffix(pct(*a.MarginSensitivity), "%"), strings.TrimSuffix(pct(*a.MarginSpecificity), "%"))
 	}
 	b.WriteString(" These are planning values at the expected sensitivity, specificity and prevalence, not guarantees for the values observed.")
+	return b.String()
+}
+
+// ratioPrecisionParagraph is the justification of a risk or odds ratio
+// estimated to a stated precision.
+func ratioPrecisionParagraph(r *designs.Result) string {
+	s := r.Spec
+	a := r.Result
+	var b strings.Builder
+	f, g := groupsOf(r)
+	measure, who, what := "risk ratio", "risk", "Katz et al. 1978"
+	if r.Design == "case-control" {
+		measure, who, what = "odds ratio", "proportion exposed", "Woolf 1955"
+	}
+	e := a.Effect
+	ratio := e.RiskRatio
+	if ratio == nil {
+		ratio = e.OddsRatio
+	}
+	fmt.Fprintf(&b, "The study will estimate the %s of %s against %s with a %s confidence interval on the log scale (%s). We assume a %s of %s %s%s and %s %s, a %s of %s. ",
+		measure, f.ref, g.ref, pct(s.Confidence), what, who, pct(s.P2), g.in(), source(r, s.ReferenceKey), pct(s.P1), f.in(), measure, num(*ratio))
+	switch r.Solve {
+	case "n":
+		fmt.Fprintf(&b, "For an interval whose upper limit is at most %s times its lower limit, %s requires %s and %s (%.2f in the first group before rounding); at these numbers the upper limit is %s times the lower. ",
+			num(s.PrecisionRatio), methodPhrase(r.Method, r.MethodName), f.size(a.N[0]), g.size(a.N[1]), a.NStar, num(*a.PrecisionRatio))
+		if r.Attrition > 0 {
+			fmt.Fprintf(&b, "Allowing for %s attrition, we will enrol %s, %s in total.", pct(r.Attrition), groupSizes(r, a.Enrol), count(a.EnrolTotal))
+		} else {
+			fmt.Fprintf(&b, "No attrition is expected, so the enrolment target is %s in total.", count(a.EnrolTotal))
+		}
+	case "effect":
+		fmt.Fprintf(&b, "With %s and %s analysable, the upper limit of the interval is expected to be %s times the lower.", f.size(a.N[0]), g.size(a.N[1]), num(*a.PrecisionRatio))
+	}
+	if iv := a.ExpectedInterval; len(iv) == 2 {
+		fmt.Fprintf(&b, " At the planned %s of %s the interval is expected to run from %s to %s; this is a planning value at the assumed risks, not a guarantee for the interval observed.", measure, num(*ratio), num(iv[0]), num(iv[1]))
+	}
 	return b.String()
 }

@@ -171,8 +171,14 @@ func simulationSection(r *designs.Result) *section {
 func precisionSimulation(r *designs.Result, s *section) *section {
 	v := r.Simulation
 	truth := "the true prevalence"
-	margin := strings.TrimSuffix(pct(*r.Result.Margin), "%") + " percentage points"
+	margin := ""
+	if r.Result.Margin != nil {
+		margin = strings.TrimSuffix(pct(*r.Result.Margin), "%") + " percentage points"
+	}
+	ratio := r.Goal == "precision" && r.Design != "cross-sectional"
 	switch {
+	case ratio:
+		truth = "the true ratio"
 	case r.Goal == "accuracy":
 		truth = "both the true sensitivity and specificity"
 	case r.Outcome == "continuous":
@@ -183,12 +189,19 @@ func precisionSimulation(r *designs.Result, s *section) *section {
 	}
 	if v.WithinMargin != nil {
 		d := simDecimals(*v.WithinMarginSE, v.WithinMarginCI)
-		what := fmt.Sprintf("Surveys of %s respondents whose %s has half-width", count(v.N[0]), v.TestName)
-		if r.Goal == "accuracy" {
-			what = fmt.Sprintf("Studies of %s participants whose intervals of sensitivity and specificity both have half-width", count(v.N[0]))
+		what := fmt.Sprintf("Surveys of %s respondents whose %s has half-width within ±%s", count(v.N[0]), v.TestName, margin)
+		switch {
+		case ratio:
+			target := r.Spec.PrecisionRatio
+			if r.Solve == "effect" {
+				target = *r.Result.PrecisionRatio
+			}
+			what = fmt.Sprintf("Studies of %s in the first group whose interval's upper limit is at most %s times its lower", count(v.N[0]), num(target))
+		case r.Goal == "accuracy":
+			what = fmt.Sprintf("Studies of %s participants whose intervals of sensitivity and specificity both have half-width within ±%s", count(v.N[0]), margin)
 		}
-		s.bullets = append(s.bullets, fmt.Sprintf("%s within ±%s (%s replicates, seed %d): %s",
-			what, margin, count(int(v.Replicates)), v.Seed, estimateText(*v.WithinMargin, *v.WithinMarginSE, v.WithinMarginCI, v.Replicates, d, true, true)))
+		s.bullets = append(s.bullets, fmt.Sprintf("%s (%s replicates, seed %d): %s",
+			what, count(int(v.Replicates)), v.Seed, estimateText(*v.WithinMargin, *v.WithinMarginSE, v.WithinMarginCI, v.Replicates, d, true, true)))
 	}
 	if v.Coverage != nil {
 		d := simDecimals(*v.CoverageSE, v.CoverageCI)
