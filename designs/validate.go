@@ -571,21 +571,7 @@ func (r *reader) buildRatioPrecision(s *Spec) {
 	s.Confidence, _ = r.rangeNum("confidence", 0.95, inConfidence)
 	switch s.Solve {
 	case "n":
-		x, e, err := r.number("precision_ratio")
-		switch {
-		case !r.keep(err):
-		case e == nil:
-			if !r.solveBad {
-				r.missing("precision_ratio", "required when solving n", specKeys["precision_ratio"].allowed)
-			}
-		case !inPrecisionRatio(x):
-			r.refuse(r.rangeErr(e, x, specKeys["precision_ratio"].allowed, inPrecisionRatio))
-		default:
-			s.PrecisionRatio = x
-		}
-		if r.get("n") != nil {
-			s.Ignored = append(s.Ignored, "n is ignored when solving n")
-		}
+		r.target(s, "precision_ratio", "n", specKeys["precision_ratio"].allowed, inPrecisionRatio, &s.PrecisionRatio)
 	case "effect":
 		r.size(s, "n", "required when solving effect", "the number enrolled in the "+roles[s.Design].first)
 		if r.get("precision_ratio") != nil {
@@ -594,6 +580,27 @@ func (r *reader) buildRatioPrecision(s *Spec) {
 	}
 	r.buildBinary(s)
 	r.buildSimulate(s)
+}
+
+// target reads the precision a plan solving n is sized for (key, required,
+// within in, what allowed says) into dst; the size key, which solving n
+// does not use, is noted as ignored.
+func (r *reader) target(s *Spec, key, size, allowed string, in func(float64) bool, dst *float64) {
+	x, e, err := r.number(key)
+	switch {
+	case !r.keep(err):
+	case e == nil:
+		if !r.solveBad {
+			r.missing(key, "required when solving n", allowed)
+		}
+	case !in(x):
+		r.refuse(r.rangeErr(e, x, allowed, in))
+	default:
+		*dst = x
+	}
+	if r.get(size) != nil {
+		s.Ignored = append(s.Ignored, size+" is ignored when solving n")
+	}
 }
 
 // buildAccuracy reads a study of diagnostic accuracy: the expected
@@ -613,21 +620,7 @@ func (r *reader) buildAccuracy(s *Spec) {
 	s.Confidence, _ = r.rangeNum("confidence", 0.95, inConfidence)
 	switch s.Solve {
 	case "n":
-		m, me, err := r.number("margin")
-		switch {
-		case !r.keep(err):
-		case me == nil:
-			if !r.solveBad {
-				r.missing("margin", "required when solving n", "the half-width of the intervals of sensitivity and specificity, a number in (0, 0.5)")
-			}
-		case !inSurveyMargin(m):
-			r.refuse(r.rangeErr(me, m, "a number in (0, 0.5)", inSurveyMargin))
-		default:
-			s.Margin = m
-		}
-		if r.get("total") != nil {
-			s.Ignored = append(s.Ignored, "total is ignored when solving n")
-		}
+		r.target(s, "margin", "total", "the half-width of the intervals of sensitivity and specificity, a number in (0, 0.5)", inSurveyMargin, &s.Margin)
 	case "effect":
 		r.size(s, "total", "required when solving effect", "the number of people to be tested")
 		if r.get("margin") != nil {
