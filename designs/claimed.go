@@ -184,6 +184,14 @@ func ParseReview(file string, data []byte, sets []string) (*ReviewInput, error) 
 		}
 		return nil, se
 	}
+	if g := r.get("goal"); g != nil && g.node.Kind == yaml.ScalarNode {
+		d := r.get("design")
+		ratio := g.node.Value == "precision" && d != nil && d.node.Value != "cross-sectional"
+		if g.node.Value == "accuracy" || ratio {
+			what := map[bool]string{true: "a ratio estimated to a stated precision", false: "a study of diagnostic accuracy"}[ratio]
+			return nil, r.errAt(g, "%s: enough review does not recheck %s yet; allowed: enough plan to recompute it, or review a comparison or a survey of one prevalence or mean", g.node.Value, what)
+		}
+	}
 	c, errs := r.readClaimed()
 	if len(errs) > 0 {
 		// Report every problem of the specification, the claimed block's

@@ -194,3 +194,17 @@ func TestRatioPrecisionAgainstReference(t *testing.T) {
 		t.Errorf("only %d rows", len(rows))
 	}
 }
+
+// enough review refuses, in one line naming the goal, what it does not
+// recheck yet: diagnostic accuracy and a ratio to a stated precision.
+func TestReviewRefusesPrecisionRatioAndAccuracy(t *testing.T) {
+	for _, spec := range []string{
+		"version: 1\ndesign: cross-sectional\ngoal: accuracy\nsensitivity: 0.85\nspecificity: 0.95\ncondition_prevalence: 0.3\nmargin: 0.07\nclaimed: {total: 300}\n",
+		"version: 1\ndesign: cohort\ngoal: precision\nunexposed_risk: 0.05\nrisk_ratio: 2\nprecision_ratio: 1.5\nclaimed: {n: 2500}\n",
+	} {
+		_, err := ParseReview("r.yaml", []byte(spec), nil)
+		if err == nil || !strings.Contains(err.Error(), "r.yaml:3: goal:") || !strings.Contains(err.Error(), "does not recheck") {
+			t.Errorf("error %v, want the goal refused", err)
+		}
+	}
+}
