@@ -513,6 +513,8 @@ func (in *ReviewInput) elements(r *reader) {
 
 	var reference, effects []string
 	switch {
+	case precision && outcome == "continuous":
+		reference, effects = []string{"sd"}, []string{"margin"}
 	case precision:
 		reference, effects = []string{"expected_prevalence"}, []string{"margin"}
 	case outcome == "continuous":

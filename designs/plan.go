@@ -1177,7 +1177,9 @@ func planPrecision(s *Spec, res *Result) error {
 		}
 	case "effect":
 		if *ans.Margin >= 0.5 {
-			res.Warnings = append(res.Warnings, "The achievable margin is wider than ±50 percentage points: this survey cannot estimate the prevalence usefully.")
+			if s.Outcome != "continuous" {
+				res.Warnings = append(res.Warnings, "The achievable margin is wider than ±50 percentage points: this survey cannot estimate the prevalence usefully.")
+			}
 		}
 	}
 	d := *ans.Margin
@@ -1210,6 +1212,10 @@ func precisionCore(s *Spec, ans *Answer, tr *trail) error {
 		return meanPrecisionCore(s, ans, tr)
 	}
 	interval, _ := power.ParseIntervalMethod(s.Method)
+	// effName and effValue are, solving effect, the step and value of the
+	// simple random sample the survey is worth (after undoing the finite
+	// population correction and the design effect).
+	effName, effValue := "n0", 0.0
 	switch s.Solve {
 	case "n":
 		n0, n := power.PrecisionN(pr, s.Margin)
@@ -1219,7 +1225,7 @@ func precisionCore(s *Spec, ans *Answer, tr *trail) error {
 			// and the finite population correction as for Wald.
 			m, err := interval.N(p, s.Margin, s.Confidence)
 			if err != nil {
-				return &PlanError{File: s.File, Msg: fmt.Sprintf("no survey of at most 10⁹ respondents reaches a %s interval of ±%g; allowed: a larger margin", MethodByID(s.Method).Name, s.Margin), Err: err}
+				return &SpecError{File: s.File, Key: "margin", Msg: fmt.Sprintf("%g: no survey of at most 10⁹ respondents reaches a %s of ±%g; allowed: a larger margin", s.Margin, MethodByID(s.Method).Name, s.Margin)}
 			}
 			n0 = float64(m)
 			n = n0 * s.DesignEffect
@@ -1268,20 +1274,16 @@ func precisionCore(s *Spec, ans *Answer, tr *trail) error {
 			rule, margin = "0: every member of the population responds (a census)", 0
 		}
 		ans.Margin = ptr(tr.add("margin", rule, margin, in("z", z), in("expected_prevalence", p), in(next, nv)))
+		effName, effValue = next, nv
 	}
 	// The interval expected at the plan: the method's limits at the
 	// expected count of the simple random sample the plan is worth.
-	eff := ans.N0
+	eff, name := ans.N0, "n0"
 	if s.Solve == "effect" {
-		eff = float64(ans.Total) / s.DesignEffect
+		eff, name = effValue, effName
 	}
 	if tr != nil && eff > 0 && !(s.Population > 0 && ans.Total >= s.Population) {
 		lo, hi := interval.Limits(eff*p, eff, s.Confidence)
-		name := "n0"
-		if s.Solve == "effect" {
-			name = "effective_respondents"
-			tr.add(name, "analysable_first / design_effect", eff, inInt("analysable_first", ans.Total), in("design_effect", s.DesignEffect))
-		}
 		rule := fmt.Sprintf("the %%s limit of the %s at the expected count %s × expected_prevalence", MethodByID(s.Method).Name, name)
 		ans.ExpectedInterval = []float64{
 			tr.add("expected_lower", fmt.Sprintf(rule, "lower"), lo, in(name, eff), in("expected_prevalence", p), in("confidence", s.Confidence)),
@@ -1330,7 +1332,10 @@ func meanPrecisionCore(s *Spec, ans *Answer, tr *trail) error {
 			nv = tr.add("n0", next+" / design_effect", nv/s.DesignEffect, in(next, nv), in("design_effect", s.DesignEffect))
 			next = "n0"
 		}
-		margin := power.MeanHalfWidth(sd, math.Max(nv, 2), s.Confidence)
+		if nv < 2 {
+			return &SpecError{File: s.File, Key: "total", Msg: fmt.Sprintf("%d respondents are worth %.3g of a simple random sample after the design effect, fewer than two: no t interval; allowed: a larger total", s.Total, nv)}
+		}
+		margin := power.MeanHalfWidth(sd, nv, s.Confidence)
 		rule := "t(1 − (1 − confidence)/2, " + next + " − 1) × sd / √" + next + " (the t interval)"
 		if s.Population > 0 && a >= s.Population {
 			rule, margin = "0: every member of the population responds (a census)", 0

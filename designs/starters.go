@@ -36,10 +36,10 @@ func starterName(design, goal, outcome string) (string, error) {
 	case goal == "" || goal == "comparison":
 	case goal == "precision" && design == "cross-sectional":
 		name = "precision"
-	case goal == "precision":
-		return "", fmt.Errorf("--goal precision applies to design cross-sectional only (design %s always compares two groups); allowed: comparison, or leave --goal out", design)
+	case goal == "precision" || goal == "accuracy":
+		return "", fmt.Errorf("--goal %s has a starter for design cross-sectional estimating one prevalence only (a %s starter for it is still to come: write goal: %s into the specification, see the README); allowed: comparison, or leave --goal out", goal, design, goal)
 	default:
-		return "", fmt.Errorf("--goal %q is not a goal; allowed: comparison or precision (cross-sectional only)", goal)
+		return "", fmt.Errorf("--goal %q is not a goal; allowed: comparison or precision (cross-sectional)", goal)
 	}
 	switch outcome {
 	case "", "binary":

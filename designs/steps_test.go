@@ -98,8 +98,6 @@ func replayStep(st Step) (float64, bool) {
 	case strings.HasPrefix(st.Name, "expected_events_") && strings.HasPrefix(rule, "person_time_"):
 		parts := strings.SplitN(rule, " × ", 2)
 		return g(parts[0]) * g(parts[1]), true
-	case rule == "analysable_first / design_effect" && st.Name == "effective_respondents":
-		return g("analysable_first") / g("design_effect"), true
 	case strings.HasPrefix(rule, "z² × sensitivity × (1 − sensitivity) / (margin² × condition_prevalence)"):
 		return g("z") * g("z") * g("sensitivity") * (1 - g("sensitivity")) / (g("margin") * g("margin") * g("condition_prevalence")), true
 	case strings.HasPrefix(rule, "z² × specificity × (1 − specificity) / (margin² × (1 − condition_prevalence))"):

@@ -348,6 +348,9 @@ func (r *reader) reportMisplaced(s *Spec, sel selector, allowed map[string]bool)
 		switch {
 		case e.key == "ratio" && s.Pairing == "paired":
 			msg = "does not apply to a paired design: each pair holds one of each; allowed: leave ratio out"
+		case sel.goal != "comparison" && sel.design != "cross-sectional" && keysFor(selector{design: sel.design, goal: "comparison", outcome: sel.outcome, hypothesis: sel.hypothesis})[e.key],
+			sel.goal == "accuracy" && keysFor(selector{design: sel.design, goal: "comparison", outcome: sel.outcome, hypothesis: sel.hypothesis})[e.key]:
+			msg = fmt.Sprintf("does not apply with goal %s, which sizes a study for the width of an interval, not for a test; allowed: leave %s out, or goal: comparison", sel.goal, e.key)
 		case (e.key == "ratio" || e.key == "n_second") && sel.matched:
 			msg = "does not apply with matching, where each case has matching.controls_per_case controls; allowed: matching.controls_per_case, and no " + e.key
 		case e.key == "design_effect" && sel.matched:

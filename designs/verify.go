@@ -611,7 +611,15 @@ func verifyPrecision(ctx context.Context, s *Spec, res *Result, o SimOptions) er
 	if err != nil {
 		return err
 	}
-	sim := &Simulation{Test: s.Method, TestName: MethodByID(s.Method).Name, Replicates: reps, Seed: seed, N: []int{n},
+	simN2 := []int{n}
+	if ratioModel {
+		n2 := max(1, int(math.Ceil(s.Ratio*float64(n)-1e-9)))
+		if simN == 0 {
+			n2 = res.Result.N[1]
+		}
+		simN2 = []int{n, n2}
+	}
+	sim := &Simulation{Test: s.Method, TestName: MethodByID(s.Method).Name, Replicates: reps, Seed: seed, N: simN2,
 		Notes: slices.Concat(notes, capNotes)}
 	res.Simulation = sim
 	run := func(label string, cover bool) (power.SimResult, error) {

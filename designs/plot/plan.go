@@ -46,6 +46,8 @@ func PlanFrom(res *designs.Result, src *Source) (*plot.Plot, error) {
 	switch {
 	case s.Goal == "accuracy":
 		return nil, errors.New("a study of diagnostic accuracy has no curve to draw yet")
+	case s.Goal == "precision" && s.Design != "cross-sectional":
+		return nil, errors.New("a ratio to a stated precision has no curve to draw yet")
 	case s.Goal == "precision":
 		return marginCurve(res)
 	case s.Solve == "effect":
@@ -233,7 +235,11 @@ func marginCurve(res *designs.Result) (*plot.Plot, error) {
 	if len(pts) < 2 {
 		return nil, errors.New("the margin could not be computed at the sizes around the plan")
 	}
-	p := newPlot(title(res), sizeWords(res), "margin of the interval (± proportion)")
+	ylabel := "margin of the interval (± proportion)"
+	if s.Outcome == "continuous" {
+		ylabel = "margin of the interval (± the measurement's units)"
+	}
+	p := newPlot(title(res), sizeWords(res), ylabel)
 	p.Y.Min = 0
 	line, err := curve(p, pts, 0, false)
 	if err != nil {
@@ -378,6 +384,8 @@ func simulated(res *designs.Result) bool {
 // Caption is the sentence under the figure [ForPlan] draws for res.
 func Caption(res *designs.Result) string {
 	switch {
+	case res.Spec != nil && res.Spec.Goal == "precision":
+		return "The margin of the interval (half its width) against the respondents around the plan."
 	case simulated(res):
 		return "Simulated power with its 95% interval, beside the closed-form power; the dashed line is the target power."
 	case res.Spec != nil && res.Spec.Solve == "effect":

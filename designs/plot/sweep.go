@@ -70,6 +70,8 @@ func solvedFigure(t *sweep.Table) figure {
 		return *p, true
 	}
 	switch {
+	case has(sweep.ColPrecisionRatio):
+		return figure{label: "upper over lower limit of the interval", short: "upper / lower limit", value: func(a *designs.Answer) (float64, bool) { return ptr(a.PrecisionRatio) }}
 	case has(sweep.ColAchievedMargin):
 		return figure{label: "margin of the interval (± proportion)", short: "margin (± proportion)", value: func(a *designs.Answer) (float64, bool) { return ptr(a.Margin) }}
 	case has(sweep.ColDetectableUpper):

@@ -338,7 +338,7 @@ func answerSection(r *designs.Result) section {
 		if r.Solve == "n" {
 			s.bullets = append(s.bullets,
 				fmt.Sprintf("**Participants needed: %s** (the larger of %.2f for sensitivity and %.2f for specificity, rounded up)", count(a.Total), *a.NSensitivity, *a.NSpecificity),
-				fmt.Sprintf("**People to test: %s**, allowing for %s loss", count(a.EnrolTotal), pct(r.Attrition)),
+				fmt.Sprintf("**People to test: %s**, %s", count(a.EnrolTotal), map[bool]string{true: "no loss expected", false: "allowing for " + pct(r.Attrition) + " loss"}[r.Attrition == 0]),
 				fmt.Sprintf("Margin: ±%s percentage points for each, at %s confidence", strings.TrimSuffix(pct(*a.Margin), "%"), pct(r.Spec.Confidence)))
 		} else {
 			s.bullets = append(s.bullets,
@@ -364,7 +364,18 @@ func answerSection(r *designs.Result) section {
 				unrounded = fmt.Sprintf("n₀ = %s, the smallest whole number for the margin", count(int(a.N0)))
 			}
 			if r.DesignEff != 1 || r.Spec.Population > 0 {
-				unrounded = fmt.Sprintf("unrounded %.2f; n₀ = %.2f before the design effect and the finite population correction", a.NStar, a.N0)
+				n0 := fmt.Sprintf("%.2f", a.N0)
+				if r.Method != "wald" {
+					n0 = count(int(a.N0))
+				}
+				var before []string
+				if r.DesignEff != 1 {
+					before = append(before, "the design effect")
+				}
+				if r.Spec.Population > 0 {
+					before = append(before, "the finite population correction")
+				}
+				unrounded = fmt.Sprintf("unrounded %.2f; n₀ = %s before %s", a.NStar, n0, strings.Join(before, " and "))
 			}
 			if e := a.ExpectedInterval; len(e) == 2 {
 				unrounded += fmt.Sprintf("; the interval expected at the expected prevalence: %s to %s", pct(e[0]), pct(e[1]))

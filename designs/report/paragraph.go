@@ -1129,8 +1129,8 @@ func ratioPrecisionParagraph(r *designs.Result) string {
 	if ratio == nil {
 		ratio = e.OddsRatio
 	}
-	fmt.Fprintf(&b, "The study will estimate the %s of %s against %s with a %s confidence interval on the log scale (%s). We assume a %s of %s %s%s and %s %s, a %s of %s. ",
-		measure, f.ref, g.ref, pct(s.Confidence), what, who, pct(s.P2), g.in(), source(r, s.ReferenceKey), pct(s.P1), f.in(), measure, num(*ratio))
+	fmt.Fprintf(&b, "The study will estimate the %s of %s against %s with a %s confidence interval on the log scale (%s). We assume a %s of %s %s%s and %s %s, %s %s of %s. ",
+		measure, f.ref, g.ref, pct(s.Confidence), what, who, pct(s.P2), g.in(), source(r, s.ReferenceKey), pct(s.P1), f.in(), article(measure), measure, num(*ratio))
 	switch r.Solve {
 	case "n":
 		fmt.Fprintf(&b, "For an interval whose upper limit is at most %s times its lower limit, %s requires %s and %s (%.2f in the first group before rounding); at these numbers the upper limit is %s times the lower. ",
@@ -1144,7 +1144,7 @@ func ratioPrecisionParagraph(r *designs.Result) string {
 		fmt.Fprintf(&b, "With %s and %s analysable, the upper limit of the interval is expected to be %s times the lower.", f.size(a.N[0]), g.size(a.N[1]), num(*a.PrecisionRatio))
 	}
 	if iv := a.ExpectedInterval; len(iv) == 2 {
-		fmt.Fprintf(&b, " At the planned %s of %s the interval is expected to run from %s to %s; this is a planning value at the assumed risks, not a guarantee for the interval observed.", measure, num(*ratio), num(iv[0]), num(iv[1]))
+		fmt.Fprintf(&b, " At the planned %s of %s the interval is expected to run from %s to %s; this is a planning value at the assumed %ss, not a guarantee for the interval observed.", measure, num(*ratio), num(iv[0]), num(iv[1]), map[bool]string{true: "exposure", false: "risk"}[r.Design == "case-control"])
 	}
 	return b.String()
 }

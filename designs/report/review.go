@@ -230,7 +230,7 @@ func reviewSubject(r *designs.Result, in *designs.ReviewInput) string {
 	if r != nil && r.Spec != nil {
 		what := studyKind(r)
 		if r.Goal == "precision" {
-			return article(what) + " " + what + " estimating a prevalence"
+			return article(what) + " " + what + " estimating " + map[bool]string{true: "a mean", false: "a prevalence"}[r.Outcome == "continuous"]
 		}
 		return article(what) + " " + what + ", " + outcomeWords(r)
 	}
@@ -243,7 +243,7 @@ func reviewSubject(r *designs.Result, in *designs.ReviewInput) string {
 		outcome = "binary"
 	}
 	if inValue(in, "goal") == "precision" {
-		return article(what) + " " + what + " estimating a prevalence"
+		return article(what) + " " + what + " estimating " + map[bool]string{true: "a mean", false: "a prevalence"}[outcome == "continuous"]
 	}
 	return article(what) + " " + what + ", " + outcome + " outcome"
 }

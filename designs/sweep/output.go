@@ -166,6 +166,7 @@ const (
 	ColClustersSecond   = "clusters_second"         // cluster trials: clusters in the second arm
 	ColSimulatedPower   = "simulated_power"         // simulated sweeps: simulated power
 	ColSimulatedSE      = "simulated_se"            // simulated sweeps: its Monte-Carlo standard error
+	ColPrecisionRatio   = "precision_ratio"         // a ratio to a stated precision: the upper over the lower limit reached
 	ColWithinMargin     = "simulated_within_margin" // simulated precision sweeps: the share of surveys whose interval meets the margin
 	ColCoverage         = "simulated_coverage"      // simulated precision sweeps: the share of intervals covering the truth
 	ColError            = "error"                   // why the point could not be planned (empty when planned)
@@ -177,13 +178,16 @@ const (
 // METHOD.FIGURE), and the error.
 func Columns(s *designs.Spec, keys []string, simulated bool, methods []string) []string {
 	cols := append([]string{}, keys...)
-	if s.Goal == "precision" || s.Goal == "accuracy" || s.OneGroup() {
+	ratioPrecision := s.Goal == "precision" && s.Design != "cross-sectional"
+	if (s.Goal == "precision" && !ratioPrecision) || s.Goal == "accuracy" || s.OneGroup() {
 		cols = append(cols, ColAnalysable)
 	} else {
 		cols = append(cols, ColAnalysableFirst, ColAnalysableSecond, ColAnalysableTotal)
 	}
 	cols = append(cols, ColEnrolTotal)
 	switch {
+	case ratioPrecision:
+		cols = append(cols, ColPrecisionRatio)
 	case s.Goal == "precision" || s.Goal == "accuracy":
 		if s.Solve == "effect" {
 			cols = append(cols, ColAchievedMargin)
@@ -535,6 +539,8 @@ func figure(name string) (func(r *Record) Value, bool) {
 		return answer(func(a *designs.Answer) Value { return nth(a.Clusters, 0) }), true
 	case ColClustersSecond:
 		return answer(func(a *designs.Answer) Value { return nth(a.Clusters, 1) }), true
+	case ColPrecisionRatio:
+		return answer(func(a *designs.Answer) Value { return number(a.PrecisionRatio) }), true
 	case ColWithinMargin, ColCoverage:
 		cover := name == ColCoverage
 		return func(r *Record) Value {
