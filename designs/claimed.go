@@ -184,14 +184,6 @@ func ParseReview(file string, data []byte, sets []string) (*ReviewInput, error) 
 		}
 		return nil, se
 	}
-	if g := r.get("goal"); g != nil && g.node.Kind == yaml.ScalarNode {
-		d := r.get("design")
-		ratio := g.node.Value == "precision" && d != nil && d.node.Value != "cross-sectional"
-		if g.node.Value == "accuracy" || ratio {
-			what := map[bool]string{true: "a ratio estimated to a stated precision", false: "a study of diagnostic accuracy"}[ratio]
-			return nil, r.errAt(g, "%s: enough review does not recheck %s yet; allowed: enough plan to recompute it, or review a comparison or a survey of one prevalence or mean", g.node.Value, what)
-		}
-	}
 	c, errs := r.readClaimed()
 	if len(errs) > 0 {
 		// Report every problem of the specification, the claimed block's
@@ -507,12 +499,18 @@ func (in *ReviewInput) elements(r *reader) {
 	if outcome == "" {
 		outcome = "binary"
 	}
-	precision := design == "cross-sectional" && goal == "precision"
+	// A survey, a ratio to a stated precision or a study of accuracy is
+	// sized for an interval, not a test: no power, alpha or sides.
+	precision := goal == "precision" || goal == "accuracy"
 	hyp := val("hypothesis")
 	ro := roles[design]
 
 	var reference, effects []string
 	switch {
+	case goal == "accuracy":
+		reference, effects = []string{"sensitivity", "specificity", "condition_prevalence"}, []string{"margin"}
+	case goal == "precision" && design != "cross-sectional":
+		reference, effects = []string{ro.reference}, append([]string{"precision_ratio"}, ro.effects...)
 	case precision && outcome == "continuous":
 		reference, effects = []string{"sd"}, []string{"margin"}
 	case precision:
@@ -611,7 +609,7 @@ func (in *ReviewInput) baseEdits(r *reader) []Edit {
 	// The claimed block stays: the plan takes power, alpha, sides and
 	// method from it (a problem then names claimed.KEY and its line).
 	out = append(out, Delete("simulate"))
-	precision := r.get("design") != nil && r.get("design").node.Value == "cross-sectional" && r.get("goal") != nil && r.get("goal").node.Value == "precision"
+	precision := r.get("goal") != nil && (r.get("goal").node.Value == "precision" || r.get("goal").node.Value == "accuracy")
 	// No power stated: the usual 80% (a precision survey has no power).
 	noPower := c.Power == 0 && r.get("power") == nil && !precision
 	switch in.Mode {

@@ -321,7 +321,7 @@ func keysFor(sel selector) map[string]bool {
 	add(commonKeys...)
 	if (sel.design == "cohort" || sel.design == "case-control") && sel.goal == "precision" {
 		r := roles[sel.design]
-		add("n", "ratio", "precision_ratio", "confidence", "first_group", "second_group", "simulate", "goal", r.reference)
+		add("n", "n_second", "ratio", "precision_ratio", "confidence", "first_group", "second_group", "simulate", "goal", r.reference)
 		add(r.effects...)
 		delete(ok, "design_effect")
 		return ok

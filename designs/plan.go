@@ -61,7 +61,7 @@ func Plan(s *Spec) (*Result, error) {
 		Alternatives: []Alternative{}, Notes: []string{}, Warnings: ignoredWarnings(s),
 		Cautions: Cautions, Spec: s,
 	}
-	if s.Solve != "power" && s.Goal != "precision" {
+	if s.Solve != "power" && s.Goal != "precision" && s.Goal != "accuracy" {
 		res.Power = ptr(s.Power)
 	}
 	res.Assumptions = assumptions(s)

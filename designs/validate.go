@@ -576,7 +576,18 @@ func (r *reader) buildRatioPrecision(s *Spec) {
 	case "n":
 		r.target(s, "precision_ratio", "n", specKeys["precision_ratio"].allowed, inPrecisionRatio, &s.PrecisionRatio)
 	case "effect":
-		r.size(s, "n", "required when solving effect", "the number enrolled in the "+roles[s.Design].first)
+		if r.size(s, "n", "required when solving effect", "the number enrolled in the "+roles[s.Design].first) {
+			n2, n2e, err := r.whole("n_second")
+			switch {
+			case !r.keep(err) || n2e == nil:
+			case n2 < 1 || n2 > MaxSize:
+				r.refuse(r.errAt(n2e, "%d is out of range; allowed: a whole number from 1 to 10⁹", n2))
+			case r.get("ratio") != nil:
+				r.refuse(r.errAt(n2e, "given together with ratio; allowed: one of them (n_second fixes the second group's enrolment)"))
+			default:
+				s.NSecond, s.Ratio = n2, float64(n2)/float64(s.N)
+			}
+		}
 		if r.get("precision_ratio") != nil {
 			s.Ignored = append(s.Ignored, "precision_ratio is ignored when solving effect (the precision is what is solved)")
 		}

@@ -158,7 +158,7 @@ func buildReview(rep *review.Report, in *designs.ReviewInput, src ReviewSource) 
 	d := &document{title: "Sample-size recheck: " + title}
 	d.subtitle = "The figures a protocol states, recomputed under its own assumptions: " + reviewSubject(r, in)
 
-	d.sections = append(d.sections, conclusionSection(rep, r != nil && r.Goal == "precision" || inValue(in, "goal") == "precision"))
+	d.sections = append(d.sections, conclusionSection(rep, r != nil && intervalGoal(r.Goal) || intervalGoal(inValue(in, "goal"))))
 	d.sections = append(d.sections, figuresSection(rep, r))
 	d.sections = append(d.sections, methodsSection(rep, r))
 	d.sections = append(d.sections, achievesSection(rep, r))
@@ -229,7 +229,10 @@ func reviewTitle(rep *review.Report, in *designs.ReviewInput) string {
 func reviewSubject(r *designs.Result, in *designs.ReviewInput) string {
 	if r != nil && r.Spec != nil {
 		what := studyKind(r)
-		if r.Goal == "precision" {
+		switch {
+		case r.Goal == "precision" && r.Design != "cross-sectional", r.Goal == "accuracy":
+			return article(what) + " " + what + ", " + outcomeWords(r)
+		case r.Goal == "precision":
 			return article(what) + " " + what + " estimating " + map[bool]string{true: "a mean", false: "a prevalence"}[r.Outcome == "continuous"]
 		}
 		return article(what) + " " + what + ", " + outcomeWords(r)
@@ -316,12 +319,12 @@ func figureLabel(r *designs.Result, name string) string {
 	case "n_second":
 		return "analysable, " + second
 	case "total":
-		if r != nil && r.Goal == "precision" {
+		if r != nil && intervalGoal(r.Goal) {
 			return "respondents"
 		}
 		return "analysable, in total"
 	case "enrol_total":
-		if r != nil && r.Goal == "precision" {
+		if r != nil && intervalGoal(r.Goal) {
 			return "to invite"
 		}
 		return "to recruit, in total"
@@ -471,7 +474,7 @@ func methodsSection(rep *review.Report, r *designs.Result) section {
 		rows = append(rows, []string{m.Name + " (`" + m.Method + "`)", armSizes(r, m.N), count(m.Total), count(m.EnrolTotal), mark})
 	}
 	switch unit := oneGroupUnit(r); {
-	case r.Goal == "precision":
+	case r.Goal == "precision" && r.Design == "cross-sectional", r.Goal == "accuracy":
 		// One group: its size is the total.
 		for i, row := range rows {
 			rows[i] = slices.Delete(row, 1, 2)
@@ -558,10 +561,20 @@ func achievesSection(rep *review.Report, r *designs.Result) section {
 		s.bullets = append(s.bullets, line)
 	}
 	for _, det := range rep.DetectableEffect {
+		if det.Scale == "precision_ratio" {
+			if det.Upper != nil {
+				s.bullets = append(s.bullets, fmt.Sprintf("Upper over lower limit of the interval the stated sizes reach: %s (the protocol's target %s)", num(*det.Upper), num(r.Spec.PrecisionRatio)))
+			}
+			continue
+		}
 		if det.Scale == "margin" {
 			// A precision survey: the margin the stated size achieves.
 			if det.Upper != nil {
-				line := "Margin the stated size achieves: ±" + strings.TrimSuffix(pct(*det.Upper), "%") + " percentage points"
+				margin := strings.TrimSuffix(pct(*det.Upper), "%") + " percentage points"
+				if r != nil && r.Outcome == "continuous" {
+					margin = num(*det.Upper)
+				}
+				line := "Margin the stated size achieves: ±" + margin
 				if r != nil && r.Spec != nil {
 					line += " at " + pct(r.Spec.Confidence) + " confidence"
 				}
@@ -731,7 +744,7 @@ func sensitivitySection(rep *review.Report, r *designs.Result) section {
 		rows = append(rows, row)
 	}
 	switch {
-	case r != nil && r.Goal == "precision":
+	case r != nil && intervalGoal(r.Goal):
 		// One group: its size is the total.
 		for i, row := range rows {
 			rows[i] = slices.Delete(row, 4, 5)
@@ -809,3 +822,8 @@ func requestsSection(rep *review.Report) section {
 	s.bullets = sentences(rep.Requests)
 	return s
 }
+
+// intervalGoal says a plan is sized for the width of an interval, not for
+// a test: a precision survey, a ratio to a stated precision, a study of
+// diagnostic accuracy.
+func intervalGoal(goal string) bool { return goal == "precision" || goal == "accuracy" }

@@ -158,7 +158,7 @@ func (rc *recheck) stated() map[string]int {
 			out[name] = v
 		}
 	}
-	if rc.spec != nil && rc.spec.Goal == "precision" {
+	if rc.spec != nil && ((rc.spec.Goal == "precision" && rc.spec.Design == "cross-sectional") || rc.spec.Goal == "accuracy") {
 		// A survey states one size: n and total are the same figure.
 		if _, ok := out["total"]; !ok && c.N > 0 {
 			out["total"] = c.N + c.NSecond
@@ -219,7 +219,7 @@ func (rc *recheck) plan(edits ...designs.Edit) (*designs.Result, error) {
 // cannot be computed, or for a precision survey, which has no power),
 // with the analysable total of that variant.
 func (rc *recheck) powerAt(edits ...designs.Edit) (*float64, int) {
-	if rc.spec.Goal == "precision" {
+	if rc.spec.Goal == "precision" || rc.spec.Goal == "accuracy" {
 		return nil, 0
 	}
 	res, err := rc.plan(append(edits, designs.Set("solve", "power"))...)
@@ -260,8 +260,12 @@ func (rc *recheck) detectable() ([]Detectable, string) {
 		}
 		return out, "Nothing is computed here: the protocol states no size."
 	}
-	if rc.spec.Goal == "precision" {
+	if rc.spec.Goal == "precision" || rc.spec.Goal == "accuracy" {
 		res, err := rc.plan(append(rc.in.SizeEdits(), designs.Set("solve", "effect"))...)
+		if err == nil && res.Result.PrecisionRatio != nil {
+			out = append(out, Detectable{Scale: "precision_ratio", Upper: res.Result.PrecisionRatio})
+			return out, ""
+		}
 		if err == nil && res.Result.Margin != nil {
 			out = append(out, Detectable{Scale: "margin", Upper: res.Result.Margin})
 			return out, ""
@@ -607,7 +611,7 @@ func incompleteSentence(in *designs.ReviewInput, what string) string {
 
 // tolText words the tolerances.
 func (rc *recheck) tolText() string {
-	if rc.spec != nil && rc.spec.Goal == "precision" {
+	if rc.spec != nil && (rc.spec.Goal == "precision" || rc.spec.Goal == "accuracy") {
 		return fmt.Sprintf("tolerance %s of the size", pct(rc.c.ToleranceN))
 	}
 	return fmt.Sprintf("tolerances: %s of the size, or %s points of power", pct(rc.c.ToleranceN), trim(rc.c.TolerancePower*100))
