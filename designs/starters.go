@@ -11,10 +11,49 @@ import (
 //go:embed starters/*.yaml
 var starters embed.FS
 
+// StarterChoice is one starter of `enough new`: the design, goal and
+// outcome that select it, and what it plans, in a few words.
+type StarterChoice struct {
+	Design, Goal, Outcome, Words string
+}
+
+// Starters lists every starter, in the order `enough new` shows them.
+var Starters = []StarterChoice{
+	{"cohort", "", "", "binary outcome"},
+	{"cohort", "", "continuous", "difference in means"},
+	{"cohort", "", "rate", "events over person-time"},
+	{"cohort", "precision", "", "estimate a risk ratio"},
+	{"case-control", "", "", "binary exposure"},
+	{"case-control", "precision", "", "estimate an odds ratio"},
+	{"trial", "", "", "binary outcome"},
+	{"trial", "", "continuous", "difference in means"},
+	{"trial", "", "time-to-event", "hazard ratio"},
+	{"cross-sectional", "", "", "compare two prevalences"},
+	{"cross-sectional", "", "continuous", "compare two means"},
+	{"cross-sectional", "precision", "", "estimate one prevalence"},
+	{"cross-sectional", "precision", "continuous", "estimate one mean"},
+	{"cross-sectional", "accuracy", "", "sensitivity and specificity"},
+}
+
+// Command is the `enough new` command line that prints the starter.
+func (c StarterChoice) Command() string {
+	cmd := "enough new " + c.Design
+	if c.Goal != "" {
+		cmd += " --goal " + c.Goal
+	}
+	if c.Outcome != "" {
+		cmd += " --outcome " + c.Outcome
+	}
+	return cmd
+}
+
 // Starter returns a commented starter specification for a design; goal
-// selects the cross-sectional variant ("comparison" or "precision") and
-// outcome the variant of a comparison ("binary"; "continuous" for a cohort,
-// a trial or a cross-sectional comparison; "time-to-event" for a trial).
+// selects the variant ("comparison"; "precision" for a cross-sectional
+// survey, a cohort's risk ratio or a case-control study's odds ratio;
+// "accuracy" for a cross-sectional study of a diagnostic test) and outcome
+// the variant of a comparison ("binary"; "continuous" for a cohort, a
+// trial, a cross-sectional comparison or a survey of a mean;
+// "time-to-event" for a trial; "rate" for a cohort).
 // The errors name what was given and what is allowed, for `enough new`.
 func Starter(design, goal, outcome string) ([]byte, error) {
 	name, err := starterName(design, goal, outcome)
@@ -36,17 +75,23 @@ func starterName(design, goal, outcome string) (string, error) {
 	case goal == "" || goal == "comparison":
 	case goal == "precision" && design == "cross-sectional":
 		name = "precision"
+	case goal == "precision" && (design == "cohort" || design == "case-control"):
+		name = design + "-precision"
+	case goal == "accuracy" && design == "cross-sectional":
+		name = "accuracy"
 	case goal == "precision" || goal == "accuracy":
-		return "", fmt.Errorf("--goal %s has a starter for design cross-sectional estimating one prevalence only (a %s starter for it is still to come: write goal: %s into the specification, see the README); allowed: comparison, or leave --goal out", goal, design, goal)
+		return "", fmt.Errorf("--goal %s does not apply to design %s; allowed: comparison (or leave --goal out)%s", goal, design, map[bool]string{true: "", false: " or precision"}[design == "trial"])
 	default:
-		return "", fmt.Errorf("--goal %q is not a goal; allowed: comparison or precision (cross-sectional)", goal)
+		return "", fmt.Errorf("--goal %q is not a goal; allowed: comparison, precision (cross-sectional, cohort, case-control) or accuracy (cross-sectional)", goal)
 	}
 	switch outcome {
 	case "", "binary":
 	case "continuous", "time-to-event", "rate":
 		switch {
-		case name == "precision":
-			return "", fmt.Errorf("--outcome %s does not apply to a precision survey, which estimates one prevalence; allowed: binary", outcome)
+		case name == "precision" && outcome == "continuous":
+			name += "-" + outcome
+		case name == "precision" || name == "accuracy" || strings.HasSuffix(name, "-precision"):
+			return "", fmt.Errorf("--outcome %s does not apply to --goal %s with design %s; allowed: %s", outcome, goal, design, starterOutcomes(name))
 		case outcome == "continuous" && design != "case-control", outcome == "time-to-event" && design == "trial", outcome == "rate" && design == "cohort":
 			name += "-" + outcome
 		default:
@@ -58,12 +103,24 @@ func starterName(design, goal, outcome string) (string, error) {
 	return name, nil
 }
 
+// estimating reports whether the starter named name sizes a study to a
+// stated precision (no test, so no power).
+func estimating(name string) bool {
+	return name == "accuracy" || name == "precision" || strings.HasSuffix(name, "-precision") || strings.HasPrefix(name, "precision-")
+}
+
 // starterOutcomes lists the outcomes that have a starter for a design (or
 // for "precision", the precision survey).
 func starterOutcomes(design string) string {
 	switch design {
 	case "precision":
-		return "binary (a precision survey estimates one prevalence)"
+		return "binary (one prevalence) or continuous (one mean)"
+	case "accuracy":
+		return "binary (a study of accuracy estimates sensitivity and specificity)"
+	case "cohort-precision":
+		return "binary (the risk ratio is estimated)"
+	case "case-control-precision":
+		return "binary (the odds ratio is estimated)"
 	case "trial":
 		return "binary, continuous or time-to-event"
 	case "case-control":
@@ -180,7 +237,7 @@ func reviewHeader(name string) []string {
 		"# fractions (0.8 for 80%). Delete the line of anything the protocol does",
 		"# not state: the review lists it as missing,",
 	}
-	if name == "precision" {
+	if estimating(name) {
 		return append(lines[:len(lines)-1], "# not state: the review lists it as missing.")
 	}
 	return append(lines,
@@ -210,13 +267,19 @@ func claimedBlock(name, method string) []string {
 	switch {
 	case name == "case-control":
 		first, second = "cases needed", "controls needed, when their number differs"
+	case name == "case-control-precision":
+		first, second = "cases needed", "controls needed, when their number differs"
 	case strings.HasPrefix(name, "cohort"):
 		first, second = "exposed participants needed", "unexposed participants needed, when their number differs"
 	}
-	if strings.HasPrefix(name, "cross-sectional") || name == "precision" {
+	if strings.HasPrefix(name, "cross-sectional") || strings.HasPrefix(name, "precision") || name == "accuracy" {
+		who, enrol := "the respondents needed", "the number to survey, after allowing for non-response"
+		if name == "accuracy" {
+			who, enrol = "the participants with a usable result needed", "the number to enrol, after allowing for unusable results"
+		}
 		lines = append(lines,
-			commented(`  total: "[as stated, e.g. 900]"`, "the respondents needed"),
-			commented(`  enrol_total: "[as stated, e.g. 1000]"`, "the number to survey, after allowing for non-response"))
+			commented(`  total: "[as stated, e.g. 900]"`, who),
+			commented(`  enrol_total: "[as stated, e.g. 1000]"`, enrol))
 	} else {
 		lines = append(lines,
 			commented(`  n: "[as stated, e.g. 250]"`, first),
@@ -227,7 +290,7 @@ func claimedBlock(name, method string) []string {
 	if name == "trial-time-to-event" {
 		lines = append(lines, commented(`  events: "[as stated, e.g. 380]"`, "the events the protocol says are needed"))
 	}
-	if name != "precision" {
+	if !estimating(name) {
 		lines = append(lines,
 			`  power: "[as stated, e.g. 0.8]"`,
 			`  alpha: "[as stated, e.g. 0.05]"`,
@@ -240,8 +303,8 @@ func claimedBlock(name, method string) []string {
 		lines = append(lines, commented(`  # clusters: "[as stated, e.g. 12]"`, "cluster trials: the clusters per arm (with the cluster block below)"))
 	}
 	lines = append(lines, commented("  # tolerance_n: 0.05", "a stated size within 5% of the recomputed one is consistent"))
-	if name == "precision" {
-		// A survey has no power to be within.
+	if estimating(name) {
+		// An estimate has no power to be within.
 		return lines
 	}
 	return append(lines, commented("  # tolerance_power: 0.02", "so is one whose power is within 2 points of the stated power"))

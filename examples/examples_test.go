@@ -56,25 +56,21 @@ func TestExamples(t *testing.T) {
 
 // TestStarters checks that every starter of `enough new` plans as it stands.
 func TestStarters(t *testing.T) {
-	for _, c := range []struct{ design, goal, outcome string }{
-		{"cohort", "", ""}, {"case-control", "", ""}, {"trial", "", ""}, {"cross-sectional", "", ""},
-		{"cross-sectional", "precision", ""}, {"trial", "", "continuous"}, {"trial", "", "time-to-event"},
-		{"cohort", "", "continuous"}, {"cross-sectional", "", "continuous"},
-	} {
-		data, err := designs.Starter(c.design, c.goal, c.outcome)
+	for _, c := range designs.Starters {
+		data, err := designs.Starter(c.Design, c.Goal, c.Outcome)
 		if err != nil {
 			t.Fatal(err)
 		}
 		s, err := designs.Parse("starter", data, nil)
 		if err != nil {
-			t.Errorf("%s %s: %v", c.design, c.goal, err)
+			t.Errorf("%s: %v", c.Command(), err)
 			continue
 		}
 		if _, err := designs.Plan(s); err != nil {
-			t.Errorf("%s %s: %v", c.design, c.goal, err)
+			t.Errorf("%s: %v", c.Command(), err)
 		}
-		if s.Design != c.design {
-			t.Errorf("starter for %s is a %s", c.design, s.Design)
+		if s.Design != c.Design {
+			t.Errorf("starter for %s is a %s", c.Design, s.Design)
 		}
 	}
 	if _, err := designs.Starter("ecological", "", ""); err == nil {
@@ -197,12 +193,8 @@ func TestReviewExamples(t *testing.T) {
 // once the placeholders are filled in with the values they suggest.
 func TestReviewStarters(t *testing.T) {
 	placeholder := regexp.MustCompile(`"\[as stated, e\.g\. ([^\]]+)\]"`)
-	for _, c := range []struct{ design, goal, outcome string }{
-		{"cohort", "", ""}, {"case-control", "", ""}, {"trial", "", ""}, {"cross-sectional", "", ""},
-		{"cross-sectional", "precision", ""}, {"trial", "", "continuous"}, {"trial", "", "time-to-event"},
-		{"cohort", "", "continuous"}, {"cross-sectional", "", "continuous"},
-	} {
-		data, err := designs.ReviewStarter(c.design, c.goal, c.outcome)
+	for _, c := range designs.Starters {
+		data, err := designs.ReviewStarter(c.Design, c.Goal, c.Outcome)
 		if err != nil {
 			t.Fatal(err)
 		}

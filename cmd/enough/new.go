@@ -12,6 +12,21 @@ import (
 // newDesigns says what `enough new` accepts, for its help and its errors.
 const newDesigns = "cohort, case-control, trial or cross-sectional"
 
+// starterList is the table of starters in the help of enough new, one a
+// line, from designs.Starters.
+func starterList() string {
+	var b strings.Builder
+	for _, c := range designs.Starters {
+		cmd := "  " + c.Command()
+		if len(cmd) > 52 {
+			fmt.Fprintf(&b, "%s\n%53s%s\n", cmd, "", c.Words)
+			continue
+		}
+		fmt.Fprintf(&b, "%-53s%s\n", cmd, c.Words)
+	}
+	return strings.TrimSuffix(b.String(), "\n")
+}
+
 // NewCmdNew builds `enough new DESIGN`.
 func NewCmdNew(streams *IO) *cobra.Command {
 	var goal, outcome string
@@ -23,20 +38,12 @@ func NewCmdNew(streams *IO) *cobra.Command {
 case-control, trial or cross-sectional), to save and edit. Every starter
 plans as it stands. The starters are:
 
-  enough new cohort                                  binary outcome
-  enough new cohort --outcome continuous             difference in means
-  enough new cohort --outcome rate                   events over person-time
-  enough new case-control                            binary exposure
-  enough new trial                                   binary outcome
-  enough new trial --outcome continuous              difference in means
-  enough new trial --outcome time-to-event           hazard ratio
-  enough new cross-sectional                         compare two prevalences
-  enough new cross-sectional --outcome continuous    compare two means
-  enough new cross-sectional --goal precision        estimate one prevalence
+` + starterList() + `
 
 --outcome continuous applies to cohort, trial and cross-sectional;
 --outcome time-to-event to trial; --outcome rate to cohort; --goal precision
-to cross-sectional.
+to cross-sectional, cohort and case-control; --goal accuracy to
+cross-sectional.
 
 With --review, any of these becomes a starter for enough review: a claimed:
 block for the figures the protocol states, and a placeholder "[as stated,
@@ -66,8 +73,8 @@ placeholders are filled in.`,
 			return err
 		},
 	}
-	cmd.Flags().StringVar(&goal, "goal", "", "comparison (default) or precision (cross-sectional only: estimate one prevalence)")
-	cmd.Flags().StringVar(&outcome, "outcome", "", "binary (default); continuous (cohort, trial, cross-sectional); time-to-event (trial)")
+	cmd.Flags().StringVar(&goal, "goal", "", "comparison (default); precision (cross-sectional: one prevalence or mean; cohort: a risk ratio; case-control: an odds ratio); accuracy (cross-sectional: sensitivity and specificity)")
+	cmd.Flags().StringVar(&outcome, "outcome", "", "binary (default); continuous (cohort, trial, cross-sectional); time-to-event (trial); rate (cohort)")
 	switchFlag(cmd, &forReview, "review", "", "a starter for enough review: a claimed: block for what the protocol states, and placeholders for its assumptions")
 	return cmd
 }

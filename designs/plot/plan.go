@@ -45,9 +45,9 @@ func PlanFrom(res *designs.Result, src *Source) (*plot.Plot, error) {
 	s := res.Spec
 	switch {
 	case s.Goal == "accuracy":
-		return nil, errors.New("a study of diagnostic accuracy has no curve to draw yet")
+		return accuracyCurve(res)
 	case s.Goal == "precision" && s.Design != "cross-sectional":
-		return nil, errors.New("a ratio to a stated precision has no curve to draw yet")
+		return ratioCurve(res)
 	case s.Goal == "precision":
 		return marginCurve(res)
 	case s.Solve == "effect":
@@ -63,7 +63,7 @@ func PlanFrom(res *designs.Result, src *Source) (*plot.Plot, error) {
 // survey's for a cross-sectional design.
 func enrolled(res *designs.Result) int {
 	a := &res.Result
-	if res.Spec.Design == "cross-sectional" || res.Spec.Goal == "precision" {
+	if res.Spec.Design == "cross-sectional" {
 		return a.EnrolTotal
 	}
 	if len(a.Enrol) > 0 {
@@ -92,7 +92,14 @@ func atEnrolment(s0 *designs.Spec, e int) (*designs.Answer, error) {
 	s := *s0
 	s.Overrides = slices.Clone(s0.Overrides)
 	switch {
-	case s.Goal == "precision":
+	case s.Goal == "precision" && s.Design != "cross-sectional":
+		if s.NSecond > 0 && s.N > 0 {
+			s.NSecond = int(math.Round(float64(s.NSecond) * float64(e) / float64(s.N)))
+		} else {
+			s.NSecond = 0
+		}
+		s.Solve, s.N = "effect", e
+	case s.Goal == "precision" || s.Goal == "accuracy":
 		s.Solve, s.Total = "effect", e
 	case s.Design == "cross-sectional":
 		s.Solve, s.Power, s.Total = "power", 0, e
@@ -131,8 +138,10 @@ func sizeWords(res *designs.Result) string {
 	s := res.Spec
 	fg := res.FirstGroup
 	switch {
-	case s.Goal == "precision":
+	case s.Goal == "precision" && s.Design == "cross-sectional":
 		return "respondents (analysable)"
+	case s.Goal == "accuracy":
+		return "participants tested (analysable)"
 	case s.ContinuousExposure && s.Design == "cross-sectional":
 		return "respondents (analysable)"
 	case s.ContinuousExposure:
@@ -252,6 +261,107 @@ func marginCurve(res *designs.Result) (*plot.Plot, error) {
 		return nil, err
 	}
 	p.Legend.Add("the plan", m)
+	legendClear(p, false)
+	return p, nil
+}
+
+// ratioCurve draws the precision a ratio's interval reaches, the upper
+// over the lower limit, against the size of the first group, with the
+// stated precision as a dashed line when the plan was sized for it.
+func ratioCurve(res *designs.Result) (*plot.Plot, error) {
+	s := res.Spec
+	e := enrolled(res)
+	if e <= 0 || res.Result.PrecisionRatio == nil {
+		return nil, errors.New("the plan has no size and precision to draw")
+	}
+	var pts plotter.XYs
+	for _, n := range sizes(e) {
+		a, err := atEnrolment(s, n)
+		if err != nil || a.PrecisionRatio == nil {
+			continue
+		}
+		pts = append(pts, plotter.XY{X: sizeOf(s, a), Y: *a.PrecisionRatio})
+	}
+	if len(pts) < 2 {
+		return nil, errors.New("the precision could not be computed at the sizes around the plan")
+	}
+	measure := "risk ratio"
+	if s.Design == "case-control" {
+		measure = "odds ratio"
+	}
+	p := newPlot(title(res), sizeWords(res), "upper ÷ lower limit of the "+measure+"'s interval")
+	p.Y.Min = 1
+	line, err := curve(p, pts, 0, false)
+	if err != nil {
+		return nil, err
+	}
+	p.Legend.Add(withMethod("precision at each size", res), line...)
+	if s.Solve == "n" && s.PrecisionRatio > 1 {
+		t, err := hline(p, s.PrecisionRatio, pts[0].X, pts[len(pts)-1].X)
+		if err != nil {
+			return nil, err
+		}
+		p.Legend.Add("stated precision "+strconv.FormatFloat(s.PrecisionRatio, 'g', 4, 64), t)
+	}
+	x, y := sizeOf(s, &res.Result), *res.Result.PrecisionRatio
+	m, err := mark(p, x, y, draw.CircleGlyph{}, fmt.Sprintf("n = %s, upper ÷ lower %.3g", thousands(int(x)), y))
+	if err != nil {
+		return nil, err
+	}
+	p.Legend.Add("the plan", m)
+	legendClear(p, false)
+	return p, nil
+}
+
+// accuracyCurve draws the margins a study of diagnostic accuracy reaches
+// for sensitivity and for specificity against its respondents, with the
+// stated margin as a dashed line when the plan was sized for it.
+func accuracyCurve(res *designs.Result) (*plot.Plot, error) {
+	s := res.Spec
+	e := enrolled(res)
+	if e <= 0 {
+		return nil, errors.New("the study has no size to draw")
+	}
+	var se, sp plotter.XYs
+	for _, n := range sizes(e) {
+		a, err := atEnrolment(s, n)
+		if err != nil || a.MarginSensitivity == nil || a.MarginSpecificity == nil {
+			continue
+		}
+		se = append(se, plotter.XY{X: sizeOf(s, a), Y: *a.MarginSensitivity})
+		sp = append(sp, plotter.XY{X: sizeOf(s, a), Y: *a.MarginSpecificity})
+	}
+	if len(se) < 2 {
+		return nil, errors.New("the margins could not be computed at the sizes around the plan")
+	}
+	p := newPlot(title(res), sizeWords(res), "margin of the interval (± proportion)")
+	p.Y.Min = 0
+	l1, err := curve(p, se, 0, false)
+	if err != nil {
+		return nil, err
+	}
+	p.Legend.Add(withMethod("sensitivity's margin", res), l1...)
+	l2, err := curve(p, sp, 1, false)
+	if err != nil {
+		return nil, err
+	}
+	p.Legend.Add("specificity's margin", l2...)
+	if s.Solve == "n" && s.Margin > 0 {
+		t, err := hline(p, s.Margin, se[0].X, se[len(se)-1].X)
+		if err != nil {
+			return nil, err
+		}
+		p.Legend.Add("stated margin ±"+strconv.FormatFloat(s.Margin, 'g', 4, 64), t)
+	}
+	if a, err := atEnrolment(s, e); err == nil && a.MarginSensitivity != nil && a.MarginSpecificity != nil {
+		x := sizeOf(s, &res.Result)
+		y := math.Max(*a.MarginSensitivity, *a.MarginSpecificity)
+		m, err := mark(p, x, y, draw.CircleGlyph{}, fmt.Sprintf("n = %s, margins ±%.3g and ±%.3g", thousands(int(x)), *a.MarginSensitivity, *a.MarginSpecificity))
+		if err != nil {
+			return nil, err
+		}
+		p.Legend.Add("the plan", m)
+	}
 	legendClear(p, false)
 	return p, nil
 }

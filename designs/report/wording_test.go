@@ -597,13 +597,8 @@ func TestReferences(t *testing.T) {
 	for _, name := range names {
 		results = append(results, planExample(t, name))
 	}
-	for _, c := range [][2]string{{"cohort", ""}, {"case-control", ""}, {"trial", ""}, {"cross-sectional", ""},
-		{"cross-sectional", "precision"}, {"trial", "continuous"}, {"trial", "time-to-event"}, {"cohort", "continuous"}} {
-		goal, outcome := "", c[1]
-		if c[1] == "precision" {
-			goal, outcome = "precision", ""
-		}
-		data, err := designs.Starter(c[0], goal, outcome)
+	for _, c := range designs.Starters {
+		data, err := designs.Starter(c.Design, c.Goal, c.Outcome)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -745,14 +740,13 @@ func TestProtocolEditor(t *testing.T) {
 	for _, name := range names {
 		results = append(results, planExample(t, name))
 	}
-	for _, c := range [][3]string{{"cohort", "", ""}, {"case-control", "", ""}, {"trial", "", ""}, {"cross-sectional", "", ""},
-		{"cross-sectional", "precision", ""}, {"trial", "", "continuous"}, {"trial", "", "time-to-event"}, {"cohort", "", "continuous"}} {
-		data, err := designs.Starter(c[0], c[1], c[2])
+	for _, c := range designs.Starters {
+		data, err := designs.Starter(c.Design, c.Goal, c.Outcome)
 		if err != nil {
 			t.Fatal(err)
 		}
 		for _, sets := range [][]string{nil, {"solve=power", "n=300"}, {"solve=effect", "n=300"}, {"attrition=0"}} {
-			if c[0] == "cross-sectional" && len(sets) > 1 {
+			if c.Design == "cross-sectional" && len(sets) > 1 {
 				sets = []string{sets[0], "total=600"}
 			}
 			s, err := designs.Parse("starter.yaml", data, sets)
