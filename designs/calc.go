@@ -77,14 +77,43 @@ func (c *calculator) survival() (*survivalCalc, bool) {
 // 17:1623–1634):
 //
 //	n* = n*_unadjusted / (1 − R²)
+//
+// With interim analyses (the interim block), the fixed-sample n* is
+// multiplied by the group-sequential design's inflation factor R for the
+// target power (Jennison & Turnbull 2000, section 2.3); a time-to-event
+// plan inflates its events instead (survivalCalc.nStar).
 func (c *calculator) nStar(target float64, tr *trail) (float64, error) {
 	n, err := c.methodNStar(target, tr)
-	if err != nil || !c.s.Adjusted {
+	if err != nil {
 		return n, err
 	}
-	tr.rename("n_star", "n_star_unadjusted")
-	return tr.add("n_star", "n_star_unadjusted / (1 − r_squared): the inflation for the adjustment (Hsieh, Bloch & Larsen 1998)",
-		n/(1-c.s.AdjustR2), in("n_star_unadjusted", n), in("r_squared", c.s.AdjustR2)), nil
+	if c.s.Adjusted {
+		tr.rename("n_star", "n_star_unadjusted")
+		n = tr.add("n_star", "n_star_unadjusted / (1 − r_squared): the inflation for the adjustment (Hsieh, Bloch & Larsen 1998)",
+			n/(1-c.s.AdjustR2), in("n_star_unadjusted", n), in("r_squared", c.s.AdjustR2))
+	}
+	if c.s.Interim != nil && c.kind != calcSurvival {
+		r, err := c.inflation(target, tr)
+		if err != nil {
+			return math.NaN(), err
+		}
+		tr.rename("n_star", "n_star_fixed")
+		n = tr.add("n_star", "n_star_fixed × inflation: the maximum size of the group-sequential design",
+			n*r, in("n_star_fixed", n), in("inflation", r))
+	}
+	return n, nil
+}
+
+// inflation records and returns the inflation factor of the interim
+// block for the target power, at each comparison's alpha.
+func (c *calculator) inflation(target float64, tr *trail) (float64, error) {
+	iv := c.s.Interim
+	r, err := iv.Inflation(c.e.alpha, c.s.Sides, target)
+	if err != nil {
+		return math.NaN(), err
+	}
+	return tr.add("inflation", fmt.Sprintf("the maximum-information inflation factor R = (θ / (z_α + z_β))² of %d looks at information %s with %s boundaries, θ the drift at which the boundaries are crossed on the side of the effect with the target power (Armitage, McPherson & Rowe 1969; Jennison & Turnbull 2000, chapter 19)", iv.Looks, iv.TimingWords(), iv.BoundaryWords()),
+		r, alphaInput(c.s, c.e), inInt("sides", c.s.Sides), in("target_power", target), inInt("looks", iv.Looks)), nil
 }
 
 // methodNStar is the method's own n*, before any adjustment.
@@ -110,6 +139,16 @@ func (c *calculator) methodNStar(target float64, tr *trail) (float64, error) {
 // covariates, the method's power at n × (1 − R²), the information an
 // adjusted estimate keeps (the inverse of nStar's inflation).
 func (c *calculator) power(n1, n2 float64) float64 {
+	p := c.fixedPower(n1, n2)
+	if c.s.Interim != nil {
+		return c.s.Interim.sequentialPower(p, c.e.alpha, c.s.Sides)
+	}
+	return p
+}
+
+// fixedPower is the power of the fixed-sample design at effective sizes
+// n1 and n2 (see power).
+func (c *calculator) fixedPower(n1, n2 float64) float64 {
 	if c.s.Adjusted {
 		f := 1 - c.s.AdjustR2
 		n1, n2 = n1*f, n2*f
@@ -133,10 +172,14 @@ func (c *calculator) power(n1, n2 float64) float64 {
 
 // powerName names the power computation in the steps.
 func (c *calculator) powerName() string {
+	name := c.methodPowerName()
 	if c.s.Adjusted {
-		return c.methodPowerName() + ", at each size × (1 − r_squared) for the adjustment"
+		name += ", at each size × (1 − r_squared) for the adjustment"
 	}
-	return c.methodPowerName()
+	if c.s.Interim != nil {
+		name = "the group-sequential power: the probability of crossing a boundary on the side of the effect at drift θ = z_α + Φ⁻¹(p), p " + name + " with no interim look (recursive integration, Jennison & Turnbull 2000, chapter 19)"
+	}
+	return name
 }
 
 // methodPowerName names the method's own power computation.
@@ -250,7 +293,7 @@ func newCalculator(s *Spec, m *MethodInfo, e effects) calculator {
 			// The cluster-level analysis is a t test whatever the method.
 			mm = power.T
 		}
-		return calculator{kind: calcMeans, s: s, id: m.ID, method: int(mm), mc: meanComparison(s, e)}
+		return calculator{kind: calcMeans, s: s, id: m.ID, method: int(mm), mc: meanComparison(s, e), e: e}
 	case s.Outcome == "time-to-event":
 		return calculator{kind: calcSurvival, s: s, id: m.ID, method: int(m.events), e: e}
 	case s.Outcome == "rate":
@@ -535,7 +578,11 @@ func (c *survivalCalc) entry() power.Entry {
 //
 //	P1 = (1 − na) P(HR h) + na P(h),  P2 = (1 − c) P(h) + c P(HR h)
 func (c *survivalCalc) probabilities() (float64, float64) {
-	en := c.entry()
+	return c.probabilitiesAt(c.entry())
+}
+
+// probabilitiesAt is probabilities with recruitment and follow-up en.
+func (c *survivalCalc) probabilitiesAt(en power.Entry) (float64, float64) {
 	h := c.s.ControlHazard
 	pi, pc := power.EventProbability(c.e.plannedHR*h, en), power.EventProbability(h, en)
 	return (1-c.e.na)*pi + c.e.na*pc, (1-c.e.c)*pc + c.e.c*pi
@@ -552,6 +599,17 @@ func (c *survivalCalc) events(target float64) (float64, error) {
 	return power.EventsMethod(c.method).Events(c.e.hr, c.s.Ratio, c.e.alpha, c.s.Sides, target)
 }
 
+// maxEvents is the events the plan needs at the target power: those of
+// the method, times the inflation factor with interim analyses.
+func (c *survivalCalc) maxEvents(target float64) (float64, error) {
+	d, err := c.events(target)
+	if err != nil || c.s.Interim == nil {
+		return d, err
+	}
+	r, err := c.s.Interim.Inflation(c.e.alpha, c.s.Sides, target)
+	return d * r, err
+}
+
 func (c *survivalCalc) nStar(target float64, tr *trail) (float64, error) {
 	d, err := c.events(target)
 	if err != nil {
@@ -562,6 +620,14 @@ func (c *survivalCalc) nStar(target float64, tr *trail) (float64, error) {
 		ins = append(c.params(), in("target_power", target), in("ratio", c.s.Ratio))
 	}
 	tr.add("events_star", fmt.Sprintf("the unrounded number of events from %s", MethodByID(c.id).Name), d, ins...)
+	if c.s.Interim != nil {
+		r, err := (*calculator)(c).inflation(target, tr)
+		if err != nil {
+			return math.NaN(), err
+		}
+		tr.rename("events_star", "events_star_fixed")
+		d = tr.add("events_star", "events_star_fixed × inflation: the events of the group-sequential design's last look", d*r, in("events_star_fixed", d), in("inflation", r))
+	}
 	tr.addInt("events", "ceil(events_star): the events to report", ceilTol(d), in("events_star", d))
 	p1, p2 := c.probabilities()
 	c.recordProbabilities(tr, p1, p2)

@@ -189,6 +189,7 @@ var specKeys = map[string]keyInfo{
 	"direction":            {kindText, "first-higher or first-lower"},
 	"margin_scale":         {kindText, "difference or ratio"},
 	"matching":             {kindMap, "a map with controls_per_case (a whole number from 1 to 10) and optionally exposure_correlation (in [0, 1), default 0)"},
+	"interim":              {kindMap, "a map with looks (2 to 10), boundary (pocock, obrien-fleming or spending), and optionally timing (the looks' information fractions), spending_function and rho"},
 	"adjustment":           {kindMap, "a map with r_squared: the R² of the exposure regressed on the other covariates of the analysis, in [0, 1)"},
 	"claimed":              {kindMap, "a map of what a protocol states, read by enough review: n, n_second or total, enrol_total, power, alpha, sides, method, events, clusters, tolerance_n, tolerance_power"},
 	"simulate":             {kindMap, "a map with replicates (100 to 1e9), seed (a whole number from 0 to 2^53) and optionally n (the first group's size to simulate at)"},
@@ -228,6 +229,7 @@ var nestedKeys = map[string]map[string]string{
 	"claimed":    claimedKeys,
 	"matching":   matchingKeys,
 	"adjustment": adjustmentKeys,
+	"interim":    interimKeys,
 }
 
 // numericMaps are the maps whose keys are numbers of the plan, in the
@@ -373,7 +375,7 @@ func keysFor(sel selector) map[string]bool {
 		return ok
 	}
 	if sel.design == "trial" {
-		add("hypothesis", "non_adherence", "contamination", "arms", "comparisons")
+		add("hypothesis", "non_adherence", "contamination", "arms", "comparisons", "interim")
 		if sel.hypothesis == "non-inferiority" || sel.hypothesis == "equivalence" {
 			add("margin", "higher_is_better")
 			if sel.outcome == "binary" {

@@ -768,7 +768,7 @@ func designFigures(s *Spec, ans *Answer, sv *solved) {
 		ans.Pairs = ans.N[0]
 	}
 	if sc, ok := sv.calc.survival(); ok && s.Outcome == "time-to-event" && s.Solve == "n" {
-		if d, err := sc.events(s.Power); err == nil {
+		if d, err := sc.maxEvents(s.Power); err == nil {
 			ans.Events = ceilTol(d)
 		}
 	}
@@ -794,6 +794,9 @@ func OtherMethods(s *Spec) []*MethodInfo {
 		o := &Methods[i]
 		if s.MarginScale == "ratio" && o.ID == "blackwelder" {
 			continue // a Wald method on the difference scale
+		}
+		if s.Interim != nil && !slices.Contains(InterimMethods, o.ID) {
+			continue // its test is not a z statistic the inflation scales
 		}
 		if o.ID != s.Method && o.ID != "exact" && o.servesSpec(s) {
 			others = append(others, o)
@@ -894,6 +897,11 @@ func planComparison(s *Spec, res *Result, m *MethodInfo) error {
 		ans.Effect = plannedEffect(s)
 		if e.diluted {
 			ans.DilutedEffect = dilutedEffect(s, main.e)
+		}
+	}
+	if s.Interim != nil && s.Solve != "effect" {
+		if err := interimFigures(s, ans, &main, tr); err != nil {
+			return err
 		}
 	}
 	describeDesign(s, res, &main)

@@ -134,6 +134,10 @@ type Answer struct {
 	// Paired designs: the number of pairs.
 	Pairs int `json:"pairs,omitempty"`
 
+	// Interim is the group-sequential design of a trial with interim
+	// analyses: its boundaries look by look and what they cost.
+	Interim *InterimResult `json:"interim,omitempty"`
+
 	// Matched case-control sets: the number of sets (one case each; N is
 	// then [cases, controls]), the sets expected to be discordant (those
 	// that inform the conditional analysis) and the cases an unmatched
@@ -372,4 +376,52 @@ func (f FileValue) MarshalJSON() ([]byte, error) {
 		c.Value = typedValue(f.Value)
 	}
 	return json.Marshal(c)
+}
+
+// InterimResult is a group-sequential design's figures: the JSON object
+// result.interim.
+type InterimResult struct {
+	// Boundary is pocock, obrien-fleming or spending; SpendingFunction
+	// and Rho say which spending function.
+	Boundary         string   `json:"boundary"`
+	SpendingFunction string   `json:"spending_function,omitempty"`
+	Rho              *float64 `json:"rho,omitempty"`
+	// Inflation is the maximum-information inflation factor R for the
+	// target power (solving n) or the power reached (solving power).
+	Inflation float64 `json:"inflation"`
+	// Drift is θ, the expected z statistic at full information under the
+	// planned effect at the plan's maximum size.
+	Drift float64       `json:"drift"`
+	Looks []InterimLook `json:"looks"`
+	// ExpectedNNull and ExpectedNAlternative are the expected analysable
+	// participants in each group when the trial stops at its first
+	// crossing, under no effect and under the planned effect; the events
+	// likewise for a time-to-event plan.
+	ExpectedNNull             []float64 `json:"expected_n_null"`
+	ExpectedNAlternative      []float64 `json:"expected_n_alternative"`
+	ExpectedEventsNull        *float64  `json:"expected_events_null,omitempty"`
+	ExpectedEventsAlternative *float64  `json:"expected_events_alternative,omitempty"`
+}
+
+// InterimLook is one analysis of a group-sequential design.
+type InterimLook struct {
+	// Information is the look's information fraction; N the analysable
+	// participants in each group by then; Events the events by then
+	// (time-to-event plans, whose information is their events).
+	Information float64 `json:"information"`
+	N           []int   `json:"n"`
+	Events      *int    `json:"events,omitempty"`
+	// Time is when a time-to-event trial expects the look's events, from
+	// the first entry, in time_unit; N is then the participants entered by
+	// that time.
+	Time *float64 `json:"time,omitempty"`
+	// Z is the critical value for |Z| (one-sided: Z in the direction of
+	// benefit), PNominal its nominal p (two-sided for a two-sided design),
+	// AlphaSpent the cumulative alpha by this look.
+	Z          float64 `json:"z"`
+	PNominal   float64 `json:"p_nominal"`
+	AlphaSpent float64 `json:"alpha_spent"`
+	// StopProbability is the probability of stopping here under the
+	// planned effect (crossing here first; at the last look, reaching it).
+	StopProbability float64 `json:"stop_probability"`
 }

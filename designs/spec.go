@@ -75,6 +75,9 @@ type Spec struct {
 	// 1998, Stat Med 17:1623–1634).
 	Adjusted bool
 	AdjustR2 float64
+	// Interim is the interim block of a group-sequential trial (nil: a
+	// fixed-sample design).
+	Interim *Interim
 
 	// Matched case-control studies (the matching block): Controls
 	// controls per case, exposure correlated ExposureCorrelation within
@@ -579,7 +582,7 @@ func (r *reader) checkNested(head, sub string, e *entry) *SpecError {
 		if e.node.Kind != yaml.ScalarNode || e.node.Tag == "!!null" {
 			return r.errAt(e, "is not text; allowed: a line saying where the value came from (put quotes around text that contains \": \")")
 		}
-	case "simulate", "cluster", "claimed", "matching", "adjustment":
+	case "simulate", "cluster", "claimed", "matching", "adjustment", "interim":
 		known := nestedKeys[head]
 		if _, ok := known[sub]; !ok {
 			names := make([]string, 0, len(known))

@@ -89,6 +89,10 @@ func replayStep(st Step) (float64, bool) {
 			a, b = "effective_first", "effective_second"
 		}
 		return g(a)*g("event_probability_first") + g(b)*g("event_probability_second"), true
+	case strings.HasPrefix(rule, "n_star_fixed × inflation"):
+		return g("n_star_fixed") * g("inflation"), true
+	case strings.HasPrefix(rule, "events_star_fixed × inflation"):
+		return g("events_star_fixed") * g("inflation"), true
 	case strings.HasPrefix(rule, "n_star_unadjusted / (1 − r_squared)"):
 		return g("n_star_unadjusted") / (1 - g("r_squared")), true
 	case rule == "unexposed_rate × rate_ratio":
@@ -174,7 +178,7 @@ func replayStep(st Step) (float64, bool) {
 // computedSteps are the steps that a method computes (checked against
 // outside values elsewhere); every other step must replay by arithmetic.
 var computedSteps = map[string]bool{
-	"n_star": true, "n_star_unadjusted": true, "discordant_per_set": true, "n0": true, "expected_lower": true, "expected_upper": true, "precision_ratio_achieved": true, "events_star": true, "achieved_power": true, "power": true,
+	"n_star": true, "n_star_unadjusted": true, "n_star_fixed": true, "events_star_fixed": true, "inflation": true, "discordant_per_set": true, "n0": true, "expected_lower": true, "expected_upper": true, "precision_ratio_achieved": true, "events_star": true, "achieved_power": true, "power": true,
 	"event_probability_first": true, "event_probability_second": true,
 	"detectable_lower": true, "detectable_upper": true, "diluted_lower": true, "diluted_upper": true,
 	"z": true, "margin": true, "analysable_first": true,

@@ -3,6 +3,7 @@ package designs
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 
 	"gopkg.in/yaml.v3"
@@ -94,10 +95,15 @@ func (r *reader) buildComparison(s *Spec) {
 	if s.Matched {
 		def = "dupont"
 	}
-	if r.get("adjustment") != nil && def == "fleiss-cc" {
-		// An adjusted analysis is a regression's Wald test, which has no
-		// continuity correction.
+	if (r.get("adjustment") != nil || r.get("interim") != nil) && def == "fleiss-cc" {
+		// An adjusted analysis is a regression's Wald test, and a
+		// group-sequential one a z statistic's: neither has a continuity
+		// correction.
 		def = "fleiss"
+	}
+	if r.get("interim") != nil && def == "t" && slices.Contains(fits, "z") {
+		// The inflation of a group-sequential design is on the z scale.
+		def = "z"
 	}
 	var err *SpecError
 	if s.Method, _, err = r.choice("method", def, fits...); err != nil {
@@ -225,6 +231,7 @@ func (r *reader) buildComparison(s *Spec) {
 	} else if te != nil && s.Test == "t-student" && s.SD1 != s.SD2 {
 		r.refuse(r.errAt(te, "t-student assumes equal standard deviations, but sd_first and sd_second differ (its level and power then depart from the nominal ones); allowed: t-welch, or one common sd"))
 	}
+	r.buildInterim(s)
 	r.buildSimulate(s)
 }
 

@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"slices"
 	"strings"
 
 	"github.com/spf13/cobra"
@@ -33,6 +34,9 @@ type methodObject struct {
 	// Exposure is "continuous" for a method of a binary outcome related to
 	// a continuous exposure, and omitted otherwise.
 	Exposure string `json:"exposure,omitempty"`
+	// Interim says the method plans trials with interim analyses (the
+	// interim block): its test is a z statistic.
+	Interim bool `json:"interim"`
 }
 
 // methodObjects lists the catalogue in its JSON form: the outcome spelled
@@ -60,6 +64,7 @@ func methodObjects() []methodObject {
 		if m.Continuous {
 			o.Exposure = "continuous"
 		}
+		o.Interim = slices.Contains(designs.InterimMethods, m.ID)
 		switch {
 		case m.PairsOnly:
 			o.Matching = "pairs"
@@ -82,8 +87,9 @@ designs, outcome and hypotheses it serves, its default planned test and its
 published reference.
 
 With -f json, an array of objects {id, name, citation, designs, goal,
-outcome, hypotheses, default_test, note} for scripts; markdown and text
-give the same listing.`,
+outcome, hypotheses, default_test, note, interim} for scripts; markdown and
+text give the same listing, followed by the boundary families of interim
+analyses (interim.boundary and its spending functions).`,
 		Example: "  enough methods\n  enough methods -f json",
 		Args: func(_ *cobra.Command, args []string) error {
 			if len(args) > 0 {
@@ -146,6 +152,15 @@ func writeMethodsText(w io.Writer) error {
 		fmt.Fprintf(&b, "  default test: %s\n", test)
 		fmt.Fprintf(&b, "  about:        %s\n", m.Note)
 		fmt.Fprintf(&b, "  reference:    %s\n", m.Citation)
+		if m.Interim {
+			b.WriteString("  interim:      yes (interim analyses inflate its size on the z scale)\n")
+		}
+	}
+	b.WriteString("\nBoundary families for interim analyses (design: trial, interim.boundary):\n")
+	for _, f := range designs.BoundaryFamilies {
+		fmt.Fprintf(&b, "\n%s — %s\n", f.ID, f.Name)
+		fmt.Fprintf(&b, "  about:        %s\n", f.Note)
+		fmt.Fprintf(&b, "  reference:    %s\n", f.Citation)
 	}
 	_, err := io.WriteString(w, b.String())
 	return err

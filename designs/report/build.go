@@ -170,6 +170,9 @@ func build(r *designs.Result) *document {
 	if e := effectSection(r); e != nil {
 		d.sections = append(d.sections, *e)
 	}
+	if e := interimSection(r); e != nil {
+		d.sections = append(d.sections, *e)
+	}
 	if len(r.Alternatives) > 0 {
 		d.sections = append(d.sections, alternativeSection(r))
 	}

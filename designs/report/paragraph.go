@@ -25,6 +25,7 @@ func paragraph(r *designs.Result) string {
 	assume(&b, r)
 	adjustment(&b, r)
 	conclude(&b, r)
+	interimSentences(&b, r)
 	matchedSentences(&b, r)
 	rateSentences(&b, r)
 	return strings.TrimSpace(b.String())

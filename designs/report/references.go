@@ -24,6 +24,12 @@ const (
 	citeWelch         = "Welch BL (1947). The generalization of 'Student's' problem when several different population variances are involved. Biometrika 34:28-35"                                                                              // Welch 1947
 	citeMiettinen     = "Miettinen O, Nurminen M (1985). Comparative analysis of two rates. Stat Med 4:213-226"                                                                                                                                 // Miettinen & Nurminen 1985
 	citeHsiehBloch    = "Hsieh FY, Bloch DA, Larsen MD (1998). A simple method of sample size calculation for linear and logistic regression. Stat Med 17:1623-1634"                                                                            // Hsieh, Bloch & Larsen 1998
+	citeArmitage      = "Armitage P, McPherson CK, Rowe BC (1969). Repeated significance tests on accumulating data. J R Stat Soc A 132:235-244"
+	citeJennison      = "Jennison C, Turnbull BW (2000). Group Sequential Methods with Applications to Clinical Trials. Chapman & Hall/CRC"
+	citePocock        = "Pocock SJ (1977). Group sequential methods in the design and analysis of clinical trials. Biometrika 64:191-199"
+	citeOBrien        = "O'Brien PC, Fleming TR (1979). A multiple testing procedure for clinical trials. Biometrics 35:549-556"
+	citeLanDeMets     = "Lan KKG, DeMets DL (1983). Discrete sequential boundaries for clinical trials. Biometrika 70:659-663"
+	citeKimDeMets     = "Kim K, DeMets DL (1987). Design and analysis of group sequential tests based on the type I error spending rate function. Biometrika 74:149-154"
 )
 
 // references lists the full citation of every method, formula and
@@ -91,6 +97,19 @@ func references(r *designs.Result) []string {
 		}
 		if s.Adjusted {
 			add(citeHsiehBloch)
+		}
+		if iv := s.Interim; iv != nil {
+			add(citeArmitage, citeJennison)
+			switch {
+			case iv.Boundary == "pocock":
+				add(citePocock)
+			case iv.Boundary == "obrien-fleming":
+				add(citeOBrien)
+			case iv.Spending == "power":
+				add(citeLanDeMets, citeKimDeMets)
+			default:
+				add(citeLanDeMets)
+			}
 		}
 		if r.Result.UnmatchedCases > 0 {
 			if m := designs.MethodByID("fleiss"); m != nil {
