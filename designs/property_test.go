@@ -40,6 +40,31 @@ func genPlan(r *rand.Rand) randomPlan {
 		if r.IntN(5) == 0 {
 			fmt.Fprintf(&b, "arms: %d\n", pick(r, 3, 4))
 		}
+		if r.IntN(5) == 0 {
+			// A group-sequential design: solving effect is refused, and
+			// solving n and power must still agree.
+			k := 2 + r.IntN(5)
+			fmt.Fprintf(&b, "interim:\n  looks: %d\n", k)
+			switch r.IntN(3) {
+			case 0:
+				fmt.Fprintf(&b, "  boundary: %s\n", pick(r, "pocock", "obrien-fleming"))
+			default:
+				fmt.Fprintf(&b, "  boundary: spending\n  spending_function: %s\n", pick(r, "obrien-fleming-type", "pocock-type", "power"))
+				if strings.HasSuffix(strings.TrimSpace(b.String()), "power") {
+					fmt.Fprintf(&b, "  rho: %.3g\n", u(0.5, 4))
+				}
+				if r.IntN(2) == 0 {
+					ts := make([]string, k)
+					t := 0.0
+					for i := range k - 1 {
+						t += (1 - t) * u(0.15, 0.6)
+						ts[i] = fmt.Sprintf("%.3g", t)
+					}
+					ts[k-1] = "1"
+					fmt.Fprintf(&b, "  timing: [%s]\n", strings.Join(ts, ", "))
+				}
+			}
+		}
 	}
 	switch kind {
 	case 0, 1: // binary trial or cohort, superiority

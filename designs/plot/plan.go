@@ -195,13 +195,18 @@ func powerCurve(res *designs.Result, planned bool) (*plot.Plot, error) {
 		return nil, errors.New("the power could not be computed at the sizes around the plan")
 	}
 	ylabel := powerWords(s)
-	p := newPlot(title(res), sizeWords(res), ylabel)
+	xlabel, what := sizeWords(res), "power at each size"
+	if s.Interim != nil {
+		xlabel = strings.Replace(xlabel, "(analysable", "(analysable, maximum", 1)
+		what = fmt.Sprintf("group-sequential power, %d looks, at each maximum size", s.Interim.Looks)
+	}
+	p := newPlot(title(res), xlabel, ylabel)
 	powerAxis(p)
 	line, err := curve(p, pts, 0, false)
 	if err != nil {
 		return nil, err
 	}
-	p.Legend.Add(withMethod("power at each size", res), line...)
+	p.Legend.Add(withMethod(what, res), line...)
 	if s.Power > 0 && s.Solve == "n" {
 		t, err := hline(p, s.Power, pts[0].X, pts[len(pts)-1].X)
 		if err != nil {

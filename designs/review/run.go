@@ -283,6 +283,9 @@ func (rc *recheck) detectable() ([]Detectable, string) {
 			powers = []float64{p}
 		}
 	}
+	if rc.spec.Interim != nil {
+		return out, "The smallest detectable effect is not computed for a group-sequential design, whose boundaries and inflation are planned for a stated effect."
+	}
 	var firstErr error
 	for _, p := range powers {
 		edits := append(rc.in.SizeEdits(), designs.Set("solve", "effect"), designs.Set("power", p))

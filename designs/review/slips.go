@@ -481,6 +481,20 @@ var Slips = []Slip{
 			return []designs.Edit{designs.Delete("adjustment")}, true
 		},
 	},
+	// interim-ignored: the fixed-sample size stated for a group-sequential
+	// trial, without the inflation its boundaries cost: every figure
+	// recomputed without the interim block.
+	{
+		ID: "interim-ignored", Group: "interim",
+		Says:    "no inflation for the interim analyses (the fixed-sample size)",
+		Request: "Confirm whether the sample size allows for the interim analyses the protocol plans: a group-sequential design's maximum size is the fixed-sample size times the inflation factor of its boundaries (Jennison & Turnbull 2000), or the power falls below the target.",
+		Edits: func(p *Protocol) ([]designs.Edit, bool) {
+			if p.Spec.Interim == nil {
+				return nil, false
+			}
+			return []designs.Edit{designs.Delete("interim")}, true
+		},
+	},
 	// overdispersion-ignored: counts of events planned as Poisson where
 	// the protocol states negative-binomial overdispersion: every figure
 	// recomputed with overdispersion 0.

@@ -1,0 +1,112 @@
+package designs
+
+import (
+	"math"
+	"strings"
+	"testing"
+)
+
+// TestInterimPlans checks group-sequential plans against the fixed-sample
+// sizes written out in R (testdata/reference/interim_plans.R and .out)
+// times the inflation factors of testdata/reference/groupseq_inflation.tsv.
+func TestInterimPlans(t *testing.T) {
+	tests := []struct {
+		name, spec string
+		// fixed is the unrounded fixed-sample size (or events), inflated
+		// the maximum, and n the rounded maximum: per group, or events.
+		fixed, inflated float64
+		n               int
+		events          bool
+	}{
+		{"means, z, Pocock K=5", "design: trial\noutcome: continuous\nmean_difference: 3\nsd: 10\npower: 0.8\ninterim: {looks: 5, boundary: pocock}\n",
+			174.419549652, 214.290569786, 215, false}, // interim_plans.out: means_z_fixed, means_z_pocock5
+		{"log-rank, Schoenfeld, O'Brien-Fleming K=4", "design: trial\noutcome: time-to-event\nhazard_ratio: 0.7\ncontrol_median: 12\naccrual: 12\nfollow_up: 12\npower: 0.9\ninterim: {looks: 4, boundary: obrien-fleming}\n",
+			330.377913964, 337.700092387, 338, true}, // interim_plans.out: schoenfeld_fixed, schoenfeld_obf4
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			s, err := Parse("interim.yaml", []byte("version: 1\n"+tt.spec), nil)
+			if err != nil {
+				t.Fatal(err)
+			}
+			res, err := Plan(s)
+			if err != nil {
+				t.Fatal(err)
+			}
+			fixedName, maxName := "n_star_fixed", "n_star"
+			if tt.events {
+				fixedName, maxName = "events_star_fixed", "events_star"
+			}
+			if got := stepOut(res, fixedName); math.Abs(got-tt.fixed) > 1e-6*tt.fixed {
+				t.Errorf("%s = %.9f, want %.9f", fixedName, got, tt.fixed)
+			}
+			if got := stepOut(res, maxName); math.Abs(got-tt.inflated) > 2e-5*tt.inflated {
+				t.Errorf("%s = %.9f, want %.9f", maxName, got, tt.inflated)
+			}
+			got := res.Result.N[0]
+			if tt.events {
+				got = res.Result.Events
+			}
+			if got != tt.n {
+				t.Errorf("maximum %d, want %d", got, tt.n)
+			}
+			iv := res.Result.Interim
+			if iv == nil || len(iv.Looks) != s.Interim.Looks {
+				t.Fatalf("result.interim %+v", iv)
+			}
+			last := iv.Looks[len(iv.Looks)-1]
+			if last.N[0] != res.Result.N[0] || math.Abs(last.AlphaSpent-0.05) > 1e-6 {
+				t.Errorf("the last look has %v and alpha spent %v", last.N, last.AlphaSpent)
+			}
+			sum := 0.0
+			for _, l := range iv.Looks {
+				sum += l.StopProbability
+			}
+			if math.Abs(sum-1) > 1e-9 {
+				t.Errorf("the stopping probabilities add to %v", sum)
+			}
+			// Power at the maximum size reaches the target, and solving
+			// power there agrees.
+			if *res.Result.AchievedPower < *res.Power {
+				t.Errorf("power %v at the maximum, below the target", *res.Result.AchievedPower)
+			}
+		})
+	}
+}
+
+// TestInterimRefused: every misuse of the interim block is refused in one
+// line naming the key.
+func TestInterimRefused(t *testing.T) {
+	base := "version: 1\ndesign: trial\ncontrol_risk: 0.3\nrisk_ratio: 0.7\npower: 0.8\n"
+	tests := []struct{ extra, key, want string }{
+		{"interim: {looks: 11, boundary: pocock}\n", "interim.looks", "2 to 10"},
+		{"interim: {looks: 1, boundary: pocock}\n", "interim.looks", "2 to 10"},
+		{"interim: {looks: 3, boundary: pocock, timing: [0.3, 0.6, 1]}\n", "interim.timing", "equally spaced"},
+		{"interim: {boundary: spending, spending_function: pocock-type, timing: [0.5, 0.4, 1]}\n", "interim.timing", "does not increase"},
+		{"interim: {boundary: spending, spending_function: pocock-type, timing: [0.5, 0.9]}\n", "interim.timing", "ends at 0.9"},
+		{"interim: {looks: 4, boundary: spending, spending_function: pocock-type, timing: [0.5, 1]}\n", "interim.timing", "2 fractions for 4 looks"},
+		{"interim: {looks: 3, boundary: pocock, spending_function: pocock-type}\n", "interim.spending_function", "boundary spending only"},
+		{"interim: {looks: 3, boundary: spending}\n", "interim", "no spending_function"},
+		{"interim: {looks: 3, boundary: spending, spending_function: power, rho: 0}\n", "interim.rho", "above 0"},
+		{"interim: {looks: 3, boundary: spending, spending_function: power}\n", "interim.rho", "missing"},
+		{"interim: {looks: 3, boundary: pocock, rho: 2}\n", "interim.rho", "spending_function power only"},
+		{"interim: {looks: 3, boundary: haybittle}\n", "interim.boundary", "pocock, obrien-fleming or spending"},
+		{"interim: {looks: 3}\n", "interim", "no boundary"},
+		{"interim: {looks: 3, boundary: pocock}\nmethod: fleiss-cc\n", "method", "allowed with interim"},
+		{"interim: {looks: 3, boundary: pocock}\nsolve: effect\nn: 300\n", "solve", "not available with interim"},
+	}
+	for _, tt := range tests {
+		_, err := Parse("interim.yaml", []byte(base+tt.extra), nil)
+		if err == nil {
+			t.Errorf("%q: accepted", tt.extra)
+			continue
+		}
+		msg := err.Error()
+		if strings.Contains(msg, "\n") || !strings.Contains(msg, tt.key+":") || !strings.Contains(msg, tt.want) {
+			t.Errorf("%q: %q, want one line naming %s and saying %q", tt.extra, msg, tt.key, tt.want)
+		}
+	}
+	if _, err := Parse("interim.yaml", []byte("version: 1\ndesign: cohort\nunexposed_risk: 0.3\nrisk_ratio: 0.7\npower: 0.8\ninterim: {looks: 3, boundary: pocock}\n"), nil); err == nil || !strings.Contains(err.Error(), "interim") {
+		t.Errorf("interim on a cohort: %v", err)
+	}
+}
