@@ -1,7 +1,9 @@
 package designs
 
 import (
+	"context"
 	"math"
+	"slices"
 	"strings"
 	"testing"
 )
@@ -108,5 +110,62 @@ func TestInterimRefused(t *testing.T) {
 	}
 	if _, err := Parse("interim.yaml", []byte("version: 1\ndesign: cohort\nunexposed_risk: 0.3\nrisk_ratio: 0.7\npower: 0.8\ninterim: {looks: 3, boundary: pocock}\n"), nil); err == nil || !strings.Contains(err.Error(), "interim") {
 		t.Errorf("interim on a cohort: %v", err)
+	}
+}
+
+// TestInterimSimulation simulates group-sequential plans of each outcome:
+// the z statistic's type I error lies within 3 Monte-Carlo standard errors
+// of alpha (the boundaries of groupseq_make.py hold their level), the
+// planned test's power agrees with the closed form, the stopping shares
+// follow the closed form's probabilities within 4 standard errors, and the
+// result does not depend on the number of workers.
+func TestInterimSimulation(t *testing.T) {
+	specs := map[string]string{
+		"binary": "design: trial\ncontrol_risk: 0.3\nrisk_ratio: 0.7\npower: 0.9\ninterim: {looks: 4, boundary: obrien-fleming}\n",
+		"means":  "design: trial\noutcome: continuous\nmean_difference: 3\nsd: 10\npower: 0.8\ninterim: {looks: 3, boundary: spending, spending_function: pocock-type, timing: [0.3, 0.6, 1]}\n",
+		"survival": "design: trial\noutcome: time-to-event\nhazard_ratio: 0.7\ncontrol_median: 12\naccrual: 12\nfollow_up: 12\npower: 0.85\n" +
+			"interim: {looks: 2, boundary: spending, spending_function: power, rho: 2}\n",
+	}
+	const reps = 4000
+	for name, spec := range specs {
+		t.Run(name, func(t *testing.T) {
+			var first *Simulation
+			for _, workers := range []int{1, 3} {
+				s, err := Parse("interim.yaml", []byte("version: 1\n"+spec), nil)
+				if err != nil {
+					t.Fatal(err)
+				}
+				res, err := Plan(s)
+				if err != nil {
+					t.Fatal(err)
+				}
+				if err := Verify(context.Background(), s, res, SimOptions{Replicates: reps, Seed: 11, SeedSet: true, Workers: workers}); err != nil {
+					t.Fatal(err)
+				}
+				sim, q := res.Simulation, res.Simulation.Sequential
+				if first == nil {
+					first = sim
+					if !*q.ZType1Agrees {
+						t.Errorf("z type I error %v (se %v) not within 3 SE of alpha", *q.ZType1Error, *q.ZType1SE)
+					}
+					if !*sim.Agrees {
+						t.Errorf("simulated power %v, closed form %v", *sim.Power, sim.ClosedFormPower)
+					}
+					for k, p := range q.StopByLook {
+						want := res.Result.Interim.Looks[k].StopProbability
+						if k == len(q.StopByLook)-1 {
+							continue // the closed form's last entry is reaching the look
+						}
+						if se := math.Sqrt(want * (1 - want) / reps); math.Abs(p-want) > 4*se+1e-3 {
+							t.Errorf("look %d: stopped in %.4f of the trials, the closed form says %.4f", k+1, p, want)
+						}
+					}
+					continue
+				}
+				if *sim.Power != *first.Power || *sim.Type1Error != *first.Type1Error || !slices.Equal(q.StopByLook, first.Sequential.StopByLook) {
+					t.Errorf("workers %d: %v/%v, not %v/%v", workers, *sim.Power, q.StopByLook, *first.Power, first.Sequential.StopByLook)
+				}
+			}
+		})
 	}
 }

@@ -151,6 +151,10 @@ type Simulation struct {
 	Coverage       *float64  `json:"coverage,omitempty"`
 	CoverageSE     *float64  `json:"coverage_se,omitempty"`
 	CoverageCI     []float64 `json:"coverage_ci,omitempty"`
+
+	// Sequential is the simulation of a group-sequential trial (a plan
+	// with interim analyses).
+	Sequential *SeqSimulation `json:"sequential,omitempty"`
 }
 
 // SimSolved is the smallest first-group size whose simulated power reaches
@@ -185,6 +189,9 @@ type simSetup struct {
 func Verify(ctx context.Context, s *Spec, res *Result, o SimOptions) error {
 	if s.Goal == "precision" || s.Goal == "accuracy" {
 		return verifyPrecision(ctx, s, res, o)
+	}
+	if s.Interim != nil {
+		return verifySequential(ctx, s, res, o)
 	}
 	if s.Solve == "effect" {
 		return &InputError{Msg: s.File + ": simulate: solve effect gives two detectable effects, not one to simulate; allowed: solve n or power (set the effect key to the detectable effect and solve: power to verify it)"}

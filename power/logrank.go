@@ -485,25 +485,31 @@ func (w *logRankWorker) Replicate(rng *rand.Rand) bool {
 		return false
 	}
 	u, v := w.stat()
+	return w.m.rejects(u, v, w.m.z, w.m.crit2)
+}
+
+// rejects decides the planned test from U = O1 − E1 and V at the
+// one-sided critical value z (margin tests) or the squared critical value
+// crit2 (superiority); no data (V = 0) never reject.
+func (m *logRankModel) rejects(u, v, z, crit2 float64) bool {
 	if !(v > 0) {
 		return false
 	}
-	m := w.m
 	switch m.test {
 	case lrNonInferiority:
 		// Z = (U − V ln M)/√V against ∓z.
 		s := u - v*m.lnM
 		if m.lnM > 0 {
-			return s < -m.z*math.Sqrt(v)
+			return s < -z*math.Sqrt(v)
 		}
-		return s > m.z*math.Sqrt(v)
+		return s > z*math.Sqrt(v)
 	case lrEquivalence:
 		// Both (U + V ln M)/√V > z and (U − V ln M)/√V < −z.
-		zv, vl := m.z*math.Sqrt(v), v*m.lnM
+		zv, vl := z*math.Sqrt(v), v*m.lnM
 		return u+vl > zv && u-vl < -zv
 	}
 	if m.sides == 1 && (u < 0) != (m.dir < 0) {
 		return false
 	}
-	return u*u > m.crit2*v
+	return u*u > crit2*v
 }

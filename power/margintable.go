@@ -24,34 +24,46 @@ func MarginRejectionTable(m MarginMethod, n1, n2 int, d0, alpha float64) []bool 
 		panic("power: the margin boundary must be in (-1, 1) and not 0")
 	}
 	za := ZAlpha(alpha, 1)
+	out := make([]bool, (n1+1)*(n2+1))
+	for x1 := 0; x1 <= n1; x1++ {
+		for x2 := 0; x2 <= n2; x2++ {
+			out[x1*(n2+1)+x2] = marginReject(m, x1, n1, x2, n2, d0, za)
+		}
+	}
+	return out
+}
+
+// marginStat returns the numerator s (p̂1 − p̂2 − d0) of the statistic of
+// [MarginRejectionTable] for x1 events of n1 against x2 of n2, signed
+// towards the alternative (s = +1 for d0 < 0, −1 for d0 > 0), and its
+// variance, at the restricted MLE ([FarringtonManning], the observed
+// proportions kept 10⁻¹² inside (0, 1)) or at the observed proportions
+// ([Blackwelder]).
+func marginStat(m MarginMethod, x1, n1, x2, n2 int, d0 float64) (num, v float64) {
 	sign := 1.0
 	if d0 > 0 {
 		sign = -1
 	}
-	r := float64(n2) / float64(n1)
-	out := make([]bool, (n1+1)*(n2+1))
-	const eps = 1e-12
-	clamp := func(p float64) float64 { return math.Min(1-eps, math.Max(eps, p)) }
-	for x1 := 0; x1 <= n1; x1++ {
-		p1 := float64(x1) / float64(n1)
-		for x2 := 0; x2 <= n2; x2++ {
-			p2 := float64(x2) / float64(n2)
-			num := sign * (p1 - p2 - d0)
-			var v float64
-			if m == FarringtonManning {
-				t1, t2 := RestrictedMLE(clamp(p1), clamp(p2), r, d0)
-				v = t1*(1-t1)/float64(n1) + t2*(1-t2)/float64(n2)
-			} else {
-				v = p1*(1-p1)/float64(n1) + p2*(1-p2)/float64(n2)
-			}
-			if v <= 0 {
-				out[x1*(n2+1)+x2] = num > 0
-				continue
-			}
-			out[x1*(n2+1)+x2] = num/math.Sqrt(v) > za
-		}
+	p1, p2 := float64(x1)/float64(n1), float64(x2)/float64(n2)
+	num = sign * (p1 - p2 - d0)
+	if m == FarringtonManning {
+		const eps = 1e-12
+		clamp := func(p float64) float64 { return math.Min(1-eps, math.Max(eps, p)) }
+		t1, t2 := RestrictedMLE(clamp(p1), clamp(p2), float64(n2)/float64(n1), d0)
+		return num, t1*(1-t1)/float64(n1) + t2*(1-t2)/float64(n2)
 	}
-	return out
+	return num, p1*(1-p1)/float64(n1) + p2*(1-p2)/float64(n2)
+}
+
+// marginReject decides the table of [MarginRejectionTable] at the
+// one-sided critical value za: z = num/√v > za, or, when v is 0,
+// num > 0.
+func marginReject(m MarginMethod, x1, n1, x2, n2 int, d0, za float64) bool {
+	num, v := marginStat(m, x1, n1, x2, n2, d0)
+	if v <= 0 {
+		return num > 0
+	}
+	return num/math.Sqrt(v) > za
 }
 
 // EquivalenceRejectionTable returns the decisions of two one-sided tests

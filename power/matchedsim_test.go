@@ -311,7 +311,7 @@ func TestMatchedSimWorkers(t *testing.T) {
 		}
 		if i == 0 {
 			first = res
-		} else if res != first {
+		} else if !sameResult(res, first) {
 			t.Errorf("%d workers: %+v, 1 worker %+v", w, res, first)
 		}
 	}

@@ -317,7 +317,7 @@ func TestRateSimWorkers(t *testing.T) {
 				t.Fatal(err)
 			}
 		}
-		if res[0] != res[1] {
+		if !sameResult(res[0], res[1]) {
 			t.Errorf("κ %v: 1 worker %+v, 2 workers %+v", k, res[0], res[1])
 		}
 		if res[0].Rejections == 0 || res[0].Rejections == res[0].Replicates {

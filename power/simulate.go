@@ -29,6 +29,25 @@ type Worker interface {
 	Replicate(rng *rand.Rand) bool
 }
 
+// LookWorker is a Worker of a sequential study, one analysed at interim
+// looks as well as at the end (a group-sequential design): ReplicateLook
+// draws one study and returns the look, 1 to K, at which its test first
+// crossed the boundary, or 0 when it never did. Replicate must equal
+// ReplicateLook(rng) > 0 for the same stream.
+type LookWorker interface {
+	Worker
+	ReplicateLook(rng *rand.Rand) int
+}
+
+// SequentialModel is a Model of a sequential study: its workers are
+// [LookWorker]s, and Looks returns K, the number of analyses. A run of a
+// SequentialModel counts the replicates by the look of their first
+// crossing ([SimResult].ByLook).
+type SequentialModel interface {
+	Model
+	Looks() int
+}
+
 // MaxReplicates is the most replicates a run may have, 10¹²: a standard
 // error of the power below 10⁻⁶, far beyond any use, and small enough that
 // no count of replicates or blocks can overflow. Callers check their input
@@ -68,6 +87,11 @@ type SimResult struct {
 	Replicates int64
 	// Rejections counts the replicates whose test rejected.
 	Rejections int64
+	// ByLook, for a [SequentialModel], counts the replicates by the look
+	// at which their test first crossed the boundary: ByLook[k−1] for
+	// look k, K entries summing to Rejections. It is nil for the other
+	// models. Like Rejections, it counts the first Replicates of the run.
+	ByLook []int64
 	// Partial is true when the run was stopped before the end. The
 	// replicates counted are then the first Replicates of the run, in the
 	// order of blocks and within each block: exactly those of a run of
@@ -186,28 +210,31 @@ type Run struct {
 	cfg    SimConfig
 	bs     int64
 	blocks int64
+	looks  int // K for a SequentialModel, else 0
 	ws     []Worker
 
 	mu       sync.Mutex
-	next     int64       // the first block not yet started
-	paused   []*blockRun // started, not finished and not in a worker's hands, by block number
-	frontier int64       // blocks [0, frontier) are finished
-	prefix   SimResult   // the replicates and rejections of those blocks
-	ahead    map[int64]int64
-	done     int64 // replicates done in all blocks
-	broken   bool  // a step was stopped: the run cannot go on
+	next     int64               // the first block not yet started
+	paused   []*blockRun         // started, not finished and not in a worker's hands, by block number
+	frontier int64               // blocks [0, frontier) are finished
+	prefix   SimResult           // the replicates and rejections of those blocks
+	ahead    map[int64]*blockRun // finished blocks beyond the frontier
+	done     int64               // replicates done in all blocks
+	broken   bool                // a step was stopped: the run cannot go on
 }
 
 // blockRun is the state of a block that has started.
 type blockRun struct {
 	b, n      int64 // the block's number and its number of replicates
 	done, rej int64
+	byLook    []int64 // the rejections by look (sequential models)
 	rng       *rand.Rand
 }
 
 // NewRun prepares a run of m; nothing is simulated until [Run.Step] or
 // [Run.Finish]. It panics unless cfg.Replicates is from 1 to
-// [MaxReplicates] and cfg.Workers and cfg.BlockSize are not negative.
+// [MaxReplicates] and cfg.Workers and cfg.BlockSize are not negative, and
+// when m is a [SequentialModel] with fewer than one look.
 func NewRun(m Model, cfg SimConfig) *Run {
 	if cfg.Replicates < 1 || cfg.Replicates > MaxReplicates {
 		panic("power: the replicates of a run must be from 1 to MaxReplicates")
@@ -224,8 +251,16 @@ func NewRun(m Model, cfg SimConfig) *Run {
 		workers = runtime.GOMAXPROCS(0)
 	}
 	blocks := (cfg.Replicates + bs - 1) / bs
-	return &Run{m: m, cfg: cfg, bs: bs, blocks: blocks, ws: make([]Worker, min(int64(workers), blocks)),
-		ahead: map[int64]int64{}}
+	r := &Run{m: m, cfg: cfg, bs: bs, blocks: blocks, ws: make([]Worker, min(int64(workers), blocks)),
+		ahead: map[int64]*blockRun{}}
+	if sm, ok := m.(SequentialModel); ok {
+		r.looks = sm.Looks()
+		if r.looks < 1 {
+			panic("power: a sequential model needs at least one look")
+		}
+		r.prefix.ByLook = make([]int64, r.looks)
+	}
+	return r
 }
 
 // Workers returns the number of goroutines the run uses: cfg.Workers (or
@@ -287,6 +322,13 @@ func (r *Run) Step(ctx context.Context, n int64) error {
 			if sw, ok := w.(stopWatcher); ok {
 				sw.watchStop(stop)
 			}
+			var lw LookWorker
+			if r.looks > 0 {
+				var ok bool
+				if lw, ok = w.(LookWorker); !ok {
+					panic("power: a sequential model's worker is not a LookWorker")
+				}
+			}
 			for left := quota; left > 0; {
 				if stopNow(stop, done) {
 					stopped.Store(true)
@@ -296,7 +338,13 @@ func (r *Run) Step(ctx context.Context, n int64) error {
 				if b == nil {
 					return
 				}
-				did, k, cut := replicate(w, b.rng, min(left, b.n-b.done), stop, done)
+				var did, k int64
+				var cut bool
+				if lw != nil {
+					did, k, cut = replicateLooks(lw, b.rng, min(left, b.n-b.done), b.byLook, stop, done)
+				} else {
+					did, k, cut = replicate(w, b.rng, min(left, b.n-b.done), stop, done)
+				}
 				left -= did
 				r.put(b, did, k)
 				if cut {
@@ -335,6 +383,26 @@ func replicate(w Worker, rng *rand.Rand, todo int64, stop *atomic.Bool, done <-c
 	return did, k, false
 }
 
+// replicateLooks is [replicate] for a [LookWorker]: it also adds each
+// counted replicate that crossed at look k to byLook[k−1]. It is apart
+// from replicate so that the loop of the other models stays as it was.
+func replicateLooks(w LookWorker, rng *rand.Rand, todo int64, byLook []int64, stop *atomic.Bool, done <-chan struct{}) (did, k int64, cut bool) {
+	for ; did < todo; did++ {
+		look := w.ReplicateLook(rng)
+		if did&63 == 63 {
+			stopNow(stop, done)
+		}
+		if stop.Load() {
+			return did, k, true
+		}
+		if look != 0 {
+			byLook[look-1]++ // a look outside 1..K is a bug of the model: panic
+			k++
+		}
+	}
+	return did, k, false
+}
+
 // stopNow sets stop when done is closed, and reports whether stop is set.
 func stopNow(stop *atomic.Bool, done <-chan struct{}) bool {
 	select {
@@ -359,14 +427,18 @@ func (r *Run) take() *blockRun {
 		return nil
 	}
 	b := &blockRun{b: r.next, n: min(r.bs, r.cfg.Replicates-r.next*r.bs)}
+	if r.looks > 0 {
+		b.byLook = make([]int64, r.looks)
+	}
 	s1, s2 := blockSeed(r.cfg.Seed, b.b)
 	b.rng = rand.New(rand.NewPCG(s1, s2))
 	r.next++
 	return b
 }
 
-// put takes back a block after did more replicates with k rejections:
-// finished, or put aside for a later step.
+// put takes back a block after did more replicates with k rejections
+// (already added to b.byLook by the worker that held it): finished, or put
+// aside for a later step.
 func (r *Run) put(b *blockRun, did, k int64) {
 	r.mu.Lock()
 	defer r.mu.Unlock()
@@ -377,15 +449,16 @@ func (r *Run) put(b *blockRun, did, k int64) {
 		i, _ := slices.BinarySearchFunc(r.paused, b.b, func(x *blockRun, t int64) int { return cmp.Compare(x.b, t) })
 		r.paused = slices.Insert(r.paused, i, b)
 	} else {
-		r.ahead[b.b] = b.rej
+		r.ahead[b.b] = b
 		for {
-			rej, ok := r.ahead[r.frontier]
+			fb, ok := r.ahead[r.frontier]
 			if !ok {
 				break
 			}
 			delete(r.ahead, r.frontier)
-			r.prefix.Replicates += min(r.bs, r.cfg.Replicates-r.frontier*r.bs)
-			r.prefix.Rejections += rej
+			r.prefix.Replicates += fb.n
+			r.prefix.Rejections += fb.rej
+			addLooks(r.prefix.ByLook, fb.byLook)
 			r.frontier++
 		}
 	}
@@ -402,10 +475,19 @@ func (r *Run) Result() SimResult {
 	r.mu.Lock()
 	defer r.mu.Unlock()
 	res := r.prefix
+	res.ByLook = slices.Clone(r.prefix.ByLook)
 	if len(r.paused) > 0 && r.paused[0].b == r.frontier {
 		res.Replicates += r.paused[0].done
 		res.Rejections += r.paused[0].rej
+		addLooks(res.ByLook, r.paused[0].byLook)
 	}
 	res.Partial = res.Replicates < r.cfg.Replicates
 	return res
+}
+
+// addLooks adds the counts of src to dst, both nil or of equal length.
+func addLooks(dst, src []int64) {
+	for i, c := range src {
+		dst[i] += c
+	}
 }

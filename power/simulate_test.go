@@ -5,6 +5,7 @@ import (
 	"errors"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"sync/atomic"
 	"testing"
 	"time"
@@ -27,6 +28,13 @@ func simTestModels() map[string]Model {
 	}
 }
 
+// sameResult reports whether two results are the same in every field,
+// the counts by look included.
+func sameResult(a, b SimResult) bool {
+	return a.Replicates == b.Replicates && a.Rejections == b.Rejections && a.Partial == b.Partial &&
+		slices.Equal(a.ByLook, b.ByLook) && (a.ByLook == nil) == (b.ByLook == nil)
+}
+
 // TestSimulateWorkersInvariant: with the same seed, 1, 2, 3 and 7 workers
 // give identical counts for every model (a number of replicates that is not
 // a multiple of the block size included), and another seed gives other
@@ -44,7 +52,7 @@ func TestSimulateWorkersInvariant(t *testing.T) {
 			}
 			if i == 0 {
 				first = res
-			} else if res != first {
+			} else if !sameResult(res, first) {
 				t.Errorf("%s: %d workers give %+v, 1 worker %+v", name, w, res, first)
 			}
 		}
@@ -61,7 +69,7 @@ func TestSimulateDefaults(t *testing.T) {
 	m := simTestModels()["student"]
 	a, errA := Simulate(context.Background(), m, SimConfig{Replicates: 30_000, Seed: 5})
 	b, errB := Simulate(context.Background(), m, SimConfig{Replicates: 30_000, Seed: 5, Workers: 1, BlockSize: 8192})
-	if errA != nil || errB != nil || a != b {
+	if errA != nil || errB != nil || !sameResult(a, b) {
 		t.Errorf("defaults %+v, %v; explicit %+v, %v", a, errA, b, errB)
 	}
 }
@@ -191,7 +199,7 @@ func TestRunSteps(t *testing.T) {
 				}
 			}
 			got, err := r.Finish(context.Background())
-			if err != nil || got != want || r.Done() != cfg.Replicates {
+			if err != nil || !sameResult(got, want) || r.Done() != cfg.Replicates {
 				t.Errorf("%s, %d workers: stepped %+v (%v), whole %+v", name, w, got, err, want)
 			}
 		}
@@ -228,7 +236,7 @@ func TestRunLimits(t *testing.T) {
 	if err := r.Step(context.Background(), 10); !errors.Is(err, ErrCanceled) {
 		t.Errorf("a step after a stop: %v, want ErrCanceled", err)
 	}
-	if got := r.Result(); got != res {
+	if got := r.Result(); !sameResult(got, res) {
 		t.Errorf("a stopped run changed: %+v, was %+v", got, res)
 	}
 }
@@ -348,3 +356,136 @@ func TestLogRankStopInsideReplicate(t *testing.T) {
 		t.Errorf("stat with the flag set: %v, %v; want 0, 0", u, v)
 	}
 }
+
+// seqTestModels is one sequential model of every kind, small enough for
+// the invariants of the runner.
+func seqTestModels() map[string]SequentialModel {
+	return map[string]SequentialModel{
+		"z": NewSequentialZ(SequentialZ{Times: []float64{0.25, 0.5, 0.75, 1}, Drift: 2.5,
+			Nominal: []float64{0.001, 0.01, 0.02, 0.03}, Sides: 2}),
+		"binomials": NewSequentialBinomials(SequentialBinomials{N1: []int{20, 40, 60}, N2: []int{25, 50, 75},
+			P1: 0.45, P2: 0.25, Nominal: []float64{0.01, 0.02, 0.03}, Sides: 2, Test: ChiSquare}),
+		"means welch": NewSequentialMeans(SequentialMeans{N1: []int{10, 20, 30}, N2: []int{10, 20, 30}, Diff: 0.7,
+			SD1: 1, SD2: 1.5, Welch: true, Nominal: []float64{0.01, 0.02, 0.03}, Sides: 2}),
+		"survival": NewSequentialSurvival(SequentialSurvival{N1: 40, N2: 40, H1: 0.3, H2: 0.6,
+			Entry: Entry{Accrual: 1, FollowUp: 2}, Events: []int{15, 30, 45}, Nominal: []float64{0.01, 0.02, 0.03}, Sides: 2}),
+	}
+}
+
+// TestSequentialRunByLook: a sequential model's counts by look are the
+// same for 1, 2 and 7 workers, sum to the rejections, and, for a run
+// stopped at its first progress report, equal those of a shorter run with
+// the same seed; a run advanced in steps gives those of Simulate. The
+// other models report no counts by look.
+func TestSequentialRunByLook(t *testing.T) {
+	const bs = 512
+	for name, m := range seqTestModels() {
+		var first SimResult
+		for i, w := range []int{1, 2, 7} {
+			res, err := Simulate(context.Background(), m, SimConfig{Replicates: 10_007, Seed: 31, Workers: w, BlockSize: bs})
+			if err != nil {
+				t.Fatalf("%s: %v", name, err)
+			}
+			if len(res.ByLook) != m.Looks() {
+				t.Fatalf("%s: %d counts by look, want %d", name, len(res.ByLook), m.Looks())
+			}
+			sum := int64(0)
+			for _, c := range res.ByLook {
+				sum += c
+			}
+			if sum != res.Rejections {
+				t.Errorf("%s: counts by look %v sum to %d, rejections %d", name, res.ByLook, sum, res.Rejections)
+			}
+			if i == 0 {
+				first = res
+				if res.Rejections == 0 || res.ByLook[0] == res.Rejections {
+					t.Errorf("%s: counts by look %v: the looks are not exercised", name, res.ByLook)
+				}
+			} else if !sameResult(res, first) {
+				t.Errorf("%s: %d workers give %+v, 1 worker %+v", name, w, res, first)
+			}
+		}
+		for _, w := range []int{1, 2, 3} {
+			ctx, cancel := context.WithCancel(context.Background())
+			var calls atomic.Int64
+			cfg := SimConfig{Replicates: 200 * bs, Seed: 32, Workers: w, BlockSize: bs, Progress: func(int64) {
+				if calls.Add(1) == 1 {
+					cancel()
+				}
+			}}
+			res, err := Simulate(ctx, m, cfg)
+			cancel()
+			if !errors.Is(err, ErrCanceled) || !res.Partial || len(res.ByLook) != m.Looks() {
+				t.Fatalf("%s, %d workers: %+v, %v; want partial, ErrCanceled", name, w, res, err)
+			}
+			again, err := Simulate(context.Background(), m, SimConfig{Replicates: res.Replicates, Seed: 32, Workers: 2, BlockSize: bs})
+			again.Partial = true
+			if err != nil || !sameResult(again, res) {
+				t.Errorf("%s, %d workers: partial %+v, a run of %d replicates %+v, %v", name, w, res, res.Replicates, again, err)
+			}
+		}
+		cfg := SimConfig{Replicates: 5003, Seed: 33, BlockSize: 400}
+		want, _ := Simulate(context.Background(), m, cfg)
+		for _, w := range []int{1, 3} {
+			cfg.Workers = w
+			r := NewRun(m, cfg)
+			for _, n := range []int64{1, 7, 300, 1000} {
+				if err := r.Step(context.Background(), n); err != nil {
+					t.Fatal(err)
+				}
+				p := r.Result()
+				sum := int64(0)
+				for _, c := range p.ByLook {
+					sum += c
+				}
+				if len(p.ByLook) != m.Looks() || sum != p.Rejections {
+					t.Errorf("%s: a step's result %+v: counts by look do not add up", name, p)
+				}
+			}
+			if got, err := r.Finish(context.Background()); err != nil || !sameResult(got, want) {
+				t.Errorf("%s, %d workers: stepped %+v (%v), whole %+v", name, w, got, err, want)
+			}
+		}
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	res, err := Simulate(ctx, seqTestModels()["z"], SimConfig{Replicates: 100, Seed: 1})
+	if !errors.Is(err, ErrCanceled) || res.Replicates != 0 || !slices.Equal(res.ByLook, []int64{0, 0, 0, 0}) {
+		t.Errorf("cancelled before the start: %+v, %v", res, err)
+	}
+	if res, _ := Simulate(context.Background(), simTestModels()["student"], SimConfig{Replicates: 100, Seed: 1}); res.ByLook != nil {
+		t.Errorf("a fixed-sample model counts by look: %v", res.ByLook)
+	}
+}
+
+// TestSequentialResultNotShared: a result's counts by look are its own;
+// a later step of the run does not change them.
+func TestSequentialResultNotShared(t *testing.T) {
+	r := NewRun(seqTestModels()["z"], SimConfig{Replicates: 10_000, Seed: 3, Workers: 1, BlockSize: 100})
+	if err := r.Step(context.Background(), 1000); err != nil {
+		t.Fatal(err)
+	}
+	a := r.Result()
+	kept := slices.Clone(a.ByLook)
+	if _, err := r.Finish(context.Background()); err != nil {
+		t.Fatal(err)
+	}
+	if !slices.Equal(a.ByLook, kept) {
+		t.Errorf("a result's counts changed from %v to %v", kept, a.ByLook)
+	}
+}
+
+// TestSequentialModelNeedsLooks: the runner refuses a sequential model
+// with no look.
+func TestSequentialModelNeedsLooks(t *testing.T) {
+	defer func() {
+		if recover() == nil {
+			t.Error("a sequential model with no look did not panic")
+		}
+	}()
+	NewRun(zeroLooks{seqTestModels()["z"]}, SimConfig{Replicates: 10})
+}
+
+type zeroLooks struct{ SequentialModel }
+
+func (zeroLooks) Looks() int { return 0 }

@@ -25,7 +25,7 @@ func TestMethodsJSON(t *testing.T) {
 	if len(got) != len(designs.Methods) {
 		t.Fatalf("%d methods, want %d", len(got), len(designs.Methods))
 	}
-	fields := []string{"id", "name", "citation", "designs", "outcome", "hypotheses", "default_test", "note"}
+	fields := []string{"id", "name", "citation", "designs", "outcome", "hypotheses", "default_test", "note", "interim"}
 	for i, o := range got {
 		if o["id"] != designs.Methods[i].ID {
 			t.Errorf("method %d is %v, want %s (the catalogue's order)", i, o["id"], designs.Methods[i].ID)

@@ -583,6 +583,14 @@ func conclude(b *strings.Builder, r *designs.Result) {
 				per, all = " per comparison", "for each comparison"
 			}
 			need, rounded := eventsRequired(r)
+			if s.Interim != nil {
+				per = " at most" + per
+				if strings.HasSuffix(rounded, ")") {
+					rounded = strings.TrimSuffix(rounded, ")") + "; the group-sequential maximum, below)"
+				} else {
+					rounded += " (the group-sequential maximum, below)"
+				}
+			}
 			fmt.Fprintf(b, "%s, %s requires %s events%s%s. With the expected probabilities of an observed event (Lachin & Foulkes 1986), the smallest sizes expected to yield %s events are %s and %s, %s (%.1f events expected); the achieved power is %s. ",
 				target, method, need, per, rounded, need, f.size(a.N[0]), g.size(a.N[1]), all, *a.ExpectedEvents, pct1(*a.AchievedPower))
 		case s.Pairing == "paired":
@@ -600,8 +608,12 @@ func conclude(b *strings.Builder, r *designs.Result) {
 				fmt.Fprintf(b, "The search for these sizes starts from the individual-level size given by %s, inflated by the design effect. ", method)
 			}
 		default:
-			fmt.Fprintf(b, "%s, %s requires %s and %s, %s analysable in all; the achieved power at these numbers is %s. ",
-				target, method, f.size(a.N[0]), g.size(a.N[1]), count(a.Total), pct1(*a.AchievedPower))
+			most, maxNote := "", ""
+			if s.Interim != nil {
+				most, maxNote = "at most ", " (the group-sequential maximum, below)"
+			}
+			fmt.Fprintf(b, "%s, %s requires %s%s and %s, %s analysable in all%s; the achieved power at these numbers is %s. ",
+				target, method, most, f.size(a.N[0]), g.size(a.N[1]), count(a.Total), maxNote, pct1(*a.AchievedPower))
 		}
 		clusterSentence(b, r)
 		armsSentence(b, r)

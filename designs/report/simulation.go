@@ -143,6 +143,9 @@ func simulationSection(r *designs.Result) *section {
 		s.bullets = append(s.bullets, fmt.Sprintf("Type I error simulated at %s, against alpha %g: %s",
 			v.Type1At, *r.Alpha, estimateText(*v.Type1Error, *v.Type1SE, v.Type1CI, v.Replicates, d, false, len(v.CI) != 2)))
 	}
+	if q := v.Sequential; q != nil {
+		sequentialLines(r, s, q)
+	}
 	if so := v.Solved; so != nil {
 		n := count(so.N[0])
 		if len(so.N) == 2 {
@@ -211,4 +214,44 @@ func precisionSimulation(r *designs.Result, s *section) *section {
 	s.bullets = append(s.bullets, "The plan is sized at the expected value: about half the surveys give an interval a little wider than the margin and half a little narrower; the share within the margin says how far the plan can be relied on.")
 	s.bullets = append(s.bullets, sentences(v.Notes)...)
 	return s
+}
+
+// sequentialLines report the simulation of a group-sequential trial: the
+// whole trial simulated look by look, where it stopped, and the z
+// statistic's own check of the boundaries.
+func sequentialLines(r *designs.Result, s *section, q *designs.SeqSimulation) {
+	v := r.Simulation
+	s.paras = append(s.paras, fmt.Sprintf("The whole group-sequential trial is simulated: the data accrue, at each analysis %s is applied to the data so far and its p-value compared with that analysis's nominal p, and the trial stops at the first crossing. The power and type I error below count the trials that crossed at any analysis.", q.DataTestNamed))
+	if len(q.StopByLook) > 0 {
+		parts := make([]string, len(q.StopByLook))
+		reached := 1.0
+		for i, p := range q.StopByLook {
+			parts[i] = fmt.Sprintf("analysis %d: %s", i+1, pct1(p))
+			if i < len(q.StopByLook)-1 {
+				reached -= p
+			}
+		}
+		s.bullets = append(s.bullets, fmt.Sprintf("Where the simulated trials stopped for efficacy under the planned effect: %s; %s reached the final analysis", strings.Join(parts, ", "), pct1(reached)))
+	}
+	if len(q.StopByLookNull) > 0 {
+		parts := make([]string, len(q.StopByLookNull))
+		for i, p := range q.StopByLookNull {
+			parts[i] = fmt.Sprintf("analysis %d: %s", i+1, pctD(p, 2))
+		}
+		s.bullets = append(s.bullets, fmt.Sprintf("Where the simulated trials crossed under %s: %s", v.Type1At, strings.Join(parts, ", ")))
+	}
+	if len(q.ExpectedN) > 0 {
+		s.bullets = append(s.bullets, fmt.Sprintf("Simulated mean size at stopping under the planned effect: %s", expectedSizes(q.ExpectedN, r)))
+	}
+	if q.ZType1Error != nil {
+		verdict := "within 3 standard errors of alpha, as the boundaries require"
+		if q.ZType1Agrees != nil && !*q.ZType1Agrees {
+			verdict = "more than 3 standard errors from alpha"
+		}
+		line := fmt.Sprintf("The z statistic itself, drawn as independent normal increments at the analyses' information (%s replicates, seed %d + 3): type I error %s (standard error %s points), %s", count(int(v.Replicates)), v.Seed, pctD(*q.ZType1Error, 2), strconv.FormatFloat(100**q.ZType1SE, 'f', 2, 64), verdict)
+		if q.ZPower != nil {
+			line += fmt.Sprintf("; power %s at the plan's drift (seed %d + 2)", pct1(*q.ZPower), v.Seed)
+		}
+		s.bullets = append(s.bullets, line)
+	}
 }

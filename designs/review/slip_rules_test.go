@@ -310,7 +310,7 @@ func TestSlipList(t *testing.T) {
 	want := []string{"one-sided-alpha", "per-group-as-total", "total-as-per-group", "attrition-ignored", "attrition-multiplied",
 		"continuity-omitted", "continuity-added", "odds-ratio-as-risk-ratio", "design-effect-ignored", "power-90-as-80",
 		"power-80-as-90", "normal-instead-of-t", "ratio-ignored", "variance-not-doubled", "relative-as-absolute",
-		"absolute-as-relative", "events-as-participants", "multiplicity-ignored", "adjustment-ignored", "overdispersion-ignored",
+		"absolute-as-relative", "events-as-participants", "multiplicity-ignored", "adjustment-ignored", "interim-ignored", "overdispersion-ignored",
 		"correlation-ignored"}
 	var got []string
 	for _, s := range Slips {
