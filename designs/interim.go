@@ -202,6 +202,10 @@ func (iv *Interim) TimingWords() string {
 	parts := make([]string, len(iv.Timing))
 	for i, t := range iv.Timing {
 		parts[i] = strconv.FormatFloat(t, 'g', 4, 64)
+		if iv.EqualTiming && i < len(iv.Timing)-1 && len(iv.Timing) != 2 && len(iv.Timing) != 4 && len(iv.Timing) != 5 && len(iv.Timing) != 8 && len(iv.Timing) != 10 {
+			// 1/3 rather than 0.3333: the looks' fractions as written.
+			parts[i] = fmt.Sprintf("%d/%d", i+1, len(iv.Timing))
+		}
 	}
 	return andList(parts)
 }

@@ -986,6 +986,7 @@ var assumptionMaps = map[string][]string{
 	"cluster":    {"size", "icc", "size_cv"},
 	"matching":   {"controls_per_case", "exposure_correlation"},
 	"adjustment": {"r_squared"},
+	"interim":    {"looks", "boundary", "spending_function", "rho"},
 }
 
 // given returns the keys the specification sets, in document order.

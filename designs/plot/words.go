@@ -22,6 +22,8 @@ var keyWords = map[string]string{
 	"odds_ratio_per_sd":             "odds ratio per standard deviation of the exposure",
 	"event_rate":                    "proportion with the outcome at the exposure's mean",
 	"adjustment.r_squared":          "R² of the exposure on the covariates",
+	"interim.looks":                 "analyses (interim looks and the final one)",
+	"interim.rho":                   "ρ of the power spending function",
 	"matching.controls_per_case":    "controls matched to each case",
 	"matching.exposure_correlation": "correlation of exposure within matched sets",
 	"risk_difference":               "risk difference",
