@@ -499,12 +499,19 @@ func simulated(res *designs.Result) bool {
 // Caption is the sentence under the figure [ForPlan] draws for res.
 func Caption(res *designs.Result) string {
 	switch {
+	case res.Spec != nil && res.Spec.Goal == "precision" && res.Spec.Design != "cross-sectional":
+		return "The upper over the lower limit of the ratio's interval against the first group's size around the plan; the dashed line is the stated precision."
 	case res.Spec != nil && res.Spec.Goal == "precision":
 		return "The margin of the interval (half its width) against the respondents around the plan."
+	case res.Spec != nil && res.Spec.Goal == "accuracy":
+		return "The margins of the intervals for sensitivity and for specificity against the participants tested around the plan; the dashed line is the stated margin."
 	case simulated(res):
 		return "Simulated power with its 95% interval, beside the closed-form power; the dashed line is the target power."
 	case res.Spec != nil && res.Spec.Solve == "effect":
 		return "Power against the effect at the planned size, on the side of no difference where the plan's effect lies; the dashed line is the target power."
+	}
+	if res.Spec != nil && res.Spec.Interim != nil {
+		return "Group-sequential power (a boundary crossed on the side of the effect at any analysis) against the maximum number analysable around the planned point; the dashed line is the target power."
 	}
 	return "Power against the number analysable around the planned point; the dashed line is the target power."
 }

@@ -111,6 +111,18 @@ func TestBrowser(t *testing.T) {
 			},
 			numbers: []string{"Design effect: 2.362", "Clusters", "School breakfast clubs"},
 			labels:  []string{"in clusters of 40", "power"}},
+		// The table of looks of a group-sequential trial: ten columns.
+		{htmlPage: planPage("trial-interim-foot-ulcer.yaml"),
+			figure: func(t *testing.T) *Figure {
+				p, err := plot.Plan(planExample(t, "trial-interim-foot-ulcer.yaml"))
+				if err != nil {
+					t.Fatal(err)
+				}
+				svg, err := plot.SVG(p)
+				return svgFigure(t, svg, err)
+			},
+			numbers: []string{"Interim analyses: boundaries look by look", "3.099", "Chance of stopping here", "Offloading boot"},
+			labels:  []string{"maximum", "power"}},
 		{htmlPage: reviewPage("review-under-powered-wound-dressing.yaml"),
 			figure: func(t *testing.T) *Figure {
 				rep, _, src := reviewExample(t, "review-under-powered-wound-dressing.yaml")
