@@ -61,7 +61,9 @@ const (
 	//
 	// References: Kim K, DeMets DL (1987). Design and analysis of group
 	// sequential tests based on the type I error spending rate function.
-	// Biometrika 74:149–154 (the family tρ; also Biometrics 43:857–864).
+	// Biometrika 74:149–154 (the family α t^ρ; citation from memory — the
+	// issue that asked for it cites the same authors and year in
+	// Biometrics 43:857).
 	PowerFamily
 )
 
