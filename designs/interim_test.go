@@ -76,6 +76,41 @@ func TestInterimPlans(t *testing.T) {
 	}
 }
 
+// TestInterimAssumptions: the interim block's settings are assumptions
+// of the plan, the timing as written and, in JSON, as a list of numbers.
+func TestInterimAssumptions(t *testing.T) {
+	spec := "version: 1\ndesign: trial\ncontrol_risk: 0.3\nrisk_ratio: 0.7\npower: 0.8\n" +
+		"interim:\n  looks: 3\n  timing: [0.4, 0.7, 1]\n  boundary: spending\n  spending_function: power\n  rho: 2\n" +
+		"sources:\n  interim.timing: the monitoring committee's charter\n"
+	s, err := Parse("interim.yaml", []byte(spec), nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := Plan(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var keys []string
+	for _, a := range res.Assumptions {
+		if strings.HasPrefix(a.Key, "interim.") {
+			keys = append(keys, a.Key+"="+a.Value)
+		}
+		if a.Key == "interim.timing" {
+			if a.Source != "the monitoring committee's charter" {
+				t.Errorf("timing's source %q", a.Source)
+			}
+			b, err := a.MarshalJSON()
+			if err != nil || !strings.Contains(string(b), `"value":[0.4,0.7,1]`) {
+				t.Errorf("timing in JSON: %s %v", b, err)
+			}
+		}
+	}
+	want := []string{"interim.looks=3", "interim.timing=0.4, 0.7, 1", "interim.boundary=spending", "interim.spending_function=power", "interim.rho=2"}
+	if !slices.Equal(keys, want) {
+		t.Errorf("interim assumptions %q, want %q", keys, want)
+	}
+}
+
 // TestInterimRefused: every misuse of the interim block is refused in one
 // line naming the key.
 func TestInterimRefused(t *testing.T) {

@@ -331,7 +331,7 @@ func (a Answer) MarshalJSON() ([]byte, error) {
 }
 
 // MarshalJSON writes the assumption's value typed: a number or a boolean as
-// such, text as a string; the effect key of a plan that solves the effect,
+// such, text as a string, the interim timing as a list; the effect key of a plan that solves the effect,
 // whose value only names the scale, has a null value and "solved": true.
 func (a Assumption) MarshalJSON() ([]byte, error) {
 	type plain struct {
@@ -345,6 +345,14 @@ func (a Assumption) MarshalJSON() ([]byte, error) {
 	c := plain{Key: a.Key, Value: typedValue(a.Value), Source: a.Source, SetOnCommandLine: a.SetOnCommandLine, File: a.File}
 	if strings.HasPrefix(a.Value, "solved") {
 		c.Value, c.Solved = nil, true
+	}
+	if a.Key == "interim.timing" {
+		// A list of fractions, written "0.4, 0.7, 1" in the summary.
+		var xs []any
+		for _, v := range strings.Split(a.Value, ", ") {
+			xs = append(xs, typedValue(v))
+		}
+		c.Value = xs
 	}
 	return json.Marshal(c)
 }

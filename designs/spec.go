@@ -986,7 +986,7 @@ var assumptionMaps = map[string][]string{
 	"cluster":    {"size", "icc", "size_cv"},
 	"matching":   {"controls_per_case", "exposure_correlation"},
 	"adjustment": {"r_squared"},
-	"interim":    {"looks", "boundary", "spending_function", "rho"},
+	"interim":    {"looks", "timing", "boundary", "spending_function", "rho"},
 }
 
 // given returns the keys the specification sets, in document order.
@@ -996,8 +996,20 @@ func (r *reader) given() []Given {
 		if subs, ok := assumptionMaps[e.key]; ok {
 			// The settings of these maps are assumptions too.
 			for _, sub := range subs {
-				if se := r.nested[e.key][sub]; se != nil && se.node.Kind == yaml.ScalarNode {
+				se := r.nested[e.key][sub]
+				if se == nil {
+					continue
+				}
+				switch se.node.Kind {
+				case yaml.ScalarNode:
 					out = append(out, Given{Key: e.key + "." + sub, Value: se.node.Value})
+				case yaml.SequenceNode:
+					// A list of numbers (interim.timing) reads as written.
+					var vs []string
+					for _, c := range se.node.Content {
+						vs = append(vs, c.Value)
+					}
+					out = append(out, Given{Key: e.key + "." + sub, Value: strings.Join(vs, ", ")})
 				}
 			}
 			continue

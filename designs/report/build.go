@@ -29,6 +29,7 @@ var keyLabels = map[string]string{
 	"cluster.size_cv":               "coefficient of variation of cluster sizes",
 	"adjustment.r_squared":          "R² of the exposure on the adjustment covariates",
 	"interim.looks":                 "analyses, interim looks and the final one",
+	"interim.timing":                "information fractions of the analyses",
 	"interim.rho":                   "ρ of the power spending function",
 	"interim.boundary":              "efficacy boundary",
 	"interim.spending_function":     "alpha-spending function",
