@@ -240,6 +240,13 @@ func (r *reader) buildInterim(s *Spec) {
 	m := r.nested["interim"]
 	iv := &Interim{}
 	ok := true
+	// A review starter's placeholders, each named at once.
+	for _, k := range []string{"boundary", "spending_function"} {
+		if e := m[k]; e != nil && isPlaceholder(e.node) {
+			r.refuse(r.errAt(e, "%s is a placeholder still to fill in; allowed: %s", show(e.node), interimKeys[k]))
+			r.refused["interim"], ok = true, false
+		}
+	}
 	// looks
 	if e := m["looks"]; e != nil {
 		var k float64
@@ -297,6 +304,9 @@ func (r *reader) buildInterim(s *Spec) {
 				iv.EqualTiming = false
 			}
 		}
+	}
+	if !ok {
+		return
 	}
 	// boundary
 	be := m["boundary"]

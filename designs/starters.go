@@ -147,8 +147,18 @@ func ReviewStarter(design, goal, outcome string) ([]byte, error) {
 		return nil, err
 	}
 	var out []string
-	header := true
+	header, interim := true, false
 	for _, line := range strings.Split(strings.TrimRight(string(data), "\n"), "\n") {
+		// The interim block is offered for what the protocol states.
+		if strings.HasPrefix(line, "# Interim analyses") {
+			interim = true
+			out = append(out, interimLines()...)
+			continue
+		}
+		if interim && strings.HasPrefix(line, "#") {
+			continue
+		}
+		interim = false
 		if header {
 			switch {
 			case strings.HasPrefix(line, "# Starter specification: "):
@@ -225,6 +235,20 @@ func clusterLines() []string {
 		"# cluster:",
 		commented(`#   size: "[as stated, e.g. 20]"`, "mean participants per cluster, at least 2"),
 		commented(`#   icc: "[as stated, e.g. 0.05]"`, "in [0, 1)"),
+	}
+}
+
+// interimLines offer the interim block in a review starter, commented
+// out, for a protocol that plans interim analyses.
+func interimLines() []string {
+	return []string{
+		"# Interim analyses, when the protocol plans them (a group-sequential",
+		"# trial): uncomment and copy its looks and boundary (and its timing and",
+		"# spending function when it states them; see the README). Its stated",
+		"# sizes are then the maximum.",
+		"# interim:",
+		commented(`#   looks: "[as stated, e.g. 3]"`, "analyses, the final one included: 2 to 10"),
+		commented(`#   boundary: "[as stated, e.g. obrien-fleming]"`, "pocock, obrien-fleming or spending"),
 	}
 }
 

@@ -472,6 +472,8 @@ func (r *reader) nestedNum(head string, he *entry, sub string, in func(float64) 
 	switch {
 	case e.node.Kind == yaml.ScalarNode && percentLike.MatchString(e.node.Value):
 		r.refuse(r.errAt(e, "%s", r.percentMsg(head+"."+sub, e.node)))
+	case isPlaceholder(e.node):
+		r.refuse(r.errAt(e, "%s is a placeholder still to fill in; allowed: %s", show(e.node), allowed))
 	case e.node.Kind != yaml.ScalarNode || (e.node.Tag != "!!int" && e.node.Tag != "!!float"):
 		r.refuse(r.errAt(e, "%s is not a number; allowed: %s", show(e.node), allowed))
 	default:

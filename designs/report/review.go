@@ -498,8 +498,32 @@ func methodsSection(rep *review.Report, r *designs.Result) section {
 		if a.AchievedPower != nil {
 			s.bullets = append(s.bullets, "Power at the recomputed size: "+pct1(*a.AchievedPower))
 		}
+		if b := interimBullet(r); b != "" {
+			s.bullets = append(s.bullets, b)
+		}
 	}
 	return s
+}
+
+// interimBullet says, in a review, that the recomputed size of a
+// group-sequential trial is its maximum, and what the inflation added to
+// the fixed-sample size, from the recorded steps.
+func interimBullet(r *designs.Result) string {
+	iv := r.Result.Interim
+	if r.Spec == nil || r.Spec.Interim == nil || iv == nil {
+		return ""
+	}
+	fixed, ok := stepOutput(r, "n_star_fixed")
+	unit := "participants in the first group"
+	if r.Outcome == "time-to-event" {
+		fixed, ok = stepOutput(r, "events_star_fixed")
+		unit = "events"
+	}
+	if !ok {
+		return ""
+	}
+	return fmt.Sprintf("Group-sequential: %d analyses with efficacy boundaries by %s; the recomputed size is the maximum, the fixed-sample size without interim analyses (%s %s, unrounded) × the inflation factor %s",
+		len(iv.Looks), r.Spec.Interim.BoundaryWords(), strconv.FormatFloat(fixed, 'f', 2, 64), unit, strconv.FormatFloat(iv.Inflation, 'f', 4, 64))
 }
 
 // oneGroupUnit is what a design of one group of units counts: "pairs" for

@@ -352,6 +352,14 @@ func TestReviewWording(t *testing.T) {
 			not:  []string{"per group"},
 		},
 		{
+			// The fixed events and the maximum are R's
+			// (testdata/reference/interim_plans.out: schoenfeld_fixed,
+			// schoenfeld_obf4; 337.700092387 / 330.377913964 = 1.02216).
+			name: "a group-sequential trial's maximum",
+			spec: "version: 1\ndesign: trial\noutcome: time-to-event\nhazard_ratio: 0.7\ncontrol_median: 12\naccrual: 12\nfollow_up: 12\ninterim: {looks: 4, boundary: obrien-fleming}\nclaimed:\n  n: 400\n  power: 0.9\n",
+			want: []string{"- Group-sequential: 4 analyses with efficacy boundaries by O'Brien & Fleming (1979); the recomputed size is the maximum, the fixed-sample size without interim analyses (330.38 events, unrounded) × the inflation factor 1.0222"},
+		},
+		{
 			name: "a survey's n",
 			spec: "version: 1\ndesign: cross-sectional\ngoal: precision\nexpected_prevalence: 0.3\nmargin: 0.05\nclaimed:\n  n: 300\n",
 			want: []string{"| respondents (`n`) |"},
