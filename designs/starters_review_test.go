@@ -87,3 +87,45 @@ func TestReviewStarterDesignEffect(t *testing.T) {
 		}
 	}
 }
+
+// TestReviewStarterInterim: every trial's review starter offers the interim
+// block commented out with placeholders; uncommented and left unfilled,
+// each placeholder is named as one (the cluster block's too); filled in, it
+// plans a group-sequential trial.
+func TestReviewStarterInterim(t *testing.T) {
+	uncomment := func(text string, lines ...string) string {
+		for _, l := range lines {
+			text = strings.Replace(text, "\n"+l, "\n"+strings.Replace(l, "# ", "", 1), 1)
+		}
+		return text
+	}
+	for _, outcome := range []string{"", "continuous", "time-to-event"} {
+		data, err := ReviewStarter("trial", "", outcome)
+		if err != nil {
+			t.Fatal(err)
+		}
+		text := uncomment(string(data), "# interim:", "#   looks: ", "#   boundary: ")
+		_, err = ParseReview("starter.yaml", []byte(text), nil)
+		if err == nil {
+			t.Fatalf("%s: unfilled placeholders accepted", outcome)
+		}
+		for _, key := range []string{"interim.looks", "interim.boundary"} {
+			if !strings.Contains(err.Error(), key+`: "[as stated, e.g. `) || !strings.Contains(err.Error(), "placeholder still to fill in") {
+				t.Errorf("%s: %s's placeholder not named as one: %v", outcome, key, err)
+			}
+		}
+		in, err := ParseReview("starter.yaml", []byte(reviewPlaceholder.ReplaceAllString(text, "$1")), nil)
+		if err != nil {
+			t.Fatalf("%s filled in: %v", outcome, err)
+		}
+		if iv := in.Spec.Interim; iv == nil || iv.Looks != 3 || iv.Boundary != "obrien-fleming" {
+			t.Errorf("%s: interim block not read: %+v", outcome, iv)
+		}
+		if outcome == "" {
+			text = uncomment(string(data), "# cluster:", "#   size: ", "#   icc: ")
+			if _, err := ParseReview("starter.yaml", []byte(text), nil); err == nil || !strings.Contains(err.Error(), `cluster.icc: "[as stated, e.g. 0.05]" is a placeholder still to fill in`) {
+				t.Errorf("the cluster block's placeholder: %v", err)
+			}
+		}
+	}
+}
