@@ -5,7 +5,9 @@ package designs
 // the unrounded NStar, the achieved power (solving n or power) or the
 // detectable effect (solving effect), the events (time-to-event, solving
 // n), the clusters per arm (cluster designs) and the pairs (paired
-// designs); for a precision survey N0 and the Margin as well. Every other
+// designs); for a precision survey N0 and the Margin as well; for a
+// group-sequential trial its Interim figures (the looks and the expected
+// sizes). Every other
 // field of the Answer is left empty, and no step, alternative, note or
 // warning is computed.
 //
@@ -50,6 +52,12 @@ func QuickInto(s *Spec, a *Answer) error {
 		return accuracyCore(s, a, nil)
 	}
 	var main solved
-	_, err := solveCore(s, MethodByID(s.Method), a, nil, &main)
-	return err
+	if _, err := solveCore(s, MethodByID(s.Method), a, nil, &main); err != nil {
+		return err
+	}
+	if s.Interim != nil && s.Solve != "effect" {
+		// The looks and expected sizes of a group-sequential plan.
+		return interimFigures(s, a, &main, nil)
+	}
+	return nil
 }

@@ -17,10 +17,11 @@ type quickFigures struct {
 	Clusters      []int
 	N0            float64
 	Margin        *float64
+	Interim       *InterimResult
 }
 
 func figuresOf(a *Answer) quickFigures {
-	return quickFigures{a.NStar, a.N, a.Enrol, a.Total, a.EnrolTotal, a.AchievedPower, a.Detectable, a.Events, a.Pairs, a.Clusters, a.N0, a.Margin}
+	return quickFigures{a.NStar, a.N, a.Enrol, a.Total, a.EnrolTotal, a.AchievedPower, a.Detectable, a.Events, a.Pairs, a.Clusters, a.N0, a.Margin, a.Interim}
 }
 
 // TestQuickIsPlan is the property that Quick and Plan share one truth: for

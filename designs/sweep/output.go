@@ -152,24 +152,29 @@ func gridSize(g Grid) int {
 
 // The figure columns of a sweep's table (README, "Sweeping assumptions").
 const (
-	ColAnalysable       = "analysable"              // one group (a precision survey, a paired design): analysable size
-	ColAnalysableFirst  = "analysable_first"        // analysable size of the first group
-	ColAnalysableSecond = "analysable_second"       // analysable size of the second group
-	ColAnalysableTotal  = "analysable_total"        // analysable total (every arm)
-	ColEnrolTotal       = "enrol_total"             // enrolment total, after attrition
-	ColAchievedPower    = "achieved_power"          // power at the analysable sizes (solve n or power)
-	ColDetectableLower  = "detectable_lower"        // smallest detectable effect below no difference (solve effect)
-	ColDetectableUpper  = "detectable_upper"        // smallest detectable effect above no difference (solve effect)
-	ColAchievedMargin   = "achieved_margin"         // a precision survey's margin at its size (solve effect)
-	ColEventsRequired   = "events_required"         // time-to-event, solve n: events required
-	ColClustersFirst    = "clusters_first"          // cluster trials: clusters in the first arm
-	ColClustersSecond   = "clusters_second"         // cluster trials: clusters in the second arm
-	ColSimulatedPower   = "simulated_power"         // simulated sweeps: simulated power
-	ColSimulatedSE      = "simulated_se"            // simulated sweeps: its Monte-Carlo standard error
-	ColPrecisionRatio   = "precision_ratio"         // a ratio to a stated precision: the upper over the lower limit reached
-	ColWithinMargin     = "simulated_within_margin" // simulated precision sweeps: the share of surveys whose interval meets the margin
-	ColCoverage         = "simulated_coverage"      // simulated precision sweeps: the share of intervals covering the truth
-	ColError            = "error"                   // why the point could not be planned (empty when planned)
+	ColAnalysable        = "analysable"                  // one group (a precision survey, a paired design): analysable size
+	ColAnalysableFirst   = "analysable_first"            // analysable size of the first group
+	ColAnalysableSecond  = "analysable_second"           // analysable size of the second group
+	ColAnalysableTotal   = "analysable_total"            // analysable total (every arm)
+	ColEnrolTotal        = "enrol_total"                 // enrolment total, after attrition
+	ColAchievedPower     = "achieved_power"              // power at the analysable sizes (solve n or power)
+	ColDetectableLower   = "detectable_lower"            // smallest detectable effect below no difference (solve effect)
+	ColDetectableUpper   = "detectable_upper"            // smallest detectable effect above no difference (solve effect)
+	ColAchievedMargin    = "achieved_margin"             // a precision survey's margin at its size (solve effect)
+	ColEventsRequired    = "events_required"             // time-to-event, solve n: events required
+	ColClustersFirst     = "clusters_first"              // cluster trials: clusters in the first arm
+	ColClustersSecond    = "clusters_second"             // cluster trials: clusters in the second arm
+	ColSimulatedPower    = "simulated_power"             // simulated sweeps: simulated power
+	ColSimulatedSE       = "simulated_se"                // simulated sweeps: its Monte-Carlo standard error
+	ColPrecisionRatio    = "precision_ratio"             // a ratio to a stated precision: the upper over the lower limit reached
+	ColInflation         = "inflation"                   // interim analyses: the inflation factor of the maximum size
+	ColExpectedTotalAlt  = "expected_total_alternative"  // interim analyses: expected analysable total at stopping under the planned effect
+	ColExpectedTotalH0   = "expected_total_null"         // interim analyses: the same under no effect
+	ColExpectedEventsAlt = "expected_events_alternative" // interim time-to-event: expected events at stopping under the planned effect
+	ColExpectedEventsH0  = "expected_events_null"        // interim time-to-event: the same under no effect
+	ColWithinMargin      = "simulated_within_margin"     // simulated precision sweeps: the share of surveys whose interval meets the margin
+	ColCoverage          = "simulated_coverage"          // simulated precision sweeps: the share of intervals covering the truth
+	ColError             = "error"                       // why the point could not be planned (empty when planned)
 )
 
 // Columns returns the table's columns for a sweep of s: the varied keys as
@@ -202,6 +207,12 @@ func Columns(s *designs.Spec, keys []string, simulated bool, methods []string) [
 	}
 	if s.Cluster != nil {
 		cols = append(cols, ColClustersFirst, ColClustersSecond)
+	}
+	if s.Interim != nil {
+		cols = append(cols, ColInflation, ColExpectedTotalAlt, ColExpectedTotalH0)
+		if s.Outcome == "time-to-event" {
+			cols = append(cols, ColExpectedEventsAlt, ColExpectedEventsH0)
+		}
 	}
 	switch {
 	case simulated && (s.Goal == "precision" || s.Goal == "accuracy"):
@@ -502,6 +513,25 @@ func nth(xs []int, i int) Value {
 	return whole(xs[i])
 }
 
+// expectedTotal is the expected analysable total at stopping: the groups'
+// expected sizes e scaled as the maximum's groups are to its total (every
+// arm of a trial of several arms stops with its comparison).
+func expectedTotal(a *designs.Answer, e []float64) Value {
+	if len(e) == 0 || len(a.N) != len(e) {
+		return Value{}
+	}
+	var sum, nsum float64
+	for i := range e {
+		sum += e[i]
+		nsum += float64(a.N[i])
+	}
+	if nsum == 0 {
+		return Value{}
+	}
+	x := sum * float64(a.Total) / nsum
+	return number(&x)
+}
+
 // figure returns how to read a figure column.
 func figure(name string) (func(r *Record) Value, bool) {
 	answer := func(f func(a *designs.Answer) Value) func(r *Record) Value {
@@ -541,6 +571,36 @@ func figure(name string) (func(r *Record) Value, bool) {
 		return answer(func(a *designs.Answer) Value { return nth(a.Clusters, 1) }), true
 	case ColPrecisionRatio:
 		return answer(func(a *designs.Answer) Value { return number(a.PrecisionRatio) }), true
+	case ColInflation:
+		return answer(func(a *designs.Answer) Value {
+			if a.Interim == nil {
+				return Value{}
+			}
+			return number(&a.Interim.Inflation)
+		}), true
+	case ColExpectedTotalAlt, ColExpectedTotalH0:
+		null := name == ColExpectedTotalH0
+		return answer(func(a *designs.Answer) Value {
+			if a.Interim == nil {
+				return Value{}
+			}
+			e := a.Interim.ExpectedNAlternative
+			if null {
+				e = a.Interim.ExpectedNNull
+			}
+			return expectedTotal(a, e)
+		}), true
+	case ColExpectedEventsAlt, ColExpectedEventsH0:
+		null := name == ColExpectedEventsH0
+		return answer(func(a *designs.Answer) Value {
+			if a.Interim == nil {
+				return Value{}
+			}
+			if null {
+				return number(a.Interim.ExpectedEventsNull)
+			}
+			return number(a.Interim.ExpectedEventsAlternative)
+		}), true
 	case ColWithinMargin, ColCoverage:
 		cover := name == ColCoverage
 		return func(r *Record) Value {

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/json"
 	"errors"
+	"math"
 	"slices"
 	"strings"
 	"testing"
@@ -62,6 +63,11 @@ func TestColumns(t *testing.T) {
 			cat([]string{"hazard_ratio"}, two, []string{"achieved_power", "error"})},
 		{"cluster trial", "trial-cluster-schools.yaml", nil, []string{"cluster.icc"}, false, nil,
 			cat([]string{"cluster.icc"}, two, []string{"achieved_power", "clusters_first", "clusters_second", "error"})},
+		{"interim, binary", "demo-trial.yaml", []string{"interim.looks=3", "interim.boundary=pocock", "method=fleiss"}, []string{"interim.looks"}, false, nil,
+			cat([]string{"interim.looks"}, two, []string{"achieved_power", "inflation", "expected_total_alternative", "expected_total_null", "error"})},
+		{"interim, time-to-event", "trial-interim-foot-ulcer.yaml", nil, []string{"hazard_ratio"}, false, nil,
+			cat([]string{"hazard_ratio"}, two, []string{"achieved_power", "events_required", "inflation", "expected_total_alternative", "expected_total_null",
+				"expected_events_alternative", "expected_events_null", "error"})},
 		{"simulated", "demo-trial.yaml", nil, []string{"risk_ratio"}, true, nil,
 			cat([]string{"risk_ratio"}, two, []string{"achieved_power", "simulated_power", "simulated_se", "error"})},
 		{"alternatives, solve n", "demo-trial.yaml", nil, []string{"risk_ratio"}, false, []string{"fleiss", "kelsey"},
@@ -243,6 +249,57 @@ func TestErrorText(t *testing.T) {
 	} {
 		if got := ErrorText(json.RawMessage(obj)); got != want {
 			t.Errorf("ErrorText(%s) = %q; want %q", obj, got, want)
+		}
+	}
+}
+
+// TestInterimCells: the interim columns read result.interim: the inflation
+// as it is, the expected totals as the groups' expected sizes added up
+// (two groups) or scaled to every arm (three arms: the total is 3 × n,
+// the comparison's groups 2 × n), the expected events as they are.
+func TestInterimCells(t *testing.T) {
+	for _, c := range []struct {
+		file  string
+		sets  []string
+		scale float64
+	}{
+		{"trial-interim-foot-ulcer.yaml", nil, 1},
+		{"demo-trial.yaml", []string{"interim.looks=4", "interim.boundary=obrien-fleming", "method=fleiss"}, 1},
+		{"demo-trial.yaml", []string{"interim.looks=3", "interim.boundary=pocock", "method=fleiss", "arms=3", "comparisons=each-vs-control"}, 1.5},
+	} {
+		s := spec(t, c.file, c.sets...)
+		res, err := designs.Plan(s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		iv := res.Result.Interim
+		cols := Columns(s, nil, false, nil)
+		l, err := NewLayout(&Header{Columns: cols})
+		if err != nil {
+			t.Fatal(err)
+		}
+		rec := &Record{Result: &res.Result}
+		want := map[string]float64{
+			ColInflation:        iv.Inflation,
+			ColExpectedTotalAlt: c.scale * (iv.ExpectedNAlternative[0] + iv.ExpectedNAlternative[1]),
+			ColExpectedTotalH0:  c.scale * (iv.ExpectedNNull[0] + iv.ExpectedNNull[1]),
+		}
+		if iv.ExpectedEventsNull != nil {
+			want[ColExpectedEventsAlt], want[ColExpectedEventsH0] = *iv.ExpectedEventsAlternative, *iv.ExpectedEventsNull
+		}
+		seen := 0
+		for i, col := range cols {
+			w, ok := want[col]
+			if !ok {
+				continue
+			}
+			seen++
+			if v := l.Value(i, rec); v.Kind != Number || math.Abs(v.Num-w) > 1e-9*w {
+				t.Errorf("%s %v: %s = %+v, want %v", c.file, c.sets, col, v, w)
+			}
+		}
+		if seen != len(want) {
+			t.Errorf("%s %v: %d of the %d interim columns", c.file, c.sets, seen, len(want))
 		}
 	}
 }
