@@ -23,8 +23,9 @@ func interimSentences(b *strings.Builder, r *designs.Result) {
 	if !s.Interim.EqualTiming {
 		timing = "unequally spaced"
 	}
-	fmt.Fprintf(b, "The trial is group-sequential: %s analyses, %s at %s of the maximum information (the last at the end), with efficacy boundaries by %s, so that the overall alpha stays %s; the trial stops early only for efficacy, and these boundaries make no provision for stopping for futility. ",
-		strconv.Itoa(k), timing, s.Interim.TimingWords(), s.Interim.BoundaryWords(), numASCII(iv.Looks[k-1].AlphaSpent))
+	null, stopFor := interimWords(r)
+	fmt.Fprintf(b, "The trial is group-sequential: %s analyses, %s at %s of the maximum information (the last at the end), with efficacy boundaries by %s, so that the overall alpha stays %s; the trial stops early only %s, and these boundaries make no provision for stopping for futility. ",
+		strconv.Itoa(k), timing, s.Interim.TimingWords(), s.Interim.BoundaryWords(), numASCII(iv.Looks[k-1].AlphaSpent), stopFor)
 	unit := "participants in each group"
 	if r.Outcome == "time-to-event" {
 		unit = "events"
@@ -44,12 +45,24 @@ func interimSentences(b *strings.Builder, r *designs.Result) {
 			pctFewer(iv.Inflation), strconv.FormatFloat(iv.Inflation, 'f', 4, 64))
 	}
 	if r.Outcome == "time-to-event" && iv.ExpectedEventsAlternative != nil {
-		fmt.Fprintf(b, "Under the planned effect the trial is expected to stop after %s events on average, and after %s under no effect. ",
-			oneDecimal(*iv.ExpectedEventsAlternative), oneDecimal(*iv.ExpectedEventsNull))
+		fmt.Fprintf(b, "Under the planned effect the trial is expected to stop after %s events on average, and after %s under %s. ",
+			oneDecimal(*iv.ExpectedEventsAlternative), oneDecimal(*iv.ExpectedEventsNull), null)
 		return
 	}
-	fmt.Fprintf(b, "On average the trial is expected to stop after %s under the planned effect, and after %s under no effect. ",
-		expectedSizes(iv.ExpectedNAlternative, r), expectedSizes(iv.ExpectedNNull, r))
+	fmt.Fprintf(b, "On average the trial is expected to stop after %s under the planned effect, and after %s under %s. ",
+		expectedSizes(iv.ExpectedNAlternative, r), expectedSizes(iv.ExpectedNNull, r), null)
+}
+
+// interimWords name, for the interim sentences, the null hypothesis under
+// which the expected sizes are computed and what an early stop shows: no
+// effect and efficacy for superiority; a true difference at the margin and
+// non-inferiority for a non-inferiority trial, whose z statistic has mean
+// 0 at the margin.
+func interimWords(r *designs.Result) (null, stopFor string) {
+	if r.Spec != nil && r.Spec.Hypothesis == "non-inferiority" {
+		return "a true effect at the non-inferiority margin (the null hypothesis)", "to declare non-inferiority"
+	}
+	return "no effect", "for efficacy"
 }
 
 // pctFewer is the share of the maximum size a fixed design of the same
@@ -109,7 +122,8 @@ func interimSection(r *designs.Result) *section {
 	if r.Spec != nil && r.Spec.Sides == 1 {
 		side, pside = "Z (in the direction of benefit) reaches", "one-sided"
 	}
-	s.paras = []string{fmt.Sprintf("At each analysis the trial stops for efficacy when %s the boundary, that is when the planned test's %s p-value is at or below the nominal p. Efficacy only: there is no futility boundary. The chance of stopping is under the planned effect; at the last analysis it is the chance of reaching it.", side, pside)}
+	null, stopFor := interimWords(r)
+	s.paras = []string{fmt.Sprintf("At each analysis the trial stops %s when %s the boundary, that is when the planned test's %s p-value is at or below the nominal p. Efficacy only: there is no futility boundary. The chance of stopping is under the planned effect; at the last analysis it is the chance of reaching it.", stopFor, side, pside)}
 	f, g := groupsOf(r)
 	surv := len(iv.Looks) > 0 && iv.Looks[0].Events != nil
 	who := "Analysable: "
@@ -151,10 +165,10 @@ func interimSection(r *designs.Result) *section {
 	s.after = []string{infl}
 	if iv.ExpectedEventsAlternative != nil {
 		s.after = append(s.after,
-			fmt.Sprintf("Expected events at stopping: %s under the planned effect, %s under no effect.", oneDecimal(*iv.ExpectedEventsAlternative), oneDecimal(*iv.ExpectedEventsNull)),
-			fmt.Sprintf("Expected participants entered by the time of stopping: %s under the planned effect, %s under no effect (the looks' times assume the planned hazards and uniform entry).", expectedSizes(iv.ExpectedNAlternative, r), expectedSizes(iv.ExpectedNNull, r)))
+			fmt.Sprintf("Expected events at stopping: %s under the planned effect, %s under %s.", oneDecimal(*iv.ExpectedEventsAlternative), oneDecimal(*iv.ExpectedEventsNull), null),
+			fmt.Sprintf("Expected participants entered by the time of stopping: %s under the planned effect, %s under %s (the looks' times assume the planned hazards and uniform entry).", expectedSizes(iv.ExpectedNAlternative, r), expectedSizes(iv.ExpectedNNull, r), null))
 	} else {
-		s.after = append(s.after, fmt.Sprintf("Expected size at stopping: %s under the planned effect, %s under no effect.", expectedSizes(iv.ExpectedNAlternative, r), expectedSizes(iv.ExpectedNNull, r)))
+		s.after = append(s.after, fmt.Sprintf("Expected size at stopping: %s under the planned effect, %s under %s.", expectedSizes(iv.ExpectedNAlternative, r), expectedSizes(iv.ExpectedNNull, r), null))
 	}
 	return s
 }

@@ -855,3 +855,33 @@ func TestSimulationDisplay(t *testing.T) {
 		t.Errorf("type I error %v, interval %v", *v.Type1Error, v.Type1CI)
 	}
 }
+
+// TestInterimWording: a superiority trial's interim sentences speak of
+// efficacy and no effect; a non-inferiority trial's of declaring
+// non-inferiority and of a true effect at the margin, where its z
+// statistic has mean 0.
+func TestInterimWording(t *testing.T) {
+	for _, c := range []struct {
+		name, spec string
+		want, not  []string
+	}{
+		{"superiority", "version: 1\ndesign: trial\ncontrol_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8\ninterim: {looks: 3, boundary: pocock}\n",
+			[]string{"the trial stops early only for efficacy,", "At each analysis the trial stops for efficacy when |Z| reaches", " under no effect."},
+			[]string{"non-inferiority"}},
+		{"non-inferiority", "version: 1\ndesign: trial\nhypothesis: non-inferiority\ncontrol_risk: 0.85\nintervention_risk: 0.85\nmargin: 0.08\nhigher_is_better: true\npower: 0.9\nmethod: farrington-manning\ninterim: {looks: 2, boundary: obrien-fleming}\n",
+			[]string{"the trial stops early only to declare non-inferiority,", "At each analysis the trial stops to declare non-inferiority when Z (in the direction of benefit) reaches", " under a true effect at the non-inferiority margin (the null hypothesis)."},
+			[]string{"under no effect", "stops early only for efficacy"}},
+	} {
+		out := render(t, planSpec(t, c.spec), "markdown")
+		for _, w := range c.want {
+			if !strings.Contains(out, w) {
+				t.Errorf("%s: no %q", c.name, w)
+			}
+		}
+		for _, w := range c.not {
+			if strings.Contains(out, w) {
+				t.Errorf("%s: says %q", c.name, w)
+			}
+		}
+	}
+}
