@@ -172,12 +172,19 @@ func (c *calculator) fixedPower(n1, n2 float64) float64 {
 
 // powerName names the power computation in the steps.
 func (c *calculator) powerName() string {
+	name := c.fixedPowerName()
+	if c.s.Interim != nil {
+		name = "the group-sequential power: the probability of crossing a boundary on the side of the effect at drift θ = z_α + Φ⁻¹(p), p " + name + " with no interim look (recursive integration, Jennison & Turnbull 2000, chapter 19)"
+	}
+	return name
+}
+
+// fixedPowerName names the power of the fixed-sample design (no interim
+// look) in the steps.
+func (c *calculator) fixedPowerName() string {
 	name := c.methodPowerName()
 	if c.s.Adjusted {
 		name += ", at each size × (1 − r_squared) for the adjustment"
-	}
-	if c.s.Interim != nil {
-		name = "the group-sequential power: the probability of crossing a boundary on the side of the effect at drift θ = z_α + Φ⁻¹(p), p " + name + " with no interim look (recursive integration, Jennison & Turnbull 2000, chapter 19)"
 	}
 	return name
 }

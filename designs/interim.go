@@ -390,13 +390,14 @@ func interimFigures(s *Spec, ans *Answer, sv *solved, tr *trail) error {
 			out.Inflation = r
 		}
 	}
-	stop, _ := seq.Stopping(theta)
+	stop, upper, _ := seq.StoppingCrossing(theta)
 	stop0, _ := seq.Stopping(0)
 	n := ans.N
-	var events float64
+	var events, expectedEnd float64
 	sc, survival := sv.calc.survival()
 	if survival {
-		events = sc.expectedEvents(sv.sz.eff[0], sv.sz.eff[1])
+		expectedEnd = sc.expectedEvents(sv.sz.eff[0], sv.sz.eff[1])
+		events = expectedEnd
 		if ans.Events > 0 {
 			events = float64(ans.Events)
 		}
@@ -405,14 +406,15 @@ func interimFigures(s *Spec, ans *Answer, sv *solved, tr *trail) error {
 	var ev0, ev1 float64
 	for k, t := range iv.Timing {
 		look := InterimLook{Information: t, N: make([]int, len(n)), Z: seq.Z[k], PNominal: seq.PNominal[k],
-			AlphaSpent: seq.AlphaSpent[k], StopProbability: stop[k]}
+			AlphaSpent: seq.AlphaSpent[k], StopProbability: stop[k], EfficacyProbability: upper[k]}
 		frac := t
 		if survival {
 			d := min(ceilTol(events), ceilTol(t*events))
 			look.Events = ptr(d)
 			ev0 += stop0[k] * float64(d)
 			ev1 += stop[k] * float64(d)
-			tau, entered := sc.lookTime(t, sv.sz.eff[0], sv.sz.eff[1])
+			// When the look's own events are expected (at most the end).
+			tau, entered := sc.lookTime(min(1, float64(d)/expectedEnd), sv.sz.eff[0], sv.sz.eff[1])
 			look.Time, frac = ptr(tau), entered
 		}
 		for g := range n {

@@ -3,6 +3,7 @@ package designs
 import (
 	"context"
 	"math"
+	"os"
 	"slices"
 	"strings"
 	"testing"
@@ -60,12 +61,20 @@ func TestInterimPlans(t *testing.T) {
 			if last.N[0] != res.Result.N[0] || math.Abs(last.AlphaSpent-0.05) > 1e-6 {
 				t.Errorf("the last look has %v and alpha spent %v", last.N, last.AlphaSpent)
 			}
-			sum := 0.0
+			sum, eff := 0.0, 0.0
 			for _, l := range iv.Looks {
 				sum += l.StopProbability
+				eff += l.EfficacyProbability
+				if l.EfficacyProbability > l.StopProbability+1e-12 {
+					t.Errorf("crossing for efficacy %v above stopping %v", l.EfficacyProbability, l.StopProbability)
+				}
 			}
 			if math.Abs(sum-1) > 1e-9 {
 				t.Errorf("the stopping probabilities add to %v", sum)
+			}
+			// The crossings for efficacy add up to the power.
+			if math.Abs(eff-*res.Result.AchievedPower) > 1e-9 {
+				t.Errorf("the crossings for efficacy add to %v, the power is %v", eff, *res.Result.AchievedPower)
 			}
 			// Power at the maximum size reaches the target, and solving
 			// power there agrees.
@@ -73,6 +82,45 @@ func TestInterimPlans(t *testing.T) {
 				t.Errorf("power %v at the maximum, below the target", *res.Result.AchievedPower)
 			}
 		})
+	}
+}
+
+// TestInterimLookTimes: a time-to-event look is expected when the events
+// it lists are, under uniform entry (testdata/reference/interim_looktime.R
+// and .out, R integrate and uniroot): the example's looks at 136 and 238
+// events.
+func TestInterimLookTimes(t *testing.T) {
+	data, err := os.ReadFile("../examples/trial-interim-foot-ulcer.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	s, err := Parse("foot-ulcer.yaml", data, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := Plan(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	looks := res.Result.Interim.Looks
+	for i, want := range []struct {
+		events  int
+		tau     float64
+		entered float64
+	}{
+		{136, 19.195206952, 0.799800290}, // interim_looktime.out: foot_ulcer_look1
+		{238, 26.689234180, 1},           // interim_looktime.out: foot_ulcer_look2
+	} {
+		l := looks[i]
+		if *l.Events != want.events || math.Abs(*l.Time-want.tau) > 1e-6 {
+			t.Errorf("look %d: %d events at %v, want %d at %v", i+1, *l.Events, *l.Time, want.events, want.tau)
+		}
+		if n := int(math.Ceil(want.entered*383 - 1e-9)); l.N[0] != n {
+			t.Errorf("look %d: %d entered, want %d", i+1, l.N[0], n)
+		}
+	}
+	if last := looks[len(looks)-1]; *last.Time != 36 {
+		t.Errorf("the last look at %v, want the end (36)", *last.Time)
 	}
 }
 

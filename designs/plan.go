@@ -621,7 +621,15 @@ func recordPower(s *Spec, tr *trail, sv *solved, what string) float64 {
 	if sv.e.clusterK[0] > 0 {
 		ins = append(ins, inInt("clusters_first", sv.e.clusterK[0]), inInt("clusters_second", sv.e.clusterK[1]))
 	}
-	return tr.add(what, sv.calc.powerName(), sv.calc.power(sz.eff[0], sz.eff[1]), append(ins, sv.calc.params()...)...)
+	ins = append(ins, sv.calc.params()...)
+	if iv := s.Interim; iv != nil {
+		// The method's power with no interim look, then the boundaries'
+		// power at its drift: two steps a reviewer can follow.
+		p := tr.inputOf("fixed_power", sv.calc.fixedPowerName()+" with no interim look", sv.calc.fixedPower(sz.eff[0], sz.eff[1]), ins...)
+		rule := fmt.Sprintf("the group-sequential power: the probability of crossing a boundary on the side of the effect, at some look, at drift θ = z_α + Φ⁻¹(fixed_power), of %d looks at information %s with %s boundaries (recursive integration, Jennison & Turnbull 2000, chapter 19)", iv.Looks, iv.TimingWords(), iv.BoundaryWords())
+		return tr.add(what, rule, sv.calc.power(sz.eff[0], sz.eff[1]), p, in("alpha", sv.e.alpha), inInt("sides", s.Sides), inInt("looks", iv.Looks))
+	}
+	return tr.add(what, sv.calc.powerName(), sv.calc.power(sz.eff[0], sz.eff[1]), ins...)
 }
 
 // inputOf records a step and returns it as an input of the next.

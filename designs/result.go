@@ -432,4 +432,8 @@ type InterimLook struct {
 	// StopProbability is the probability of stopping here under the
 	// planned effect (crossing here first; at the last look, reaching it).
 	StopProbability float64 `json:"stop_probability"`
+	// EfficacyProbability is the probability of crossing the boundary on
+	// the side of the effect here first, under the planned effect; the
+	// looks' values add up to the power.
+	EfficacyProbability float64 `json:"efficacy_probability"`
 }

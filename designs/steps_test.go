@@ -178,7 +178,7 @@ func replayStep(st Step) (float64, bool) {
 // computedSteps are the steps that a method computes (checked against
 // outside values elsewhere); every other step must replay by arithmetic.
 var computedSteps = map[string]bool{
-	"n_star": true, "n_star_unadjusted": true, "n_star_fixed": true, "events_star_fixed": true, "inflation": true, "discordant_per_set": true, "n0": true, "expected_lower": true, "expected_upper": true, "precision_ratio_achieved": true, "events_star": true, "achieved_power": true, "power": true,
+	"n_star": true, "n_star_unadjusted": true, "n_star_fixed": true, "events_star_fixed": true, "inflation": true, "discordant_per_set": true, "n0": true, "expected_lower": true, "expected_upper": true, "precision_ratio_achieved": true, "events_star": true, "achieved_power": true, "power": true, "fixed_power": true,
 	"event_probability_first": true, "event_probability_second": true,
 	"detectable_lower": true, "detectable_upper": true, "diluted_lower": true, "diluted_upper": true,
 	"z": true, "margin": true, "analysable_first": true,

@@ -381,6 +381,15 @@ func (s *Sequential) Inflation(power float64) (float64, error) {
 // probability of reaching it, whatever its outcome — and the expected
 // information as a fraction of the maximum, Σ t_k P(stop at k).
 func (s *Sequential) Stopping(theta float64) (stop []float64, expected float64) {
+	stop, _, expected = s.StoppingCrossing(theta)
+	return stop, expected
+}
+
+// StoppingCrossing is [Sequential.Stopping] with the probabilities of
+// crossing the upper boundary (the side of the effect) at each look, from
+// the same integration: at the last look, where stop is the probability of
+// reaching it, upper is that of crossing there.
+func (s *Sequential) StoppingCrossing(theta float64) (stop, upper []float64, expected float64) {
 	up, lo := s.Crossing(theta)
 	k := len(up)
 	stop = make([]float64, k)
@@ -392,7 +401,7 @@ func (s *Sequential) Stopping(theta float64) (stop []float64, expected float64) 
 	}
 	stop[k-1] = math.Max(0, left)
 	expected += stop[k-1]
-	return stop, expected
+	return stop, up, expected
 }
 
 // gridR is the density of the integration grid, r of Jennison & Turnbull

@@ -117,13 +117,12 @@ func interimSection(r *designs.Result) *section {
 		return nil
 	}
 	s := &section{heading: "Interim analyses: boundaries look by look"}
-	side := "|Z| reaches"
-	pside := "two-sided"
-	if r.Spec != nil && r.Spec.Sides == 1 {
-		side, pside = "Z (in the direction of benefit) reaches", "one-sided"
-	}
 	null, stopFor := interimWords(r)
-	s.paras = []string{fmt.Sprintf("At each analysis the trial stops %s when %s the boundary, that is when the planned test's %s p-value is at or below the nominal p. Efficacy only: there is no futility boundary. The chance of stopping is under the planned effect; at the last analysis it is the chance of reaching it.", stopFor, side, pside)}
+	rule := fmt.Sprintf("At each analysis the trial stops when |Z| reaches the boundary, that is when the planned test's two-sided p-value is at or below the nominal p: %s when Z lies on the side of the planned effect (a crossing on the other side would show harm). There is no futility boundary.", stopFor)
+	if r.Spec != nil && r.Spec.Sides == 1 {
+		rule = fmt.Sprintf("At each analysis the trial stops %s when Z (in the direction of benefit) reaches the boundary, that is when the planned test's one-sided p-value is at or below the nominal p. Efficacy only: there is no futility boundary.", stopFor)
+	}
+	s.paras = []string{rule + " The chance of stopping is under the planned effect; at the last analysis it is the chance of reaching it, with the chance of crossing its boundary there in brackets."}
 	f, g := groupsOf(r)
 	surv := len(iv.Looks) > 0 && iv.Looks[0].Events != nil
 	who := "Analysable: "
@@ -158,7 +157,11 @@ func interimSection(r *designs.Result) *section {
 		if surv {
 			row = append(row, count(*l.Events))
 		}
-		row = append(row, strconv.FormatFloat(l.Z, 'f', 3, 64), pValue(l.PNominal), pValue(l.AlphaSpent), pct1(l.StopProbability))
+		chance := pct1(l.StopProbability)
+		if i == len(iv.Looks)-1 {
+			chance += " (" + pct1(l.EfficacyProbability) + " crossing)"
+		}
+		row = append(row, strconv.FormatFloat(l.Z, 'f', 3, 64), pValue(l.PNominal), pValue(l.AlphaSpent), chance)
 		s.table = append(s.table, row)
 	}
 	infl := fmt.Sprintf("Inflation factor of the maximum size over the fixed-sample size: %s.", strconv.FormatFloat(iv.Inflation, 'f', 4, 64))

@@ -638,9 +638,18 @@ func conclude(b *strings.Builder, r *designs.Result) {
 		if a.ExpectedEvents != nil {
 			fmt.Fprintf(b, ", and is expected to yield %.1f events", *a.ExpectedEvents)
 		}
-		if s.Cluster != nil && a.Clusters != nil {
+		switch fixed, ok := stepOutput(r, "fixed_power"); {
+		case ok && s.Interim != nil:
+			// The method gives the fixed-sample power; the boundaries
+			// take it to the group-sequential power.
+			who := method + " gives"
+			if s.Cluster != nil && a.Clusters != nil {
+				who = clusterTest(r, "") + " has"
+			}
+			fmt.Fprintf(b, ". Under these assumptions %s a power of %s for a single analysis at these sizes; with the interim analyses below, the power is %s. ", who, pct1(fixed), pct1(*a.AchievedPower))
+		case s.Cluster != nil && a.Clusters != nil:
 			fmt.Fprintf(b, ". Under these assumptions %s has a power of %s. ", clusterTest(r, ""), pct1(*a.AchievedPower))
-		} else {
+		default:
 			fmt.Fprintf(b, ". Under these assumptions %s gives a power of %s. ", method, pct1(*a.AchievedPower))
 		}
 		clusterSentence(b, r)

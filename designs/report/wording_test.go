@@ -866,7 +866,7 @@ func TestInterimWording(t *testing.T) {
 		want, not  []string
 	}{
 		{"superiority", "version: 1\ndesign: trial\ncontrol_risk: 0.2\nrisk_ratio: 0.75\npower: 0.8\ninterim: {looks: 3, boundary: pocock}\n",
-			[]string{"the trial stops early only for efficacy,", "At each analysis the trial stops for efficacy when |Z| reaches", " under no effect."},
+			[]string{"the trial stops early only for efficacy,", "At each analysis the trial stops when |Z| reaches the boundary, that is when the planned test's two-sided p-value is at or below the nominal p: for efficacy when Z lies on the side of the planned effect (a crossing on the other side would show harm).", " under no effect."},
 			[]string{"non-inferiority"}},
 		{"non-inferiority", "version: 1\ndesign: trial\nhypothesis: non-inferiority\ncontrol_risk: 0.85\nintervention_risk: 0.85\nmargin: 0.08\nhigher_is_better: true\npower: 0.9\nmethod: farrington-manning\ninterim: {looks: 2, boundary: obrien-fleming}\n",
 			[]string{"the trial stops early only to declare non-inferiority,", "At each analysis the trial stops to declare non-inferiority when Z (in the direction of benefit) reaches", " under a true effect at the non-inferiority margin (the null hypothesis)."},
