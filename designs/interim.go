@@ -314,13 +314,20 @@ func (r *reader) buildInterim(s *Spec) {
 		fail(ie, "has no boundary; allowed: boundary: %s", orList(interimBoundaries))
 		return
 	}
-	iv.Boundary = strings.TrimSpace(be.node.Value)
-	if be.node.Kind != yaml.ScalarNode || !slices.Contains(interimBoundaries, iv.Boundary) {
-		msg := fmt.Sprintf("%s is not allowed; allowed: %s", show(be.node), orList(interimBoundaries))
-		if v, near := nearest(iv.Boundary, interimBoundaries); near {
-			msg += fmt.Sprintf(" (did you mean %q?)", v)
+	// word reads a word of the block among those allowed.
+	word := func(e *entry, allowed []string) (string, bool) {
+		v := strings.TrimSpace(e.node.Value)
+		if e.node.Kind == yaml.ScalarNode && slices.Contains(allowed, v) {
+			return v, true
 		}
-		fail(be, "%s", msg)
+		msg := fmt.Sprintf("%s is not allowed; allowed: %s", show(e.node), orList(allowed))
+		if near, ok := nearest(v, allowed); ok {
+			msg += fmt.Sprintf(" (did you mean %q?)", near)
+		}
+		fail(e, "%s", msg)
+		return "", false
+	}
+	if iv.Boundary, ok = word(be, interimBoundaries); !ok {
 		return
 	}
 	se := m["spending_function"]
@@ -335,13 +342,7 @@ func (r *reader) buildInterim(s *Spec) {
 		fail(ie, "has boundary spending but no spending_function; allowed: spending_function: %s", orList(interimSpending))
 		return
 	case iv.Boundary == "spending":
-		iv.Spending = strings.TrimSpace(se.node.Value)
-		if se.node.Kind != yaml.ScalarNode || !slices.Contains(interimSpending, iv.Spending) {
-			msg := fmt.Sprintf("%s is not allowed; allowed: %s", show(se.node), orList(interimSpending))
-			if v, near := nearest(iv.Spending, interimSpending); near {
-				msg += fmt.Sprintf(" (did you mean %q?)", v)
-			}
-			fail(se, "%s", msg)
+		if iv.Spending, ok = word(se, interimSpending); !ok {
 			return
 		}
 	}

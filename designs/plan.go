@@ -1261,25 +1261,12 @@ func precisionCore(s *Spec, ans *Answer, tr *trail) error {
 		}
 		surveySizes(s, ans, tr, n0, n)
 	case "effect":
-		a := tr.addInt("analysable_first", "floor(total × (1 − attrition)): the respondents expected", floorTol(float64(s.Total)*(1-s.Attrition)), inInt("total", s.Total), in("attrition", s.Attrition))
-		if a < 1 {
-			return &SpecError{File: s.File, Key: "total", Msg: "after non-response no respondent is left; allowed: a larger total"}
+		a, err := surveyRespondents(s, ans, tr, 1, "after non-response no respondent is left; allowed: a larger total")
+		if err != nil {
+			return err
 		}
-		ans.N, ans.Total = append(ans.N[:0], a), a
-		ans.Enrol, ans.EnrolTotal = append(ans.Enrol[:0], s.Total), s.Total
 		tr.add("z", "the standard normal quantile at (1 + confidence) / 2", z, in("confidence", s.Confidence))
-		next := "analysable_first"
-		nv := float64(a)
-		if s.Population > 0 {
-			if nv < float64(s.Population) {
-				nv = tr.add("n_before_population", "analysable_first × (population − 1) / (population − analysable_first) (undoing the finite population correction)", nv*float64(s.Population-1)/(float64(s.Population)-nv), inInt("analysable_first", a), inInt("population", s.Population))
-				next = "n_before_population"
-			}
-		}
-		if s.DesignEffect != 1 {
-			nv = tr.add("n0", next+" / design_effect", nv/s.DesignEffect, in(next, nv), in("design_effect", s.DesignEffect))
-			next = "n0"
-		}
+		next, nv := surveyEffective(s, tr, a)
 		rule := "z × sqrt(expected_prevalence × (1 − expected_prevalence) / " + next + ")"
 		margin := power.PrecisionMargin(pr, float64(a))
 		if interval != power.WaldInterval {
@@ -1309,6 +1296,35 @@ func precisionCore(s *Spec, ans *Answer, tr *trail) error {
 	return nil
 }
 
+// surveyRespondents records the respondents a survey of the given total
+// expects after non-response, as its sizes; fewer than least is refused
+// with the message few.
+func surveyRespondents(s *Spec, ans *Answer, tr *trail, least int, few string) (int, error) {
+	a := tr.addInt("analysable_first", "floor(total × (1 − attrition)): the respondents expected", floorTol(float64(s.Total)*(1-s.Attrition)), inInt("total", s.Total), in("attrition", s.Attrition))
+	if a < least {
+		return a, &SpecError{File: s.File, Key: "total", Msg: few}
+	}
+	ans.N, ans.Total = append(ans.N[:0], a), a
+	ans.Enrol, ans.EnrolTotal = append(ans.Enrol[:0], s.Total), s.Total
+	return a, nil
+}
+
+// surveyEffective is what a respondents are worth as a simple random
+// sample: the finite population correction undone, then the design effect
+// divided out. It returns the last step's name and value.
+func surveyEffective(s *Spec, tr *trail, a int) (next string, nv float64) {
+	next, nv = "analysable_first", float64(a)
+	if s.Population > 0 && nv < float64(s.Population) {
+		nv = tr.add("n_before_population", "analysable_first × (population − 1) / (population − analysable_first) (undoing the finite population correction)", nv*float64(s.Population-1)/(float64(s.Population)-nv), inInt("analysable_first", a), inInt("population", s.Population))
+		next = "n_before_population"
+	}
+	if s.DesignEffect != 1 {
+		nv = tr.add("n0", next+" / design_effect", nv/s.DesignEffect, in(next, nv), in("design_effect", s.DesignEffect))
+		next = "n0"
+	}
+	return next, nv
+}
+
 // meanPrecisionCore is precisionCore for one mean to within ± margin by
 // the t interval: n0 the smallest n ≥ 2 with t(1 − α/2, n − 1) sd / √n ≤
 // margin (simple random sampling), then the design effect, the finite
@@ -1333,21 +1349,11 @@ func meanPrecisionCore(s *Spec, ans *Answer, tr *trail) error {
 		tr.add("n0", "the smallest whole number of respondents n0 ≥ 2 with t(1 − (1 − confidence)/2, n0 − 1) × sd / √n0 at most the margin (simple random sampling; the t interval, Student 1908)", n0, in("sd", sd), in("margin", s.Margin), in("confidence", s.Confidence))
 		surveySizes(s, ans, tr, n0, n)
 	case "effect":
-		a := tr.addInt("analysable_first", "floor(total × (1 − attrition)): the respondents expected", floorTol(float64(s.Total)*(1-s.Attrition)), inInt("total", s.Total), in("attrition", s.Attrition))
-		if a < 2 {
-			return &SpecError{File: s.File, Key: "total", Msg: "after non-response fewer than two respondents are left, too few for a t interval; allowed: a larger total"}
+		a, err := surveyRespondents(s, ans, tr, 2, "after non-response fewer than two respondents are left, too few for a t interval; allowed: a larger total")
+		if err != nil {
+			return err
 		}
-		ans.N, ans.Total = append(ans.N[:0], a), a
-		ans.Enrol, ans.EnrolTotal = append(ans.Enrol[:0], s.Total), s.Total
-		next, nv := "analysable_first", float64(a)
-		if s.Population > 0 && nv < float64(s.Population) {
-			nv = tr.add("n_before_population", "analysable_first × (population − 1) / (population − analysable_first) (undoing the finite population correction)", nv*float64(s.Population-1)/(float64(s.Population)-nv), inInt("analysable_first", a), inInt("population", s.Population))
-			next = "n_before_population"
-		}
-		if s.DesignEffect != 1 {
-			nv = tr.add("n0", next+" / design_effect", nv/s.DesignEffect, in(next, nv), in("design_effect", s.DesignEffect))
-			next = "n0"
-		}
+		next, nv := surveyEffective(s, tr, a)
 		if nv < 2 {
 			return &SpecError{File: s.File, Key: "total", Msg: fmt.Sprintf("%d respondents are worth %.3g of a simple random sample after the design effect, fewer than two: no t interval; allowed: a larger total", s.Total, nv)}
 		}

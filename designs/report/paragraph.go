@@ -969,19 +969,9 @@ func precisionParagraph(r *designs.Result) string {
 			}
 			fmt.Fprintf(&b, "; %s, to %.2f, rounded up to %s respondents. ", strings.Join(changes, " and "), a.NStar, count(a.Total))
 		}
-		if r.Attrition > 0 {
-			fmt.Fprintf(&b, "Allowing for %s non-response%s, %s people will be invited.", pct(r.Attrition), source(r, "attrition"), count(a.EnrolTotal))
-		} else {
-			fmt.Fprintf(&b, "No non-response is expected, so %s people will be invited.", count(a.EnrolTotal))
-		}
+		invitedSentence(&b, r)
 	} else {
-		fmt.Fprintf(&b, "Inviting %s people", count(a.EnrolTotal))
-		if r.Attrition > 0 {
-			fmt.Fprintf(&b, " and expecting %s non-response%s (%s respondents)", pct(r.Attrition), source(r, "attrition"), count(a.Total))
-		}
-		if r.DesignEff > 1 {
-			fmt.Fprintf(&b, ", with a design effect of %g%s", r.DesignEff, source(r, "design_effect"))
-		}
+		invitingClause(&b, r)
 		fmt.Fprintf(&b, ", the estimate will lie within ±%s percentage points of the true proportion at that confidence level.", marg)
 	}
 	if e := a.ExpectedInterval; len(e) == 2 {
@@ -1082,19 +1072,9 @@ func meanPrecisionParagraph(r *designs.Result) string {
 		} else {
 			b.WriteString(". ")
 		}
-		if r.Attrition > 0 {
-			fmt.Fprintf(&b, "Allowing for %s non-response%s, %s people will be invited.", pct(r.Attrition), source(r, "attrition"), count(a.EnrolTotal))
-		} else {
-			fmt.Fprintf(&b, "No non-response is expected, so %s people will be invited.", count(a.EnrolTotal))
-		}
+		invitedSentence(&b, r)
 	} else {
-		fmt.Fprintf(&b, "Inviting %s people", count(a.EnrolTotal))
-		if r.Attrition > 0 {
-			fmt.Fprintf(&b, " and expecting %s non-response%s (%s respondents)", pct(r.Attrition), source(r, "attrition"), count(a.Total))
-		}
-		if r.DesignEff > 1 {
-			fmt.Fprintf(&b, ", with a design effect of %g%s", r.DesignEff, source(r, "design_effect"))
-		}
+		invitingClause(&b, r)
 		fmt.Fprintf(&b, ", the interval will reach about ±%s around the mean at that confidence level.", num(*a.Margin))
 	}
 	b.WriteString(" The margin assumes the standard deviation stated; the interval observed will be wider if the spread is larger.")
@@ -1169,4 +1149,29 @@ func ratioPrecisionParagraph(r *designs.Result) string {
 		fmt.Fprintf(&b, " At the planned %s of %s the interval is expected to run from %s to %s; this is a planning value at the assumed %ss, not a guarantee for the interval observed.", measure, num(*ratio), num(iv[0]), num(iv[1]), map[bool]string{true: "exposure", false: "risk"}[r.Design == "case-control"])
 	}
 	return b.String()
+}
+
+// invitedSentence says how many people a survey sized for its respondents
+// will invite, allowing for non-response.
+func invitedSentence(b *strings.Builder, r *designs.Result) {
+	a := r.Result
+	if r.Attrition > 0 {
+		fmt.Fprintf(b, "Allowing for %s non-response%s, %s people will be invited.", pct(r.Attrition), source(r, "attrition"), count(a.EnrolTotal))
+		return
+	}
+	fmt.Fprintf(b, "No non-response is expected, so %s people will be invited.", count(a.EnrolTotal))
+}
+
+// invitingClause opens the sentence of a survey whose invitations are
+// given: the people invited, the respondents expected and the design
+// effect; the caller says what the interval reaches.
+func invitingClause(b *strings.Builder, r *designs.Result) {
+	a := r.Result
+	fmt.Fprintf(b, "Inviting %s people", count(a.EnrolTotal))
+	if r.Attrition > 0 {
+		fmt.Fprintf(b, " and expecting %s non-response%s (%s respondents)", pct(r.Attrition), source(r, "attrition"), count(a.Total))
+	}
+	if r.DesignEff > 1 {
+		fmt.Fprintf(b, ", with a design effect of %g%s", r.DesignEff, source(r, "design_effect"))
+	}
 }
