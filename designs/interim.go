@@ -69,10 +69,27 @@ var BoundaryFamilies = []BoundaryFamily{
 }
 
 // interimBoundaries are the boundary families of the interim block.
-var interimBoundaries = []string{"pocock", "obrien-fleming", "spending"}
+var interimBoundaries = identifiers(boundaryFamilies)
+
+// boundaryFamilies and spendingFunctions are the engine's families and
+// spending functions, in the order of interimBoundaries and
+// interimSpending, whose names are theirs.
+var (
+	boundaryFamilies  = []power.BoundaryFamily{power.Pocock, power.OBrienFleming, power.Spending}
+	spendingFunctions = []power.SpendingFunction{power.OBrienFlemingType, power.PocockType, power.PowerFamily}
+)
+
+// identifiers are the String forms of xs.
+func identifiers[T fmt.Stringer](xs []T) []string {
+	out := make([]string, len(xs))
+	for i, x := range xs {
+		out[i] = x.String()
+	}
+	return out
+}
 
 // interimSpending are the spending functions of boundary: spending.
-var interimSpending = []string{"obrien-fleming-type", "pocock-type", "power"}
+var interimSpending = identifiers(spendingFunctions)
 
 // interimKeys are the keys of the interim map.
 var interimKeys = map[string]string{
@@ -86,21 +103,11 @@ var interimKeys = map[string]string{
 // family returns the engine's description of the block, at alpha and sides.
 func (iv *Interim) family(alpha float64, sides int) power.GroupSequential {
 	g := power.GroupSequential{Timing: iv.Timing, Alpha: alpha, Sides: sides, Rho: iv.Rho}
-	switch iv.Boundary {
-	case "pocock":
-		g.Family = power.Pocock
-	case "obrien-fleming":
-		g.Family = power.OBrienFleming
-	default:
-		g.Family = power.Spending
-		switch iv.Spending {
-		case "pocock-type":
-			g.Function = power.PocockType
-		case "power":
-			g.Function = power.PowerFamily
-		default:
-			g.Function = power.OBrienFlemingType
-		}
+	if i := slices.Index(interimBoundaries, iv.Boundary); i >= 0 {
+		g.Family = boundaryFamilies[i]
+	}
+	if i := slices.Index(interimSpending, iv.Spending); i >= 0 && g.Family == power.Spending {
+		g.Function = spendingFunctions[i]
 	}
 	return g
 }

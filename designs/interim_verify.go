@@ -201,14 +201,8 @@ func verifySequential(ctx context.Context, s *Spec, res *Result, o SimOptions) e
 	sim.Sequential = sq
 
 	r1, err1 := power.Simulate(ctx, alt, cfg("planned effect", seed))
-	sim.Replicates = r1.Replicates
+	sim.setPower(r1)
 	if r1.Replicates > 0 {
-		sim.Power, sim.SE = ptr(r1.Power()), ptr(r1.SE())
-		lo, hi := r1.CI()
-		sim.CI = []float64{lo, hi}
-		d := *sim.Power - sim.ClosedFormPower
-		sim.Difference = &d
-		sim.Agrees = ptr(!(math.Abs(d) > 3**sim.SE && math.Abs(d) > 0.01))
 		sq.StopByLook = shares(r1)
 		sq.ExpectedN = expectedAt(ir, sq.StopByLook)
 	}
@@ -222,9 +216,7 @@ func verifySequential(ctx context.Context, s *Spec, res *Result, o SimOptions) e
 	}
 	r0, err0 := power.Simulate(ctx, null, cfg("null (type I error)", seed+1))
 	if r0.Replicates > 0 {
-		sim.Type1Error, sim.Type1SE = ptr(r0.Power()), ptr(r0.SE())
-		lo, hi := r0.CI()
-		sim.Type1CI = []float64{lo, hi}
+		sim.Type1Error, sim.Type1SE, sim.Type1CI = estimate(r0)
 		sq.StopByLookNull = shares(r0)
 	}
 	if err0 != nil {

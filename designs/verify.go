@@ -248,22 +248,10 @@ func Verify(ctx context.Context, s *Spec, res *Result, o SimOptions) error {
 	}
 	res.Simulation = sim
 	run := power.NewRun(alt.model, cfg("planned effect"))
-	fill := func(r power.SimResult) {
-		sim.Replicates = r.Replicates
-		if r.Replicates == 0 {
-			return
-		}
-		sim.Power, sim.SE = ptr(r.Power()), ptr(r.SE())
-		lo, hi := r.CI()
-		sim.CI = []float64{lo, hi}
-		d := *sim.Power - sim.ClosedFormPower
-		sim.Difference = &d
-		sim.Agrees = ptr(!(math.Abs(d) > 3**sim.SE && math.Abs(d) > 0.01))
-	}
 	if o.MaxSeconds > 0 {
 		if err := o.guard(ctx, run, s, reps, build, now().Sub(t0).Seconds(), sizes, now); err != nil {
 			if errors.Is(err, ErrStopped) {
-				fill(run.Result())
+				sim.setPower(run.Result())
 				sim.Partial = true
 			} else {
 				res.Simulation = nil
@@ -272,7 +260,7 @@ func Verify(ctx context.Context, s *Spec, res *Result, o SimOptions) error {
 		}
 	}
 	r1, err1 := run.Finish(ctx)
-	fill(r1)
+	sim.setPower(r1)
 	if err1 != nil {
 		sim.Partial = true
 		return ErrStopped
@@ -292,9 +280,7 @@ func Verify(ctx context.Context, s *Spec, res *Result, o SimOptions) error {
 	c0.Seed = seed + 1
 	r0, err0 := power.Simulate(ctx, null.model, c0)
 	if r0.Replicates > 0 {
-		sim.Type1Error, sim.Type1SE = ptr(r0.Power()), ptr(r0.SE())
-		lo, hi := r0.CI()
-		sim.Type1CI = []float64{lo, hi}
+		sim.Type1Error, sim.Type1SE, sim.Type1CI = estimate(r0)
 	}
 	if !*sim.Agrees {
 		res.Warnings = append(res.Warnings, fmt.Sprintf(
@@ -639,8 +625,7 @@ func verifyPrecision(ctx context.Context, s *Spec, res *Result, o SimOptions) er
 	r1, err1 := run("within the margin", false)
 	sim.Replicates = r1.Replicates
 	if r1.Replicates > 0 {
-		lo, hi := r1.CI()
-		sim.WithinMargin, sim.WithinMarginSE, sim.WithinMarginCI = ptr(r1.Power()), ptr(r1.SE()), []float64{lo, hi}
+		sim.WithinMargin, sim.WithinMarginSE, sim.WithinMarginCI = estimate(r1)
 	}
 	if err1 != nil {
 		sim.Partial = true
@@ -648,8 +633,7 @@ func verifyPrecision(ctx context.Context, s *Spec, res *Result, o SimOptions) er
 	}
 	r2, err2 := run("coverage", true)
 	if r2.Replicates > 0 {
-		lo, hi := r2.CI()
-		sim.Coverage, sim.CoverageSE, sim.CoverageCI = ptr(r2.Power()), ptr(r2.SE()), []float64{lo, hi}
+		sim.Coverage, sim.CoverageSE, sim.CoverageCI = estimate(r2)
 	}
 	if err2 != nil {
 		sim.Partial = true
@@ -684,4 +668,25 @@ func simSettings(s *Spec, o SimOptions) (reps int64, seed uint64, n int, err err
 		return 0, 0, 0, &InputError{Msg: fmt.Sprintf("%s: simulate: %d replicates are too few; allowed: at least 100", s.File, reps)}
 	}
 	return reps, seed, n, nil
+}
+
+// estimate is a simulated share with its Monte-Carlo standard error and
+// its 95% score interval (Wilson 1927).
+func estimate(r power.SimResult) (share, se *float64, ci []float64) {
+	lo, hi := r.CI()
+	return ptr(r.Power()), ptr(r.SE()), []float64{lo, hi}
+}
+
+// setPower records the simulated power of r, when it has replicates, and
+// whether it agrees with the closed form: within 3 Monte-Carlo standard
+// errors or 1 point.
+func (sim *Simulation) setPower(r power.SimResult) {
+	sim.Replicates = r.Replicates
+	if r.Replicates == 0 {
+		return
+	}
+	sim.Power, sim.SE, sim.CI = estimate(r)
+	d := *sim.Power - sim.ClosedFormPower
+	sim.Difference = &d
+	sim.Agrees = ptr(!(math.Abs(d) > 3**sim.SE && math.Abs(d) > 0.01))
 }
