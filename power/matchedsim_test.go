@@ -354,15 +354,7 @@ func BenchmarkMatchedSimReplicate(b *testing.B) {
 			if err != nil {
 				b.Fatal(err)
 			}
-			w := m.NewWorker()
-			r := rand.New(rand.NewPCG(1, 2))
-			sink := 0
-			for b.Loop() {
-				if w.Replicate(r) {
-					sink++
-				}
-			}
-			_ = sink
+			benchReplicates(b, m)
 		})
 	}
 }

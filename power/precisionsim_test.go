@@ -333,15 +333,7 @@ func BenchmarkPrecisionSimReplicate(b *testing.B) {
 		{"diagnostic_cp_n400", NewDiagnosticPrecisionSim(DiagnosticPrecisionSim{DiagnosticAccuracy: da, N: 400, Margin: 0.065, Interval: ClopperPearsonInterval})},
 	} {
 		b.Run(c.name, func(b *testing.B) {
-			w := c.m.NewWorker()
-			r := rand.New(rand.NewPCG(1, 2))
-			sink := 0
-			for b.Loop() {
-				if w.Replicate(r) {
-					sink++
-				}
-			}
-			_ = sink
+			benchReplicates(b, c.m)
 		})
 	}
 }

@@ -26,19 +26,11 @@ func interimSentences(b *strings.Builder, r *designs.Result) {
 	null, stopFor := interimWords(r)
 	fmt.Fprintf(b, "The trial is group-sequential: %s analyses, %s at %s of the maximum information (the last at the end), with efficacy boundaries by %s, so that the overall alpha stays %s; the trial stops early only %s, and these boundaries make no provision for stopping for futility. ",
 		strconv.Itoa(k), timing, s.Interim.TimingWords(), s.Interim.BoundaryWords(), numASCII(iv.Looks[k-1].AlphaSpent), stopFor)
-	unit := "participants in each group"
-	if r.Outcome == "time-to-event" {
-		unit = "events"
-	}
 	switch {
 	case r.Solve == "n":
-		fixed, ok := stepOutput(r, "n_star_fixed")
-		if r.Outcome == "time-to-event" {
-			fixed, ok = stepOutput(r, "events_star_fixed")
-		}
-		if ok {
-			fmt.Fprintf(b, "The sizes above are the maximum: the fixed-sample size without interim analyses, %s %s (unrounded), multiplied by the inflation factor %s that the boundaries cost at this power (Jennison & Turnbull 2000). ",
-				strconv.FormatFloat(fixed, 'f', 2, 64), unit, strconv.FormatFloat(iv.Inflation, 'f', 4, 64))
+		if fixed, ok := fixedSize(r); ok {
+			fmt.Fprintf(b, "The sizes above are the maximum: the fixed-sample size without interim analyses, %s (unrounded), multiplied by the inflation factor %s that the boundaries cost at this power (Jennison & Turnbull 2000). ",
+				fixed, strconv.FormatFloat(iv.Inflation, 'f', 4, 64))
 		}
 	case r.Solve == "power":
 		fmt.Fprintf(b, "The power is the probability of crossing a boundary on the side of the effect at some analysis, at the stated maximum size; a fixed design of that size would have the same power with %s fewer participants (inflation factor %s). ",
@@ -63,6 +55,22 @@ func interimWords(r *designs.Result) (null, stopFor string) {
 		return "a true effect at the non-inferiority margin (the null hypothesis)", "to declare non-inferiority"
 	}
 	return "no effect", "for efficacy"
+}
+
+// fixedSize writes the fixed-sample size behind a group-sequential
+// maximum, from the recorded steps: the events of a time-to-event plan,
+// else the first group's participants (each group's when the groups are
+// equal), unrounded.
+func fixedSize(r *designs.Result) (string, bool) {
+	name, unit := "n_star_fixed", "participants in each group"
+	switch {
+	case r.Outcome == "time-to-event":
+		name, unit = "events_star_fixed", "events"
+	case r.Spec != nil && r.Spec.Ratio != 1:
+		unit = "participants in the first group"
+	}
+	fixed, ok := stepOutput(r, name)
+	return strconv.FormatFloat(fixed, 'f', 2, 64) + " " + unit, ok
 }
 
 // pctFewer is the share of the maximum size a fixed design of the same

@@ -513,17 +513,12 @@ func interimBullet(r *designs.Result) string {
 	if r.Spec == nil || r.Spec.Interim == nil || iv == nil {
 		return ""
 	}
-	fixed, ok := stepOutput(r, "n_star_fixed")
-	unit := "participants in the first group"
-	if r.Outcome == "time-to-event" {
-		fixed, ok = stepOutput(r, "events_star_fixed")
-		unit = "events"
-	}
+	fixed, ok := fixedSize(r)
 	if !ok {
 		return ""
 	}
-	return fmt.Sprintf("Group-sequential: %d analyses with efficacy boundaries by %s; the recomputed size is the maximum, the fixed-sample size without interim analyses (%s %s, unrounded) × the inflation factor %s",
-		len(iv.Looks), r.Spec.Interim.BoundaryWords(), strconv.FormatFloat(fixed, 'f', 2, 64), unit, strconv.FormatFloat(iv.Inflation, 'f', 4, 64))
+	return fmt.Sprintf("Group-sequential: %d analyses with efficacy boundaries by %s; the recomputed size is the maximum, the fixed-sample size without interim analyses (%s, unrounded) × the inflation factor %s",
+		len(iv.Looks), r.Spec.Interim.BoundaryWords(), fixed, strconv.FormatFloat(iv.Inflation, 'f', 4, 64))
 }
 
 // oneGroupUnit is what a design of one group of units counts: "pairs" for
